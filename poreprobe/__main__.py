@@ -1,0 +1,5 @@
+"""``python -m poreprobe``."""
+
+from poreprobe.cli import main
+
+raise SystemExit(main())
