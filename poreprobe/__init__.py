@@ -24,6 +24,17 @@ from poreprobe.structure import (  # noqa: E402
     read_structure,
     select,
 )
+from poreprobe.viewer_export import (  # noqa: E402
+    CenterLine,
+    FieldGrid,
+    PoreSurface,
+    center_line,
+    clearance_grid,
+    pore_surface,
+    write_center_line,
+    write_map,
+    write_mesh,
+)
 
 __all__ = [
     "__version__",
@@ -45,4 +56,14 @@ __all__ = [
     "radius_profile",
     "read_structure",
     "select",
+    # 3-D exports for molecular viewers (figures: import poreprobe.plots)
+    "CenterLine",
+    "FieldGrid",
+    "PoreSurface",
+    "center_line",
+    "clearance_grid",
+    "pore_surface",
+    "write_center_line",
+    "write_map",
+    "write_mesh",
 ]
