@@ -9,7 +9,9 @@ reported beside it).
 from __future__ import annotations
 
 import argparse
+import warnings
 
+from poreprobe._validate import check_positive
 from poreprobe.cli_common import add_axis_args, add_output_args, add_structure_args, say
 from poreprobe.conductance import (
     ConductanceEstimate,
@@ -18,7 +20,7 @@ from poreprobe.conductance import (
     split_side_resistances,
 )
 from poreprobe.electrolyte import CONDUCTIVITY_TABLES
-from poreprobe.errors import InputError
+from poreprobe.errors import InputError, QualityWarning
 from poreprobe.export import to_json
 
 DEFAULT_ELECTROLYTE = "KCl"
@@ -178,6 +180,8 @@ def forward(args: argparse.Namespace):
         raise InputError("give --segments/--segment-selection or --cuts-A, not both")
     bathed = _parse_pairs(args.bathed_by, "--bathed-by")
     mobility = _mobility(args.mobility_factor)
+    check_positive(args.entry_side_factor, "entry_side_factor")
+    check_positive(args.far_side_factor, "far_side_factor")
     atoms, axis, prof = compute(args)
     est = series_resistance(
         prof, atoms=atoms, segments=specs or None, cuts_s_A=args.cuts_A,
@@ -199,6 +203,12 @@ def run(args) -> int:
                          "(inverse analysis)")
     measured = (parse_conductances(args.from_conductances)
                 if args.from_conductances is not None else None)
+    if measured is not None and args.structure is not None:
+        # check the measurements before the (slower) profile; warnings come later
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", QualityWarning)
+            split_side_resistances(*measured, factor_entry=args.factor_entry,
+                                   factor_far=args.factor_far)
     est = prof = None
     if args.structure is not None:
         atoms, prof, est = forward(args)
