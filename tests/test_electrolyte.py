@@ -81,7 +81,7 @@ def test_nacl_above_tenth_molar_warns_and_says_memory():
         bath = bath_conductivity("NaCl", 150)
     assert bath.from_memory
     with warnings.catch_warnings():
-        warnings.simplefilter("error")
+        warnings.simplefilter("error", QualityWarning)
         assert not bath_conductivity("NaCl", 100).from_memory
         assert not bath_conductivity("KCl", 150).from_memory
 
