@@ -123,6 +123,13 @@ def pore_integral_per_m(s_A, radius_A, s_start_A: float, s_end_A: float) -> floa
     float
         The integral in m⁻¹ (multiply by a resistivity in Ω m to get Ω).
 
+    Raises
+    ------
+    InputError
+        Bad arrays or interval, or an open (NaN) plane within the interval.
+    PoreNotFoundError
+        If the radius is <= 0 within the interval (a closed pore).
+
     Notes
     -----
     Each interval between neighbouring nodes (planes inside the range plus the two
@@ -152,8 +159,11 @@ def pore_integral_per_m(s_A, radius_A, s_start_A: float, s_end_A: float) -> floa
     radii = np.interp(nodes, s, r)
     # a NaN plane next to an end makes the interpolated end radius NaN as well
     used = np.concatenate([[radii[0]], r[inside], [radii[-1]]])
-    if not np.all(np.isfinite(used)) or np.any(used <= 0):
-        raise InputError(f"the radius is open (NaN) or not positive within {lo:g}..{hi:g} Å")
+    if not np.all(np.isfinite(used)):
+        raise InputError(f"the radius is open (NaN) within {lo:g}..{hi:g} Å")
+    if np.any(used <= 0):
+        raise PoreNotFoundError(f"the pore is closed (radius {used.min():.2f} Å <= 0) within "
+                                f"{lo:g}..{hi:g} Å: no conductance")
     return float(np.sum(np.diff(nodes) / (np.pi * radii[:-1] * radii[1:])) / _A_TO_M)
 
 
@@ -665,7 +675,7 @@ def series_resistance(profile: RadiusProfile, *, atoms: Atoms | None = None,
     InputError
         Bad resistivity, factor, segment, side or mobility input.
     PoreNotFoundError
-        No enclosed pore in the profile.
+        No enclosed pore in the profile, or a closed one (radius <= 0).
 
     Examples
     --------

@@ -22,7 +22,7 @@ from poreprobe.conductance import (
     series_resistance,
     split_side_resistances,
 )
-from poreprobe.errors import InputError, QualityWarning
+from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.profile import RadiusProfile
 
 BONDI_C_A = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)
@@ -159,6 +159,13 @@ def test_flared_mouth_extends_to_the_last_ring(ring_hourglass):
     ext = pore_extent(prof, atoms)
     assert (ext.start_A, ext.end_A) == pytest.approx((ring_z[0], ring_z[-1]))
     assert ext.narrowest_s_A == pytest.approx(0.0, abs=1e-9)
+
+
+def test_closed_pore_has_no_conductance():
+    s = np.arange(0, 10.0001, 0.5)
+    r = np.where(np.abs(s - 5) < 1, -0.2, 3.0)
+    with pytest.raises(PoreNotFoundError, match="closed"):
+        series_resistance(open_ended(s, r, 0.5), resistivity_ohm_m=1.0)
 
 
 def test_open_stretch_splits_off_planes_with_warning():
