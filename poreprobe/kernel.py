@@ -18,7 +18,7 @@ from scipy.spatial import cKDTree
 from poreprobe._validate import as_coords_A
 from poreprobe.errors import InputError
 
-_THREADED_BATCH = 50_000
+_THREADED_BATCH = 4_000
 
 
 def _default_workers(n_points: int, workers: int | None) -> int:
@@ -74,7 +74,7 @@ class AtomSpheres:
             Also return the index of the atom that sets the clearance.
         workers : int, optional
             Threads for the KD-tree queries (-1: all cores). Default: all cores for
-            batches of more than 50,000 points, one thread otherwise (thread start-up
+            batches of more than 4,000 points, one thread otherwise (thread start-up
             costs more than it saves on small batches).
 
         Returns
