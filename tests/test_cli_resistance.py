@@ -142,3 +142,21 @@ def test_bad_input_without_structure(tmp_path, capsys, argv):
     assert run([*argv, "--json", str(out)]) == 2
     assert len(error_lines(capsys.readouterr().err)) == 1
     assert not out.exists()
+
+
+def test_gramicidin_breakdown(gramicidin_pdb, tmp_path):
+    # A real channel (PDB 1GRM via MDAnalysisTests): the pore lies within the atoms, the
+    # mouths open with the profile radius at the pore ends, the shares add up.
+    out = tmp_path / "gA.json"
+    assert run(["resistance", gramicidin_pdb, "--electrolyte", "KCl", "--conc-mM", "1000",
+                "--quiet", "--json", str(out)]) == 0
+    data = json.loads(out.read_text())
+    atoms = poreprobe.read_structure(gramicidin_pdb)
+    axis = poreprobe.PoreAxis(data["axis"]["point_A"], data["axis"]["direction"], "user")
+    s_atoms = axis.s_A(atoms.coords_A)
+    lo, hi = data["pore_s_range_A"]
+    assert s_atoms.min() - 1e-6 <= lo < hi <= s_atoms.max() + 1e-6
+    assert sum(s["share_percent"] for s in data["segments"]) == pytest.approx(100)
+    assert data["segments"][0]["kind"] == data["segments"][-1]["kind"] == "access"
+    assert 0 < data["narrowest_radius_A"] <= min(data["mouth_radius_A"].values())
+    assert data["conductance_pS"] == pytest.approx(1e3 / data["resistance_Gohm"])
