@@ -18,7 +18,10 @@ from poreprobe import __version__
 from poreprobe.errors import PoreprobeError
 
 #: Command modules, in the order ``poreprobe --help`` lists them.
-COMMAND_MODULES = ("poreprobe.cli_profile",)
+COMMAND_MODULES = (
+    "poreprobe.cli_profile",
+    "poreprobe.cli_resistance",
+)
 
 
 class OneLineParser(argparse.ArgumentParser):
