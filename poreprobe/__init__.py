@@ -10,16 +10,9 @@ __version__ = "0.1.0"
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
-    PoreSegment,
-    RatioFreeEnergy,
     SegmentResistance,
-    SideResistanceSplit,
     access_resistance_ohm,
-    pore_extent,
-    pore_segments,
-    ratio_free_energy,
     series_resistance,
-    split_side_resistances,
 )
 from poreprobe.electrolyte import BathConductivity, bath_conductivity  # noqa: E402
 from poreprobe.errors import (  # noqa: E402
@@ -31,6 +24,13 @@ from poreprobe.errors import (  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
+from poreprobe.side_split import (  # noqa: E402
+    RatioFreeEnergy,
+    SideResistanceSplit,
+    ratio_free_energy,
+    split_side_resistances,
+)
 from poreprobe.structure import (  # noqa: E402
     Atoms,
     atoms_from_atomgroup,

@@ -13,15 +13,11 @@ import warnings
 
 from poreprobe._validate import check_positive
 from poreprobe.cli_common import add_axis_args, add_output_args, add_structure_args, say
-from poreprobe.conductance import (
-    ConductanceEstimate,
-    SideResistanceSplit,
-    series_resistance,
-    split_side_resistances,
-)
+from poreprobe.conductance import ConductanceEstimate, series_resistance
 from poreprobe.electrolyte import CONDUCTIVITY_TABLES
 from poreprobe.errors import InputError, QualityWarning
 from poreprobe.export import to_json
+from poreprobe.side_split import SideResistanceSplit, split_side_resistances
 
 DEFAULT_ELECTROLYTE = "KCl"
 DEFAULT_CONC_MM = 150.0

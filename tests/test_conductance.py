@@ -12,18 +12,11 @@ from scipy.spatial.transform import Rotation
 
 import poreprobe
 from poreprobe import synthetic
-from poreprobe.conductance import (
-    PoreExtent,
-    access_resistance_ohm,
-    pore_extent,
-    pore_integral_per_m,
-    pore_segments,
-    ratio_free_energy,
-    series_resistance,
-    split_side_resistances,
-)
+from poreprobe.conductance import access_resistance_ohm, pore_integral_per_m, series_resistance
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.profile import RadiusProfile
+from poreprobe.segments import PoreExtent, pore_extent, pore_segments
+from poreprobe.side_split import ratio_free_energy, split_side_resistances
 
 BONDI_C_A = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)
 Z_AXIS = poreprobe.PoreAxis([0, 0, 0], [0, 0, 1], "user")
