@@ -821,7 +821,10 @@ def resistance_arrays(resistance) -> dict:
     g = _lookup(d, ["conductance_pS"], "resistance", required=False)
     total = _lookup(d, ["total_resistance_Gohm", "resistance_Gohm"], "resistance",
                     required=False)
-    return {"names": names, "resistance_Gohm": r, "share_percent": share,
+    kinds = ["access" if seg.get("kind") == "access" or (
+        "kind" not in seg and "access" in str(seg["name"]).lower()) else "pore"
+        for seg in segments]
+    return {"names": names, "resistance_Gohm": r, "share_percent": share, "kinds": kinds,
             "conductance_pS": _float_or_nan(g),
             "total_Gohm": float(r.sum()) if total is None else float(total)}
 
@@ -833,9 +836,11 @@ def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
 
     Parameters
     ----------
-    resistance : dict
-        ``segments[]`` with ``name``, ``resistance_Gohm``, ``share_percent``, in
-        order along the pore, and ``conductance_pS``.
+    resistance : ConductanceEstimate or dict
+        ``segments[]`` with ``name``, ``resistance_Gohm``, ``share_percent`` (and
+        ``kind``: ``"access"`` or a pore segment), in order along the pore, and
+        ``conductance_pS``. Access resistances are drawn light, pore segments
+        dark; the largest share's label is bold.
 
     Returns
     -------
@@ -846,20 +851,29 @@ def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
     n = len(data["names"])
     y = np.arange(n)
     share = data["share_percent"]
+    kinds = data["kinds"]
+    colors = [OKABE_ITO["sky_blue"] if k == "access" else OKABE_ITO["blue"] for k in kinds]
+    bars = ax.barh(y, share, height=0.62, color=colors, zorder=2)
+    if "access" in kinds:
+        for kind, label in (("access", "access resistance"), ("pore", "pore segment")):
+            k = kinds.index(kind) if kind in kinds else None
+            if k is not None:
+                bars[k].set_label(label)
+        ax.legend(loc="lower right")
     biggest = int(np.argmax(share))
-    colors = [OKABE_ITO["vermillion"] if k == biggest else OKABE_ITO["blue"] for k in range(n)]
-    ax.barh(y, share, height=0.62, color=colors, zorder=2)
     for k in range(n):
         ax.annotate(f"{data['resistance_Gohm'][k]:.3g} GΩ ({share[k]:.0f} %)",
                     xy=(share[k], y[k]), xytext=(2, 0), textcoords="offset points",
-                    va="center", ha="left", fontsize=SMALL_FONT_PT)
+                    va="center", ha="left", fontsize=SMALL_FONT_PT,
+                    fontweight="bold" if k == biggest else "normal")
     ax.set_yticks(y, data["names"])
     ax.invert_yaxis()
     ax.set_xlim(0, share.max() * 1.4)
+    ax.set_xticks([t for t in ax.get_xticks() if 0 <= t <= min(100.0, share.max() * 1.4)])
     ax.set_xlabel("Share of the total resistance (%)")
     if np.isfinite(data["conductance_pS"]):
-        ax.set_title(f"Total {data['total_Gohm']:.3g} GΩ, "
-                     f"conductance {data['conductance_pS']:.3g} pS (model estimate)",
+        ax.set_title(f"Total {data['total_Gohm']:.3g} GΩ; conductance "
+                     f"{data['conductance_pS']:.3g} pS\n(model estimate)",
                      loc="left", fontsize=FONT_PT)
     _finish(ax, ygrid=False)
     ax.spines["left"].set_visible(False)

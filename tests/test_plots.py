@@ -399,3 +399,22 @@ def test_profile_command_draws_its_figure(tmp_path, capsys):
                  str(tmp_path / "p.gif")]) == 2
     assert "must end in" in capsys.readouterr().err
     assert not js.exists()
+
+
+def test_resistance_command_figure_matches_its_json(c4_cylinder_pdb, tmp_path):
+    """The real producer's JSON (issue 5 layout) drives the same figure as --figure."""
+    js, fig = tmp_path / "r.json", tmp_path / "r.png"
+    axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
+    assert main(["resistance", c4_cylinder_pdb, *axis, "--json", str(js), "--figure", str(fig),
+                 "--dpi", "80", "--quiet"]) == 0
+    assert _png_size(fig)[0] == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
+    data = json.loads(js.read_text())
+    ax = plots.draw_figure("resistance", [data])
+    assert [b.get_width() for b in ax.patches] == pytest.approx(
+        [seg["share_percent"] for seg in data["segments"]])
+    access = [b for b, seg in zip(ax.patches, data["segments"], strict=True)
+              if seg["kind"] == "access"]
+    assert len(access) == 2
+    assert all(mpl.colors.to_hex(b.get_facecolor()) == plots.OKABE_ITO["sky_blue"].lower()
+               for b in access)
+    assert f"{data['conductance_pS']:.3g} pS" in ax.get_title(loc="left")
