@@ -639,7 +639,11 @@ def plot_overlay(results: Sequence, *, ax=None, labels: Sequence[str] | None = N
 # --------------------------------------------------------------------------- probe scan
 
 def scan_arrays(scan) -> dict:
-    """Accessible-radius profiles and capture curve of a probe-size scan or its JSON."""
+    """Accessible-radius profiles and capture curve of a probe-size scan or its JSON.
+
+    ``passes`` and ``enters`` are None when the input does not say (e.g. the capture
+    curve a match result carries).
+    """
     d = as_result_dict(scan, "scan")
     p = _floats(_lookup(d, ["capture.probe_radius_A", "probe_radius_A"], "scan"),
                 "capture.probe_radius_A")
@@ -647,11 +651,14 @@ def scan_arrays(scan) -> dict:
                 "capture.capture_radius_A")
     _same_length("capture.probe_radius_A", p, "capture.capture_radius_A", c)
     stop = _lookup(d, ["capture.stop_s_A", "stop_s_A"], "scan", required=False)
-    passes = _lookup(d, ["capture.passes", "passes"], "scan", required=False)
     stop = np.full(p.shape, np.nan) if stop is None else _floats(stop, "capture.stop_s_A")
-    passes = np.zeros(p.shape, bool) if passes is None else np.array(passes, dtype=bool)
     _same_length("capture.probe_radius_A", p, "capture.stop_s_A", stop)
-    _same_length("capture.probe_radius_A", p, "capture.passes", passes)
+    flags = {}
+    for name in ("passes", "enters"):
+        value = _lookup(d, [f"capture.{name}", name], "scan", required=False)
+        flags[name] = None if value is None else np.array(value, dtype=bool).reshape(-1)
+        if flags[name] is not None:
+            _same_length("capture.probe_radius_A", p, f"capture.{name}", flags[name])
     s = _lookup(d, ["profiles.s_A", "accessible.s_A", "s_A"], "scan", required=False)
     acc = _lookup(d, ["profiles.accessible_radius_A", "accessible.accessible_radius_A",
                       "accessible_radius_A"], "scan", required=False)
@@ -660,8 +667,9 @@ def scan_arrays(scan) -> dict:
         _same_length("s_A", s, "accessible_radius_A", acc)
         if acc.shape[0] != len(p):
             raise InputError(f"accessible_radius_A has {acc.shape[0]} rows for {len(p)} probes")
-    return {"probe_radius_A": p, "capture_radius_A": c, "stop_s_A": stop, "passes": passes,
-            "s_A": s, "accessible_radius_A": acc, "radius_set": d.get("radius_set") or ""}
+    return {"probe_radius_A": p, "capture_radius_A": c, "stop_s_A": stop,
+            "passes": flags["passes"], "enters": flags["enters"], "s_A": s,
+            "accessible_radius_A": acc, "radius_set": d.get("radius_set") or ""}
 
 
 @_styled
@@ -691,13 +699,14 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     refs = _checked_references(ion_radii)
     _draw_reference_bands(ax, refs)
     p, s, acc = data["probe_radius_A"], data["s_A"], data["accessible_radius_A"]
+    passes = data["passes"] if data["passes"] is not None else np.zeros(p.shape, bool)
     vmin, vmax = float(p.min()), float(p.max())
     norm = mpl.colors.Normalize(vmin, vmax if vmax > vmin else vmin + 1)
     cmap = mpl.colormaps[RADIUS_CMAP]
     for k in np.argsort(-p):
         ax.plot(s, acc[k], color=cmap(norm(p[k])), linewidth=0.8, zorder=3)
         stop = data["stop_s_A"][k]
-        if not data["passes"][k] and np.isfinite(stop):
+        if not passes[k] and np.isfinite(stop):
             j = int(np.argmin(np.abs(s - stop)))
             y = acc[k, j] if np.isfinite(acc[k, j]) else p[k]
             ax.plot([stop], [y], marker="o", markersize=2.5, color=cmap(norm(p[k])),
@@ -713,7 +722,7 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     ax.set_ylim(0, max([np.nanmax(acc)] + [v for _, v in refs]) * 1.1)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel("Accessible radius (Å)")
-    if refs or (~data["passes"] & np.isfinite(data["stop_s_A"])).any():
+    if refs or (~passes & np.isfinite(data["stop_s_A"])).any():
         ax.legend(loc="best")
     return _finish(ax)
 
@@ -737,37 +746,57 @@ def match_arrays(match) -> dict:
         if len(iv) != 2:
             raise InputError(f"probe_radius_A_intervals entries must be [low, high], got {iv!r}")
         ivals.append((float(iv[0]), float(iv[1])))
+    ion = d.get("ion") or _lookup(d, ["match.ion"], "match", required=False) or ""
+    refs = []
+    for item in _lookup(d, ["match.ion_radii", "ion_radii"], "match", required=False) or []:
+        if isinstance(item, Mapping) and item.get("radius_A") is not None:
+            kind = str(item.get("kind", ""))
+            kind = "Stokes" if kind.lower() == "stokes" else kind
+            refs.append((f"{_ion_label(str(ion))} {kind} radius {float(item['radius_A']):.2f} Å",
+                         float(item["radius_A"])))
     return {"capture_radius_A": c, "capture_radius_sd_A": _float_or_nan(sd),
             "probe_radius_A_best": _float_or_nan(best), "intervals": ivals,
-            "ion": d.get("ion")}
+            "ion": ion, "ion_radii": refs,
+            "has_curve": _lookup(d, ["match.curve.probe_radius_A"], "match",
+                                 required=False) is not None}
 
 
 @_styled
-def plot_capture(scan, *, match=None, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
+def plot_capture(scan=None, *, match=None, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
                  width_mm: float | None = None, height_mm: float | None = None):
     """Capture radius versus probe radius, with the measured band and the matching probes.
 
     Parameters
     ----------
-    scan : ProbeScan or dict
-        ``capture.probe_radius_A``, ``capture.capture_radius_A``, ``capture.passes``.
+    scan : ProbeScan or dict, optional
+        ``capture.probe_radius_A``, ``capture.capture_radius_A``, ``capture.passes``
+        (and ``capture.enters``). Optional when ``match`` carries the curve it was
+        matched against (``match.curve``).
     match : dict, optional
         A match result or its JSON: ``capture_radius_A`` ± ``capture_radius_sd_A``
         is drawn as a horizontal band, each of ``probe_radius_A_intervals`` as a
-        vertical shaded interval, ``probe_radius_A_best`` as a marked line.
+        vertical shaded interval, ``probe_radius_A_best`` as a marked line, and the
+        ion radii it compared (``match.ion_radii``) as labelled vertical lines.
     ion_radii : sequence of (label, radius_A)
-        Reference probe sizes drawn as labelled vertical lines.
+        Reference probe sizes drawn as labelled vertical lines (instead of the
+        match's ion radii).
 
     Returns
     -------
     Axes
     """
+    if scan is None:
+        if match is None:
+            raise InputError("plot_capture needs a scan, or a match that carries its curve")
+        scan = {"capture": _lookup(as_result_dict(match, "match"), ["match.curve"],
+                                   "match (without a scan)")}
     data = scan_arrays(scan)
     ax = _axes(ax, width_mm, CAPTURE_HEIGHT_MM if height_mm is None and ax is None
                else height_mm)
-    p, c, passes = data["probe_radius_A"], data["capture_radius_A"], data["passes"]
+    p, c = data["probe_radius_A"], data["capture_radius_A"]
     order = np.argsort(p)
     top = float(np.nanmax(c)) if np.isfinite(c).any() else 1.0
+    refs = _checked_references(ion_radii)
     if match is not None:
         m = match_arrays(match)
         mc, msd = m["capture_radius_A"], m["capture_radius_sd_A"]
@@ -783,17 +812,15 @@ def plot_capture(scan, *, match=None, ax=None, ion_radii: Sequence[tuple[str, fl
             ax.axvline(m["probe_radius_A_best"], color=OKABE_ITO["vermillion"], linewidth=0.8,
                        zorder=2, label=f"best p = {m['probe_radius_A_best']:.2f} Å")
         top = max(top, mc + (msd if np.isfinite(msd) else 0))
-    for k, (label, value) in enumerate(_checked_references(ion_radii)):
+        if not refs:
+            refs = m["ion_radii"]
+    for k, (label, value) in enumerate(refs):
         ax.axvline(value, color="0.35", linewidth=0.6,
                    linestyle=LINE_STYLES[(k + 1) % len(LINE_STYLES)], zorder=1, label=label)
     ax.plot(p[order], c[order], color="black", linewidth=LINE_PT, zorder=3)
-    stops = ~passes[order]
-    ax.plot(p[order][stops], c[order][stops], "o", color="black", markersize=2.6, zorder=4,
-            label="probe stops in the pore")
-    if passes.any():
-        ax.plot(p[order][~stops], c[order][~stops], "o", markerfacecolor="white",
-                markeredgecolor="black", markersize=2.6, markeredgewidth=0.6, zorder=4,
-                label="probe passes (bottleneck)")
+    _capture_markers(ax, p[order], c[order],
+                     None if data["passes"] is None else data["passes"][order],
+                     None if data["enters"] is None else data["enters"][order])
     pad = 0.03 * (p.max() - p.min() or 1.0)
     ax.set_xlim(p.min() - pad, p.max() + pad)
     ax.set_ylim(0, top * 1.15)
@@ -801,6 +828,24 @@ def plot_capture(scan, *, match=None, ax=None, ion_radii: Sequence[tuple[str, fl
     ax.set_ylabel("Capture radius c(p) (Å)")
     _legend_below(ax)
     return _finish(ax)
+
+
+def _capture_markers(ax, p, c, passes, enters):
+    """Filled: the probe stops in the pore; open: it passes; cross: it never enters."""
+    if passes is None:
+        ax.plot(p, c, "o", color="black", markersize=2.2, zorder=4, label="scanned probe radii")
+        return
+    enters = np.ones(p.shape, bool) if enters is None else enters
+    groups = [(enters & ~passes, {"color": "black"}, "probe stops in the pore"),
+              (passes, {"markerfacecolor": "white", "markeredgecolor": "black",
+                        "markeredgewidth": 0.6}, "probe passes (bottleneck)"),
+              (~enters & ~passes, {"color": "black", "marker": "x"},
+               "probe does not enter (c = 0)")]
+    for mask, style, label in groups:
+        if mask.any():
+            style = {"marker": "o", **style}
+            ax.plot(p[mask], c[mask], linestyle="none", markersize=2.6, zorder=4, label=label,
+                    **style)
 
 
 # --------------------------------------------------------------------------- resistance
@@ -1019,10 +1064,13 @@ def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,
     if kind == "probes":
         return plot_probes(_one(groups["scan"], "scan", kind), ion_radii=ion_radii, **size)
     if kind == "capture":
-        scan = _one(groups["scan"], "scan", kind)
-        match = groups["match"][0] if groups["match"] else None
         if len(groups["match"]) > 1:
             raise InputError("figure 'capture' takes at most one match JSON")
+        match = groups["match"][0] if groups["match"] else None
+        if not groups["scan"] and match is not None and match_arrays(match)["has_curve"]:
+            scan = None                        # the match carries the curve it matched
+        else:
+            scan = _one(groups["scan"], "scan", kind)
         return plot_capture(scan, match=match, ion_radii=ion_radii, **size)
     if kind == "resistance":
         return plot_resistance(_one(groups["resistance"], "resistance", kind), **size)

@@ -418,3 +418,34 @@ def test_resistance_command_figure_matches_its_json(c4_cylinder_pdb, tmp_path):
     assert all(mpl.colors.to_hex(b.get_facecolor()) == plots.OKABE_ITO["sky_blue"].lower()
                for b in access)
     assert f"{data['conductance_pS']:.3g} pS" in ax.get_title(loc="left")
+
+
+def test_capture_from_a_match_that_carries_its_curve():
+    """A structure-backed match result holds the curve it matched and the ion radii it compared."""
+    match = {"capture_radius_A": 0.9, "capture_radius_sd_A": 0.1, "ion": "K+",
+             "probe_radius_A_best": 1.6, "probe_radius_A_intervals": [[1.5, 1.7]],
+             "match": {"curve": {"probe_radius_A": [1.0, 1.5, 2.0, 2.5],
+                                 "capture_radius_A": [1.5, 1.0, 0.6, 0.0]},
+                       "ion_radii": [{"kind": "crystal", "radius_A": 1.38},
+                                     {"kind": "hydrated", "radius_A": 3.31}]}}
+    ax = plots.draw_figure("capture", [match])
+    curve = next(ln for ln in ax.lines if len(ln.get_xdata()) == 4
+                 and ln.get_linestyle() == "-")
+    np.testing.assert_allclose(curve.get_ydata(), [1.5, 1.0, 0.6, 0.0])
+    refs = {ln.get_label(): ln.get_xdata()[0] for ln in ax.lines if "radius" in ln.get_label()}
+    assert refs == {"K⁺ crystal radius 1.38 Å": 1.38, "K⁺ hydrated radius 3.31 Å": 3.31}
+    assert ax.get_xlim()[0] <= 1.0 and ax.get_xlim()[1] >= 2.5
+    with pytest.raises(InputError, match="needs exactly one scan"):
+        plots.draw_figure("capture", [{"capture_radius_A": 0.9, "capture_radius_sd_A": 0.1}])
+
+
+def test_capture_marks_probes_that_stop_pass_or_never_enter(scan):
+    data = json.loads(json.dumps(scan))
+    data["capture"]["enters"] = [True] * (len(data["capture"]["passes"]) - 1) + [False]
+    ax = plots.plot_capture(data)
+    marks = {ln.get_label(): ln.get_xdata() for ln in ax.lines if ln.get_linestyle() == "None"}
+    p = np.array(scan["capture"]["probe_radius_A"])
+    passes = np.array(scan["capture"]["passes"])
+    np.testing.assert_allclose(marks["probe passes (bottleneck)"], p[passes])
+    np.testing.assert_allclose(marks["probe stops in the pore"], p[~passes][:-1])
+    np.testing.assert_allclose(marks["probe does not enter (c = 0)"], p[-1:])
