@@ -490,30 +490,45 @@ def _annotate_constriction(ax, s_A, radius_A, residues):
 
 # --------------------------------------------------------------------------- overlay
 
+#: Where a trajectory result keeps each array (the traj command's layout first).
+_TRAJ_KEYS = {
+    "s_A": ["s_A"],
+    "radius_A": ["per_frame.radius_A", "radius_A"],
+    "mean_A": ["per_plane.mean_radius_A", "mean_radius_A"],
+    "sd_A": ["per_plane.sd_radius_A", "sd_radius_A"],
+    "time_ps": ["per_frame.time_ps", "time_ps"],
+    "frames": ["per_frame.frame", "frames"],
+}
+
+
 def trajectory_arrays(trajectory) -> dict:
-    """s grid, per-frame radii, mean and SD of a trajectory result or its JSON."""
+    """s grid, per-frame radii, mean and SD of a trajectory result or its JSON.
+
+    Reads ``s_A``, ``per_frame.radius_A`` (frames x levels), ``per_plane.mean_radius_A``
+    and ``per_plane.sd_radius_A``, ``per_frame.time_ps`` and ``per_frame.frame`` (or
+    the same names at the top level). Mean and SD are computed from the frames when
+    absent (NaN where fewer than two frames are enclosed).
+    """
     d = as_result_dict(trajectory, "trajectory")
-    s = _floats(_lookup(d, ["s_A", "profile.s_A", "results.s_A"], "trajectory"), "s_A")
-    radius = _lookup(d, ["radius_A", "results.radius_A", "frames_radius_A"], "trajectory",
-                     required=False)
-    radius = None if radius is None else _floats(radius, "radius_A (frames x levels)", 2)
+    found = {k: _lookup(d, paths, "trajectory", required=k == "s_A")
+             for k, paths in _TRAJ_KEYS.items()}
+    s = _floats(found["s_A"], "s_A")
+    radius = found["radius_A"]
+    radius = None if radius is None else _floats(radius, "per_frame.radius_A (frames x levels)",
+                                                  2)
     if radius is not None:
-        _same_length("s_A", s, "radius_A", radius)
-    mean = _lookup(d, ["mean_radius_A", "radius_mean_A", "results.mean_radius_A"],
-                   "trajectory", required=False)
-    sd = _lookup(d, ["sd_radius_A", "radius_sd_A", "results.sd_radius_A"], "trajectory",
-                 required=False)
+        _same_length("s_A", s, "per_frame.radius_A", radius)
+    mean, sd = found["mean_A"], found["sd_A"]
     if mean is None or sd is None:
         if radius is None:
-            raise InputError("trajectory JSON holds neither per-frame radius_A nor "
-                             "mean_radius_A and sd_radius_A")
+            raise InputError("trajectory JSON holds neither per_frame.radius_A nor "
+                             "per_plane.mean_radius_A and per_plane.sd_radius_A")
         mean, sd = _nan_mean_sd(radius)
     mean, sd = _floats(mean, "mean_radius_A"), _floats(sd, "sd_radius_A")
     _same_length("s_A", s, "mean_radius_A", mean)
     _same_length("s_A", s, "sd_radius_A", sd)
-    n = radius.shape[0] if radius is not None else None
-    time = _lookup(d, ["time_ps", "times_ps", "results.time_ps"], "trajectory", required=False)
-    frames = _lookup(d, ["frames", "frame", "results.frames"], "trajectory", required=False)
+    n = radius.shape[0] if radius is not None else d.get("n_frames")
+    time, frames = found["time_ps"], found["frames"]
     return {"s_A": s, "radius_A": radius, "mean_A": mean, "sd_A": sd, "n_frames": n,
             "time_ps": None if time is None else _floats(time, "time_ps"),
             "frames": None if frames is None else _floats(frames, "frames"),
@@ -533,11 +548,10 @@ def _nan_mean_sd(radius: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _is_trajectory(d: Mapping) -> bool:
-    return _lookup(d, ["mean_radius_A", "radius_mean_A", "results.mean_radius_A"], "",
-                   required=False) is not None or (
-        "profile" not in d and _lookup(d, ["radius_A", "results.radius_A"], "",
-                                       required=False) is not None
-        and np.ndim(_lookup(d, ["radius_A", "results.radius_A"], "")) == 2)
+    if "profile" in d or "s_A" not in d:
+        return False
+    return any(_lookup(d, _TRAJ_KEYS[k], "", required=False) is not None
+               for k in ("radius_A", "mean_A"))
 
 
 def common_grid(profiles: Sequence[dict]) -> tuple[np.ndarray, np.ndarray]:

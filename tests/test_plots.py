@@ -48,7 +48,7 @@ def _nulls(arr):
 
 @pytest.fixture(scope="module")
 def scan():
-    """A probe-size scan in the documented JSON layout (values invented for the test)."""
+    """A probe-size scan in the scan command's JSON layout (values invented for the test)."""
     s = np.arange(-10, 10.01, 0.5)
     p = np.arange(0.5, 3.01, 0.5)
     free = 2.0 + 4.0 * (s / 10) ** 2
@@ -66,7 +66,8 @@ def scan():
         cap.append(max(0.0, 2.5 - pr))
     return {"capture": {"probe_radius_A": p.tolist(), "capture_radius_A": cap,
                         "stop_s_A": _nulls(np.array(stop)), "passes": passes},
-            "s_A": s.tolist(), "accessible_radius_A": _nulls(np.array(acc)),
+            "profiles": {"s_A": s.tolist(), "probe_radius_A": p.tolist(),
+                         "accessible_radius_A": _nulls(np.array(acc))},
             "radius_set": "bondi", "source": "scan fixture"}
 
 
@@ -94,8 +95,9 @@ def trajectory():
     radius = np.array([2.0 + 0.5 * np.sin(f / 3) + 3 * (s / 8) ** 2
                        + 0.1 * rng.standard_normal(len(s)) for f in range(12)])
     radius[:, :2] = np.nan                                   # open at the low end
-    return {"s_A": s.tolist(), "radius_A": _nulls(radius),
-            "time_ps": (np.arange(12) * 50.0).tolist(), "source": "trajectory fixture"}
+    return {"s_A": s.tolist(), "n_frames": 12, "source": "trajectory fixture",
+            "per_frame": {"frame": list(range(12)), "time_ps": (np.arange(12) * 50.0).tolist(),
+                          "radius_A": _nulls(radius)}}
 
 
 @pytest.fixture(scope="module")
@@ -253,7 +255,7 @@ def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, traj
     assert ax.get_xlim() == pytest.approx((s[0], s[-1]))
 
     ax = plots.plot_overlay([trajectory])
-    radius = np.array(trajectory["radius_A"], dtype=float)
+    radius = np.array(trajectory["per_frame"]["radius_A"], dtype=float)
     mean = ax.lines[0].get_ydata()
     np.testing.assert_allclose(mean[2:], radius[:, 2:].mean(0))
     assert ax.lines[0].get_label().endswith("mean of 12 frames")
@@ -263,8 +265,9 @@ def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, traj
 def test_probe_axes_carry_every_probe_and_colour_range(scan):
     ax = plots.plot_probes(scan)
     p = np.array(scan["capture"]["probe_radius_A"])
-    acc = np.array(scan["accessible_radius_A"], dtype=float)
-    profile_lines = [ln for ln in ax.lines if len(ln.get_xdata()) == len(scan["s_A"])]
+    acc = np.array(scan["profiles"]["accessible_radius_A"], dtype=float)
+    s = scan["profiles"]["s_A"]
+    profile_lines = [ln for ln in ax.lines if len(ln.get_xdata()) == len(s)]
     assert len(profile_lines) == len(p)
     drawn = sorted(tuple(np.nan_to_num(ln.get_ydata(), nan=-1)) for ln in profile_lines)
     assert drawn == sorted(tuple(np.nan_to_num(row, nan=-1)) for row in acc)
@@ -273,7 +276,7 @@ def test_probe_axes_carry_every_probe_and_colour_range(scan):
     stops = [ln for ln in ax.lines if len(ln.get_xdata()) == 1]
     assert sorted(float(ln.get_xdata()[0]) for ln in stops) == pytest.approx(
         sorted(_finite(scan["capture"]["stop_s_A"])))
-    assert ax.get_xlim() == pytest.approx((scan["s_A"][0], scan["s_A"][-1]))
+    assert ax.get_xlim() == pytest.approx((s[0], s[-1]))
     assert ax.get_ylim()[1] >= np.nanmax(acc)
 
 
@@ -311,12 +314,12 @@ def test_resistance_axes_carry_segments(resistance):
 def test_kymograph_axes_carry_frames_levels_and_radius_range(trajectory):
     ax = plots.plot_kymograph(trajectory)
     mesh = ax.collections[0]
-    radius = np.array(trajectory["radius_A"], dtype=float)
+    radius = np.array(trajectory["per_frame"]["radius_A"], dtype=float)
     np.testing.assert_allclose(np.ma.filled(mesh.get_array(), np.nan).reshape(radius.T.shape),
                                radius.T, equal_nan=True)
     assert (mesh.norm.vmin, mesh.norm.vmax) == pytest.approx((np.nanmin(radius),
                                                                np.nanmax(radius)))
-    t_ns = np.array(trajectory["time_ps"]) / 1000
+    t_ns = np.array(trajectory["per_frame"]["time_ps"]) / 1000
     lo, hi = ax.get_xlim()
     assert lo <= t_ns[0] and hi >= t_ns[-1]
     lo, hi = ax.get_ylim()
