@@ -363,8 +363,9 @@ def ion_reference_radii(ions: Sequence[str] | str | None,
         for kind in kinds:
             kind = check_choice(kind.strip(), "ion radius kind", ION_RADIUS_KINDS)
             value = getattr(ion, f"{kind}_radius_A")
-            name = "Stokes" if kind == "stokes" else kind
-            out.append((f"{_ion_label(ion.symbol)} {name} radius {value:.2f} Å", float(value)))
+            kind_label = "Stokes" if kind == "stokes" else kind
+            out.append((f"{_ion_label(ion.symbol)} {kind_label} radius {value:.2f} Å",
+                        float(value)))
     return out
 
 
@@ -425,8 +426,9 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
     ax : Axes, optional
         Draw here; a new one-column figure otherwise.
     ion_radii : sequence of (label, radius_A)
-        Reference radii drawn as labelled bands from 0 to the radius, e.g. from
-        :func:`ion_reference_radii`.
+        Reference radii, e.g. from :func:`ion_reference_radii`, drawn as labelled
+        bands stacked from 0 (0 to the smallest, then up to the next, ...), each
+        edged by a line at its radius.
     constrictions : sequence of dict, optional
         Constrictions to annotate, each with ``s_A``, ``radius_A`` and ``residues``
         (residue labels). Default: the narrowest point of the profile and the
@@ -463,7 +465,6 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
                                list(c.get("residues") or ()))
     if np.isfinite(r).any() and (~np.isfinite(r)).any():
         ax.fill_between([], [], color=OPEN_COLOR, alpha=0.5, label="open to bulk")
-    ax.set_xlim(s[0], s[-1])
     ax.set_ylim(0, top * 1.18)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel(RADIUS_LABEL)
