@@ -31,6 +31,7 @@ import numpy as np
 from poreprobe._validate import as_unit_vector, as_vector3, check_choice
 from poreprobe.errors import InputError
 from poreprobe.structure import Atoms, select_indices
+from poreprobe.superpose import kabsch_rotation, rotate_about, rotation_axis_angle
 
 AXIS_METHODS = ("auto", "symmetry", "principal", "user", "selections")
 BACKBONE = ("N", "CA", "C")
@@ -106,30 +107,6 @@ class PoreAxis:
                 "symmetry_rmsd_A": self.symmetry_rmsd_A, "oriented_by": self.oriented_by}
 
 
-def _kabsch(mobile: np.ndarray, target: np.ndarray) -> np.ndarray:
-    """Rotation R minimising |R (mobile - mean) - (target - mean)|."""
-    a = mobile - mobile.mean(0)
-    b = target - target.mean(0)
-    u, _, vt = np.linalg.svd(a.T @ b)
-    sign = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
-    return vt.T @ np.diag([1.0, 1.0, sign]) @ u.T
-
-
-def _rotation_axis(rot: np.ndarray) -> tuple[np.ndarray, float]:
-    """Unit axis and angle (rad) of a rotation matrix (robust at 180 degrees)."""
-    vals, vecs = np.linalg.eigh(0.5 * (rot + rot.T))
-    axis = vecs[:, int(np.argmax(vals))]
-    angle = float(np.arccos(np.clip((np.trace(rot) - 1) / 2, -1, 1)))
-    return axis, angle
-
-
-def _rotate_about(points, point, axis, angle):
-    k = axis / np.linalg.norm(axis)
-    rel = points - point
-    cos, sin = np.cos(angle), np.sin(angle)
-    return (point + rel * cos + np.cross(k, rel) * sin + np.outer(rel @ k, k) * (1 - cos))
-
-
 def equivalent_chains(atoms: Atoms) -> tuple[list[str], np.ndarray]:
     """The largest group of chains with identical polymer sequence.
 
@@ -173,7 +150,7 @@ def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
     centre = matched.reshape(-1, 3).mean(0)
     axes, weights = [], []
     for k in range(1, n):
-        axis, angle = _rotation_axis(_kabsch(matched[0], matched[k]))
+        axis, angle = rotation_axis_angle(kabsch_rotation(matched[0], matched[k]))
         axes.append(axis)
         weights.append(max(np.sin(angle / 2), 1e-6))
     ref = axes[int(np.argmax(weights))]
@@ -183,7 +160,7 @@ def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
     for k in range(1, n):
         best = np.inf
         for m in range(1, n):
-            moved = _rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
+            moved = rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
             best = min(best, float(np.sqrt(((moved - matched[k]) ** 2).sum(1).mean())))
         deviations.append(best)
     return PoreAxis(centre, direction, f"symmetry C{n}", n_fold=n,
