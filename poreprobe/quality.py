@@ -43,8 +43,9 @@ Checks (codes)
     heavy-atom pairs closer than ``clash_fraction`` of their radius sum
     (:mod:`poreprobe.clashes`, default 0.75).
 ``water-in-pore``, ``ion-in-pore``, ``hetero-in-pore``
-    non-polymer atoms inside the pore (centre within a profile sphere's radius
-    plus the lining distance), whether counted as walls or not.
+    non-polymer atoms inside the pore: when not counted as walls, the atom's
+    centre lies within a profile sphere's radius plus the lining distance; when
+    counted as walls, the atom lines the pore like a wall atom.
 ``hydrogens-absent``, ``hydrogens-present``, ``hydrogens-partial``
     what the hydrogens mean for the radius set.
 ``single-chain``, ``uniform-b-factors``, ``verdict-depends-on-settings``.
@@ -211,7 +212,9 @@ class QualityReport:
     walls : tuple of str
         Atom kinds counted as pore walls.
     hydrogens : bool
-        Whether hydrogens were counted in the main profile.
+        Whether hydrogens (if any) were counted in the main profile.
+    model_has_hydrogens : bool
+        Whether the model's wall atoms include hydrogens at all.
     settings : dict
         Distances, thresholds and fractions used.
     notes : tuple of str
@@ -227,6 +230,7 @@ class QualityReport:
     symmetry: SubunitDeviation | None
     walls: tuple[str, ...]
     hydrogens: bool
+    model_has_hydrogens: bool
     settings: dict
     notes: tuple[str, ...] = ()
     source: str = ""
@@ -246,6 +250,7 @@ class QualityReport:
             "version": self.version, "source": self.source,
             "caveat": "model-based estimates, not measurements",
             "radius_set": prof.radius_set, "hydrogens": self.hydrogens,
+            "model_has_hydrogens": self.model_has_hydrogens,
             "walls": list(self.walls), "settings": dict(self.settings),
             "axis": prof.axis.to_dict(),
             "min_radius_A": prof.min_radius_A, "min_s_A": prof.min_s_A,
@@ -260,7 +265,7 @@ class QualityReport:
         }
 
     def _hydrogen_text(self) -> str:
-        if not any(r.hydrogens == "in" and r.min_radius_A is not None for r in self.sensitivity):
+        if not self.model_has_hydrogens:
             return "no hydrogens in the model"
         return "hydrogens counted" if self.hydrogens else "hydrogens left out"
 
@@ -541,7 +546,7 @@ _CONTENT_TEXT = {
 }
 
 
-def _check_contents(atoms, walls, profile, lining_distance_A) -> list[Finding]:
+def _check_contents(atoms, radii_A, walls, profile, lining_distance_A) -> list[Finding]:
     out = []
     ok = np.flatnonzero(np.isfinite(profile.radius_A))
     if not len(ok):
@@ -550,7 +555,7 @@ def _check_contents(atoms, walls, profile, lining_distance_A) -> list[Finding]:
     labels = atoms.residue_labels()
     s_all = profile.axis.s_A(atoms.coords_A)
     tree = cKDTree(centres)
-    reach = float(radius.max()) + lining_distance_A
+    reach = float(radius.max()) + lining_distance_A + float(radii_A.max())
     for kind, (code, severity, noun, meaning) in _CONTENT_TEXT.items():
         rows = np.flatnonzero(atoms.kind == kind)
         if not len(rows):
@@ -560,13 +565,16 @@ def _check_contents(atoms, walls, profile, lining_distance_A) -> list[Finding]:
         rows = rows[dist <= reach]
         if not len(rows):
             continue
+        counted = kind in walls
+        # not counted: centre inside a sphere grown by the lining distance; counted as
+        # walls: the atom lines the pore like any wall atom
+        own = radii_A[rows, None] if counted else 0.0
         d = np.linalg.norm(atoms.coords_A[rows, None, :] - centres[None], axis=2)
-        inside = (d <= radius[None] + lining_distance_A).any(1)
+        inside = (d - own <= radius[None] + lining_distance_A).any(1)
         if not inside.any():
             continue
         found = tuple(dict.fromkeys(labels[rows[inside]].tolist()))
         s_in = s_all[rows[inside]]
-        counted = kind in walls
         how = ("They are counted as pore walls, so the radius there is measured past them."
                if counted else
                f"They are not counted as pore walls (count them with walls including "
@@ -789,7 +797,7 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
     findings += _check_chain_breaks(atoms, residues, region)
     findings += _check_symmetry(sym, region, sym_tol)
     findings += _check_clashes(atoms, radii_all, region, clash_fraction, rset.name)
-    findings += _check_contents(atoms, walls, main, lining_d)
+    findings += _check_contents(atoms, radii_all, walls, main, lining_d)
     findings += _check_hydrogens(atoms, rset.name)
     if len(np.unique(atoms.chain[poly])) == 1:
         findings.append(Finding(
@@ -819,6 +827,7 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
     report = QualityReport(
         findings=_sorted(findings), lining=lining, profile=main, verdict=verdict,
         sensitivity=sensitivity, symmetry=sym, walls=walls, hydrogens=bool(hydrogens),
+        model_has_hydrogens=bool((atoms.is_hydrogen & np.isin(atoms.kind, walls)).any()),
         settings={"lining_distance_A": lining_d, "near_distance_A": near,
                   "constriction_radius_A": float(constriction_radius_A),
                   "clash_fraction": float(clash_fraction), "b_factor_sigmas": sigmas,

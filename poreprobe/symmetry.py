@@ -4,19 +4,21 @@ Method
 ------
 1. The largest group of chains with the same sequence (see
    :func:`poreprobe.axis.equivalent_chains`) is taken as n equivalent subunits;
-   residues are matched by their order in the chain, atoms by name (heavy atoms
-   present in every subunit).
+   residues are matched through the sequence alignment
+   (:func:`poreprobe.axis.aligned_residues`: residues missing from any subunit
+   are skipped), atoms by name (heavy atoms present in every subunit).
 2. The n-fold axis direction comes from the rotations that superpose the first
    subunit's backbone onto each other one (:func:`poreprobe.axis.symmetry_axis`);
    each subunit k is assigned the ideal angle ``2 pi m_k / n`` nearest to its
    superposition angle.
 3. Each subunit is rotated back by its ideal angle about the axis onto the first
-   one's place; the per-atom median over the subunits is the consensus. The axis
-   position is then refitted by least squares to the subunits within twice the
-   median deviation (at least half of them), and steps 3-4 are repeated. The
-   median and the refit make the consensus robust: one displaced subunit does not
-   drag the consensus (or the axis) towards itself, so the deviation shows up in
-   that subunit alone.
+   one's place; the per-atom median over the subunits is the consensus. The
+   axis position is fitted by least squares to all subunits and, in turn, to all
+   but one; the fit whose n - 1 best subunits deviate least is kept, then refitted
+   to the subunits within twice the median deviation. The median and the
+   trimmed fit make the consensus robust: one displaced subunit does not drag the
+   consensus (or the axis) towards itself, so the deviation shows up in that
+   subunit alone.
 4. The deviation of residue j of subunit k is the RMS distance of its matched
    heavy atoms from the consensus (Å). Chemically equivalent atom pairs (e.g. PHE
    CD1/CD2, ASP OD1/OD2) are swapped where that matches the consensus better.
@@ -31,7 +33,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from poreprobe.axis import equivalent_chains, symmetry_axis
+from poreprobe.axis import aligned_residues, equivalent_chains, symmetry_axis
 from poreprobe.residues import EQUIVALENT_ATOM_PAIRS, standard_name
 from poreprobe.structure import Atoms
 from poreprobe.superpose import (
@@ -91,32 +93,30 @@ class SubunitDeviation:
                 "chain_rmsd_A": self.chain_rmsd_A.tolist()}
 
 
-def _residues_in_order(atoms: Atoms, chain: str):
-    """[(label, resname, {atom name: row index})] for residues with a CA, in file order."""
-    sel = np.flatnonzero((atoms.chain == chain) & (atoms.kind == "polymer") & ~atoms.is_hydrogen)
-    out: dict[tuple, dict] = {}
-    for i in sel:
-        key = (int(atoms.resid[i]), str(atoms.icode[i]))
-        entry = out.setdefault(key, {"resname": str(atoms.resname[i]), "atoms": {}})
-        entry["atoms"].setdefault(str(atoms.name[i]), i)
-    labels = atoms.residue_labels()
-    return [(str(labels[next(iter(v["atoms"].values()))]), v["resname"], v["atoms"])
-            for v in out.values() if "CA" in v["atoms"]]
-
-
 def _matched_atoms(atoms: Atoms, chains: list[str]):
-    """Row indices (n_chains, m), residue ordinal per column, labels per chain and residue."""
-    per_chain = [_residues_in_order(atoms, ch) for ch in chains]
-    n_res = min(len(p) for p in per_chain)
-    columns, ordinal = [], []
-    for j in range(n_res):
-        names = [n for n in per_chain[0][j][2] if all(n in p[j][2] for p in per_chain[1:])]
-        for name in names:
-            columns.append([p[j][2][name] for p in per_chain])
-            ordinal.append(j)
-    labels = tuple(tuple(p[j][0] for j in range(n_res)) for p in per_chain)
-    resnames = [per_chain[0][j][1] for j in range(n_res)]
-    return np.array(columns, dtype=np.int64).T, np.array(ordinal), labels, resnames
+    """Row indices (n_chains, m), residue column per atom, labels per chain and residue."""
+    columns = aligned_residues(atoms, chains)
+    heavy_poly = (atoms.kind == "polymer") & ~atoms.is_hydrogen
+    lookup = []
+    for ch in chains:
+        rows = np.flatnonzero(heavy_poly & (atoms.chain == ch))
+        table: dict[tuple, dict[str, int]] = {}
+        for i, r, ic, name in zip(rows, atoms.resid[rows].tolist(), atoms.icode[rows].tolist(),
+                                  atoms.name[rows].tolist(), strict=True):
+            table.setdefault((r, ic), {}).setdefault(name, int(i))
+        lookup.append(table)
+    rows_out, ordinal = [], []
+    for j in range(len(columns[0])):
+        per_chain = [lookup[k][columns[k][j]] for k in range(len(chains))]
+        for name in per_chain[0]:
+            if all(name in p for p in per_chain[1:]):
+                rows_out.append([p[name] for p in per_chain])
+                ordinal.append(j)
+    all_labels = atoms.residue_labels()
+    labels = tuple(tuple(str(all_labels[next(iter(lookup[k][key].values()))])
+                         for key in columns[k]) for k in range(len(chains)))
+    resnames = [str(atoms.resname[next(iter(lookup[0][key].values()))]) for key in columns[0]]
+    return np.array(rows_out, dtype=np.int64).T, np.array(ordinal), labels, resnames
 
 
 def _swap_columns(atoms: Atoms, rows: np.ndarray, ordinal: np.ndarray, resnames):
@@ -157,15 +157,24 @@ def _fit_centre(coords, angles, direction, keep, centre):
     return sol - (sol @ direction) * direction + (centre @ direction) * direction
 
 
-def subunit_deviation(atoms: Atoms, *, iterations: int = 3) -> SubunitDeviation | None:
+def _swap_equivalent_atoms(coords, centre, direction, angles, swaps) -> None:
+    """Rename chemically equivalent atom pairs in place where that matches subunit 0 better."""
+    n = coords.shape[0]
+    for _j, a, b in swaps:
+        ref = coords[0, [a, b]]
+        for k in range(1, n):
+            back = rotate_about(coords[k, [a, b]], centre, direction, -angles[k])
+            if np.linalg.norm(back[::-1] - ref) < np.linalg.norm(back - ref):
+                coords[k, [a, b]] = coords[k, [b, a]]
+
+
+def subunit_deviation(atoms: Atoms) -> SubunitDeviation | None:
     """Per-residue deviation of equivalent subunits from their symmetric consensus.
 
     Parameters
     ----------
     atoms : Atoms
         The model (polymer atoms are used; hydrogens are ignored).
-    iterations : int
-        Rounds of consensus and axis refit (see module docstring).
 
     Returns
     -------
@@ -190,30 +199,32 @@ def subunit_deviation(atoms: Atoms, *, iterations: int = 3) -> SubunitDeviation 
         rot = kabsch_rotation(coords[0][backbone], coords[k][backbone])
         angles[k] = step * np.round(signed_rotation_angle(rot, direction) / step)
     swaps = _swap_columns(atoms, rows, ordinal, resnames)
-    keep = np.ones(n, dtype=bool)
-    for _ in range(max(int(iterations), 1)):
-        mapped = np.stack([rotate_about(coords[k], centre, direction, -angles[k])
-                           for k in range(n)])
-        for _j, a, b in swaps:
-            for k in range(1, n):
-                same = np.linalg.norm(mapped[k, [a, b]] - mapped[0, [a, b]])
-                swapped = np.linalg.norm(mapped[k, [b, a]] - mapped[0, [a, b]])
-                if swapped < same:
-                    mapped[k, [a, b]] = mapped[k, [b, a]]
-                    coords[k, [a, b]] = coords[k, [b, a]]
-        template = np.median(mapped, axis=0)
-        per_atom = np.linalg.norm(mapped - template, axis=2)           # (n, m)
-        chain_rmsd = np.sqrt((per_atom**2).mean(1))
-        med = float(np.median(chain_rmsd))
-        keep = chain_rmsd <= max(2.0 * med, med + 1e-6)
-        if keep.sum() < (n + 1) // 2:
-            keep = chain_rmsd <= np.sort(chain_rmsd)[(n + 1) // 2 - 1]
-        if keep.sum() < 2:
-            break
-        centre = _fit_centre(coords, angles, direction, keep, centre)
-    mapped = np.stack([rotate_about(coords[k], centre, direction, -angles[k]) for k in range(n)])
-    template = np.median(mapped, axis=0)
-    per_atom = np.linalg.norm(mapped - template, axis=2)
+    _swap_equivalent_atoms(coords, centre, direction, angles, swaps)
+
+    def deviations(c):
+        mapped = np.stack([rotate_about(coords[k], c, direction, -angles[k]) for k in range(n)])
+        return np.linalg.norm(mapped - np.median(mapped, axis=0), axis=2)    # (n, m)
+
+    def score(c):
+        rms = np.sqrt((deviations(c) ** 2).mean(1))
+        return float(np.sort(rms**2)[: max(n - 1, 1)].sum()), rms
+
+    # candidate axis points: fitted to all subunits and to all but one (a displaced
+    # subunit must not drag the axis); the best trimmed score wins, then one refit to
+    # the subunits within twice the median deviation
+    subsets = [np.ones(n, dtype=bool)]
+    if n >= 3:
+        subsets += [np.arange(n) != k for k in range(n)]
+    fits = [(score(c), c) for c in (_fit_centre(coords, angles, direction, keep, centre)
+                                    for keep in subsets)]
+    (best_score, rms), centre = min(fits, key=lambda f: f[0][0])
+    med = float(np.median(rms))
+    keep = rms <= max(2.0 * med, med + 1e-9)
+    if keep.sum() >= 2:
+        refit = _fit_centre(coords, angles, direction, keep, centre)
+        if score(refit)[0] <= best_score:
+            centre = refit
+    per_atom = deviations(centre)
     n_res = len(labels[0])
     sums = np.zeros((n, n_res))
     counts = np.bincount(ordinal, minlength=n_res)

@@ -4,9 +4,10 @@ Backbone from internal coordinates (alpha-helix phi/psi, standard bond lengths a
 angles); side chains from the PDB Chemical Component Dictionary's ideal
 coordinates (bundled with biotite), placed on each residue's N, CA, C; each side
 chain takes, from a few staggered (chi1, chi2) choices, the one farthest from the
-atoms already placed (so the model has no steric clashes). Every number below is common practice from
-memory (not checked against a source): bond lengths and angles of the peptide
-backbone (Engh & Huber 1991 values), phi = -57.8 deg, psi = -47.0 deg.
+atoms already placed (so the model has no steric clashes). Every number below
+is common practice from memory (not checked against a source): bond lengths and
+angles of the peptide backbone (Engh & Huber 1991 values), phi = -57.8 deg,
+psi = -47.0 deg.
 
 The helices run parallel to z with their axes ``helix_offset_A`` from the pore
 axis, each turned so that residue ``facing`` points at the axis; chains A, B, C, D
@@ -76,7 +77,7 @@ def _backbone(n_res: int) -> dict[str, np.ndarray]:
     return out
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _template(resname: str):
     """CCD ideal heavy atoms (and hydrogens) of a residue, with its bond graph."""
     import biotite.structure.info as info
