@@ -254,6 +254,7 @@ class QualityReport:
             "walls": list(self.walls), "settings": dict(self.settings),
             "axis": prof.axis.to_dict(),
             "min_radius_A": prof.min_radius_A, "min_s_A": prof.min_s_A,
+            "profile": prof.to_dict()["profile"],
             "lining": [r.to_dict() for r in self.lining.residues],
             "constrictions": [c.to_dict() for c in self.lining.constrictions],
             "findings": [f.to_dict() for f in self.findings],
