@@ -57,7 +57,10 @@ The narrowest radius is compared with the chosen ion's crystal radius
 :mod:`poreprobe.ions`: ``"hydrated"`` (admits the hydrated ion), ``"dehydrated"``
 (admits only the bare ion) or ``"closed"`` (admits neither). The minimum radius
 is recomputed with every radius set and with hydrogens in and out (the
-sensitivity table); the verdict is called robust when all of them agree.
+sensitivity table); the verdict is called robust when all of them agree, and
+borderline when the narrowest radius lies within 0.25 Å of either ion radius
+(our choice: less than the thermal motion of wall atoms, whose RMS displacement
+``sqrt(B / 8 pi^2)`` is 0.5 Å for B = 20 Å², common practice).
 
 Everything here is an estimate from a model, not a measurement.
 """
@@ -96,7 +99,8 @@ B_FACTOR_SIGMAS = 3.0
 SYMMETRY_TOLERANCE_A = 1.0
 PEPTIDE_BREAK_A = 2.0
 CA_BREAK_A = 4.2
-TERMINAL_CAPS = frozenset({"ACE", "NME", "NH2", "NMA", "FOR"})
+TERMINAL_CAPS = frozenset({"ACE", "NME", "NH2", "NMA", "FOR", "ETA"})
+BORDERLINE_A = 0.25
 VERDICTS = ("hydrated", "dehydrated", "closed")
 
 
@@ -174,6 +178,9 @@ class PermeationVerdict:
     message : str
     robust : bool
         True when every sensitivity row gives the same verdict.
+    margin_A : float
+        Distance of the narrowest radius from the nearer ion radius (Å); below
+        0.25 Å the verdict is called borderline.
     """
 
     ion: str
@@ -184,9 +191,16 @@ class PermeationVerdict:
     verdict: str
     message: str
     robust: bool
+    margin_A: float
+
+    @property
+    def borderline(self) -> bool:
+        """True when the narrowest radius is within 0.25 Å of an ion radius."""
+        return self.margin_A < BORDERLINE_A
 
     def to_dict(self) -> dict:
-        return {"ion": self.ion, "crystal_radius_A": self.crystal_radius_A,
+        return {"ion": self.ion, "margin_A": self.margin_A, "borderline": self.borderline,
+                "crystal_radius_A": self.crystal_radius_A,
                 "hydrated_radius_A": self.hydrated_radius_A,
                 "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
                 "verdict": self.verdict, "message": self.message, "robust": self.robust,
@@ -632,6 +646,12 @@ def classify(min_radius_A: float, ion: Ion) -> str:
     return "closed"
 
 
+def borderline_margin_A(min_radius_A: float, ion: Ion) -> float:  # noqa: N802 (unit suffix)
+    """Distance (Å) from the narrowest radius to the nearer of the ion's two radii."""
+    return float(min(abs(min_radius_A - ion.crystal_radius_A),
+                     abs(min_radius_A - ion.hydrated_radius_A)))
+
+
 def _verdict_text(verdict, ion, r_min, s_min, robust, rows) -> str:
     where = f"the narrowest point (radius {r_min:.2f} Å at s = {s_min:.1f} Å)"
     text = {
@@ -646,6 +666,11 @@ def _verdict_text(verdict, ion, r_min, s_min, robust, rows) -> str:
                   "pore cannot pass the ion (a closed gate, or a model packed too tightly).",
     }[verdict]
     text = text[0].upper() + text[1:]
+    margin = borderline_margin_A(r_min, ion)
+    if margin < BORDERLINE_A:
+        text += (f" This is borderline: the narrowest radius is within {margin:.2f} Å of the "
+                 "ion's radius, less than the thermal motion of the wall atoms (B = 20 Å² "
+                 "means 0.5 Å RMS), so a flexing pore may well decide otherwise.")
     verdicts = {r.verdict for r in rows if r.verdict}
     if robust:
         text += " The verdict is the same with every radius set and with hydrogens in and out."
@@ -816,7 +841,7 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
         min_s_A=float(main.min_s_A), verdict=verdict_code,
         message=_verdict_text(verdict_code, ion_rec, main.min_radius_A, main.min_s_A, robust,
                               sensitivity),
-        robust=robust)
+        robust=robust, margin_A=borderline_margin_A(main.min_radius_A, ion_rec))
     if not robust:
         findings.append(Finding(
             "medium", "verdict-depends-on-settings",

@@ -260,3 +260,23 @@ def test_bad_input(clean):
         check_model(clean, clash_fraction=2.0)
     with pytest.raises(InputError, match="no polymer"):
         check_model(replace(clean, kind=np.full(len(clean), "hetero")))
+
+
+def test_published_gramicidin_model():
+    """A real deposited channel (gramicidin A dimer from MDAnalysisTests' data folder)."""
+    import os
+
+    tests_pkg = pytest.importorskip("MDAnalysisTests")
+    path = os.path.join(os.path.dirname(tests_pkg.__file__), "data", "1grm_single.pdb")
+    atoms = read_structure(path, waters=True, ions=True, hetero=True)
+    report = check_model(atoms, warn=False)
+    # gramicidin A is a single-file pore about 4 Å across (Finkelstein & Andersen 1981,
+    # J. Membr. Biol. 59:155): no room for a hydrated K+ (3.31 Å, Nightingale 1959)
+    assert 1.0 < report.profile.min_radius_A < 2.0
+    assert report.verdict.verdict != "hydrated"
+    # K+ conducts through gramicidin, yet the static heavy-atom profile comes within a few
+    # hundredths of an Å of its crystal radius (1.38 Å, Shannon 1976): flagged as borderline
+    assert report.verdict.borderline
+    # formyl and ethanolamine caps are not reported as non-standard residues
+    assert not report.by_code("nonstandard-residue")
+    assert {f.code for f in report.findings} == {"hydrogens-absent", "uniform-b-factors"}
