@@ -126,6 +126,8 @@ def chain_residues(atoms: Atoms, chain: str) -> tuple[list[tuple[int, str]], lis
 
 def _alignment(ref_names: list[str], names: list[str]) -> dict[int, int]:
     """Residue index in ``ref_names`` -> index in ``names`` for the matching blocks."""
+    if ref_names == names:
+        return dict(zip(range(len(names)), range(len(names)), strict=True))
     matcher = difflib.SequenceMatcher(None, ref_names, names, autojunk=False)
     return {a + t: b + t for a, b, size in matcher.get_matching_blocks() for t in range(size)}
 

@@ -155,9 +155,12 @@ def find_clashes(atoms: Atoms, radii_A: np.ndarray, *, clash_fraction: float = C
     if len(i) == 0:
         return []
     bonds = bond_graph(atoms).astype(np.int32)
-    within = bonds + bonds @ bonds
-    within = within + within @ bonds                   # paths of up to three bonds
-    near = np.asarray(within[i, j]).reshape(-1) > 0
+    # atoms within three bonds of each candidate's first atom (only those rows are needed)
+    starts, row_of = np.unique(i, return_inverse=True)
+    one = bonds[starts]
+    two = one @ bonds
+    within = one + two + two @ bonds
+    near = np.asarray(within[row_of, j]).reshape(-1) > 0
     labels = np.char.add(np.char.add(atoms.residue_labels(), ":"), atoms.name)
     out = [Clash(int(a), int(b), (str(labels[a]), str(labels[b])), float(d), float(s))
            for a, b, d, s, skip in zip(i, j, dist, rsum, near, strict=True) if not skip]

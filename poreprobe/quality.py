@@ -41,7 +41,8 @@ Checks (codes)
     3 Å resolution, recalled from memory).
 ``steric-clash``
     heavy-atom pairs closer than ``clash_fraction`` of their radius sum
-    (:mod:`poreprobe.clashes`, default 0.75).
+    (:mod:`poreprobe.clashes`, default 0.75); the 100 closest pairs one by one,
+    any further ones in one summary finding.
 ``water-in-pore``, ``ion-in-pore``, ``hetero-in-pore``
     non-polymer atoms inside the pore: when not counted as walls, the atom's
     centre lies within a profile sphere's radius plus the lining distance; when
@@ -101,6 +102,7 @@ PEPTIDE_BREAK_A = 2.0
 CA_BREAK_A = 4.2
 TERMINAL_CAPS = frozenset({"ACE", "NME", "NH2", "NMA", "FOR", "ETA"})
 BORDERLINE_A = 0.25
+MAX_CLASH_FINDINGS = 100
 VERDICTS = ("hydrated", "dehydrated", "closed")
 
 
@@ -350,9 +352,16 @@ def _region(atoms, radii_A, profile, lining, near_distance_A) -> _Region:
     labels = atoms.residue_labels()[poly][atom]
     s = profile.s_A[plane]
     near = {}
-    for lab in dict.fromkeys(labels.tolist()):
-        sel = labels == lab
-        near[lab] = (float(s[sel].min()), float(s[sel].max()))
+    if len(labels):
+        uniq, inverse = np.unique(labels, return_inverse=True)
+        lo = np.full(len(uniq), np.inf)
+        hi = np.full(len(uniq), -np.inf)
+        np.minimum.at(lo, inverse, s)
+        np.maximum.at(hi, inverse, s)
+        first = np.full(len(uniq), len(labels))
+        np.minimum.at(first, inverse, np.arange(len(labels)))
+        for j in np.argsort(first):
+            near[str(uniq[j])] = (float(lo[j]), float(hi[j]))
     lines = {r.label: (r.s_min_A, r.s_max_A) for r in lining.residues}
     for lab, span in lines.items():
         near.setdefault(lab, span)
@@ -538,8 +547,19 @@ def _check_clashes(atoms, radii_A, region, fraction, radius_set) -> list[Finding
     labels = atoms.residue_labels()
     in_region = np.isin(labels, list(region.near))
     out = []
-    for clash in find_clashes(atoms, radii_A, clash_fraction=fraction,
-                              only=np.flatnonzero(in_region)):
+    clashes = find_clashes(atoms, radii_A, clash_fraction=fraction,
+                           only=np.flatnonzero(in_region))
+    if len(clashes) > MAX_CLASH_FINDINGS:
+        rest = clashes[MAX_CLASH_FINDINGS:]
+        res = tuple(dict.fromkeys(str(labels[k]) for c in rest for k in (c.atom_i, c.atom_j)))
+        out.append(Finding(
+            region.severity(res, "high", "medium"), "steric-clash",
+            f"{len(rest)} further clashing atom pairs around the pore (beyond the "
+            f"{MAX_CLASH_FINDINGS} listed one by one): the model is badly packed here, so "
+            "its pore radii mean little until it is refined.", res,
+            {"further_pairs": len(rest)}))
+        clashes = clashes[:MAX_CLASH_FINDINGS]
+    for clash in clashes:
         res = tuple(dict.fromkeys([str(labels[clash.atom_i]), str(labels[clash.atom_j])]))
         out.append(Finding(
             region.severity(res, "high", "medium"), "steric-clash",
