@@ -52,7 +52,8 @@ class AtomSpheres:
     def max_radius_A(self) -> float:
         return float(self.class_radii_A[-1])
 
-    def clearance_A(self, points_A, *, return_index: bool = False, workers: int = -1):
+    def clearance_A(self, points_A, *, return_index: bool = False, workers: int = -1,
+                    max_clearance_A: float | None = None):
         """Exact clearance of each point.
 
         Parameters
@@ -63,6 +64,10 @@ class AtomSpheres:
             Also return the index of the atom that sets the clearance.
         workers : int
             Threads for the KD-tree queries (-1: all cores).
+        max_clearance_A : float, optional
+            Clip the result at this value (Å): values up to it stay exact, larger
+            ones are reported as ``max_clearance_A`` (index -1 where no atom lies
+            within reach). Far points then cost much less.
 
         Returns
         -------
@@ -75,13 +80,24 @@ class AtomSpheres:
         pts = pts.reshape(-1, 3)
         best = np.full(len(pts), np.inf)
         best_idx = np.zeros(len(pts), dtype=np.int64)
+        bound = np.inf
+        if max_clearance_A is not None:
+            bound = float(max_clearance_A)
+            if not np.isfinite(bound):
+                raise InputError(f"max_clearance_A must be finite, got {max_clearance_A!r}")
+            best_idx[:] = -1
         for radius, idx, tree in zip(self.class_radii_A, self._class_index, self._trees,
                                      strict=True):
-            dist, j = tree.query(pts, k=1, workers=workers)
+            dist, j = tree.query(pts, k=1, workers=workers,
+                                 distance_upper_bound=bound + radius + 1e-9)
             value = dist - radius
             better = value < best
             best[better] = value[better]
             best_idx[better] = idx[j[better]]
+        if max_clearance_A is not None:
+            clipped = best > bound
+            best[clipped] = bound
+            best_idx[clipped] = -1
         if return_index:
             return best.reshape(shape), best_idx.reshape(shape)
         return best.reshape(shape)
