@@ -19,7 +19,8 @@ Voxels sit in the axis frame (u, v, s) of a :class:`~poreprobe.axis.PoreAxis`:
 u and v across the axis (the axis itself is a grid line), s along it, all at
 spacing ``spacing_A``; s positions are multiples of the spacing, so grids of
 different structures and spacings share planes. Only voxels inside a cylinder
-of radius ``pore_radius_A`` around the axis belong to the pore region. Along s
+of radius ``pore_radius_A`` around the axis belong to the pore region, less the
+free space outside the protein's wall (:func:`exterior_voxels`). Along s
 the grid covers the atoms that touch that cylinder plus a margin of
 ``max probe + 2 spacings`` at both ends, so the end layers lie beyond the
 protein. The **entry bulk** is the end layer (cap) at the entry end
@@ -83,7 +84,8 @@ class ReachField:
     shape : tuple of int
         (n_u, n_v, n_s).
     inside : ndarray of bool, shape (n_u, n_v, n_s)
-        Voxels within ``pore_radius_A`` of the axis (the pore region).
+        The pore region: voxels within ``pore_radius_A`` of the axis, less free
+        space outside the protein's wall.
     clearance_A : ndarray of float, shape (n_u, n_v, n_s)
         Exact clearance at each voxel (Å), clipped at ``clearance_cap_A``; NaN
         outside the pore region.
@@ -339,10 +341,10 @@ def reach_field(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEFAUL
     origin = np.array([-half * spacing_A, -half * spacing_A, k_lo * spacing_A])
     uv = spacing_A * np.arange(-half, half + 1)
     disk = (uv[:, None] ** 2 + uv[None, :] ** 2) <= pore_radius_A**2 + 1e-9
-    inside = np.broadcast_to(disk[:, :, None], shape).copy()
     cap = max_probe_A + CLEARANCE_MARGIN_A + 3 * spacing_A
     clearance = _clearance_grid(frame, radii_arr, uv, origin[2] + spacing_A * np.arange(shape[2]),
                                 disk, cap)
+    inside = np.broadcast_to(disk[:, :, None], shape) & ~exterior_voxels(clearance, disk, uv)
     entry_layer = 0 if from_end == "low" else shape[2] - 1
     if method == "label":
         reach = reach_by_labels(clearance, inside, entry_layer, levels)
@@ -355,6 +357,32 @@ def reach_field(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEFAUL
                       clearance_cap_A=cap,
                       pore_radius_A=pore_radius_A, protein_s_A=(s_lo, s_hi), levels_A=levels,
                       method=method, radius_set=radius_label, source=atoms.source)
+
+
+def exterior_voxels(clearance_A, disk, uv_A) -> np.ndarray:
+    """Free voxels outside the protein, excluded from the pore region.
+
+    At every level where the free space (clearance > 0) around the axis is
+    enclosed by atoms within the plane, the free space of that plane that is
+    connected (in the plane) to the edge of the cylinder lies outside the
+    protein's wall. Without this, a probe could go round the outside of a
+    narrow protein instead of through its pore.
+    """
+    n_u, n_v, n_s = clearance_A.shape
+    free = disk[:, :, None] & (clearance_A > 0)
+    planar = np.zeros((3, 3, 3), dtype=bool)
+    planar[:, :, 1] = ndimage.generate_binary_structure(2, 1)
+    labels, n_lab = ndimage.label(free, structure=planar)
+    rim = disk & ~ndimage.binary_erosion(disk, ndimage.generate_binary_structure(2, 1),
+                                         border_value=0)
+    touches = np.zeros(n_lab + 1, dtype=bool)
+    touches[np.unique(labels[rim])] = True
+    touches[0] = False
+    rho2 = uv_A[:, None] ** 2 + uv_A[None, :] ** 2
+    score = np.where(free, rho2[:, :, None], np.inf).reshape(n_u * n_v, n_s)
+    axis_label = labels.reshape(n_u * n_v, n_s)[np.argmin(score, axis=0), np.arange(n_s)]
+    enclosed_level = ~touches[axis_label] & (axis_label > 0)
+    return touches[labels] & enclosed_level[None, None, :]
 
 
 def _clearance_grid(frame_A, radii_A, uv_A, s_A, disk, cap_A: float) -> np.ndarray:
