@@ -377,7 +377,11 @@ class _Context:
         self.rim = self.disk & ~ndimage.binary_erosion(self.disk, _CROSS2, border_value=0)
         self.rho2 = self.u[:, None] ** 2 + self.u[None, :] ** 2
         self.clear32 = np.where(field_.inside, field_.clearance_A, -1.0).astype(np.float32)
-        self.margin = max(3 * self.h, 1.0)
+        self.margin = 2 * self.h
+        s = field_.s_A
+        lo, hi = field_.protein_s_A
+        inner = np.flatnonzero((s >= lo) & (s <= hi))
+        self.k_protein = (int(inner[0]), int(inner[-1])) if inner.size else (0, len(s) - 1)
 
     def clip(self, p: float) -> float:
         return p + self.margin
@@ -417,7 +421,11 @@ def _scan_one(ctx: _Context, p: float) -> _OneProbe:
                          "cannot sit in the entry bulk")
     passes = bool(layers[f.exit_layer])
     ks = np.flatnonzero(layers)
-    k0, k1 = int(ks[0]), int(ks[-1])
+    # levels beyond the protein hold no atom, so their sections are open bulk: measure only
+    # levels within the protein, with centres from up to one ball radius beyond it
+    k0, k1 = max(int(ks[0]), ctx.k_protein[0]), min(int(ks[-1]), ctx.k_protein[1])
+    if k1 < k0:
+        k0 = k1 = int(ks[-1]) if f.entry == "low" else int(ks[0])
     sec = _grid_sections(ctx, region, p, k0, k1)
     radius = np.sqrt(sec.area / np.pi)
     inscribed = np.minimum(sec.inscribed, radius)
@@ -473,16 +481,17 @@ def _grid_sections(ctx: _Context, region: np.ndarray, p: float, k0: int, k1: int
     h = ctx.h
     clip = ctx.clip(p)
     window = int(math.ceil(clip / h))
-    sub = region[:, :, k0:k1 + 1]
+    n_u, _, n_s = ctx.field.shape
+    e0, e1 = max(k0 - window, 0), min(k1 + window + 1, n_s)   # centres up to a ball away
+    sub = region[:, :, e0:e1]
     cols = sub.any(axis=2)
     iu, iv = np.nonzero(cols)
-    n_u = ctx.field.shape[0]
     a0, a1 = max(int(iu.min()) - window, 0), min(int(iu.max()) + window + 1, n_u)
     b0, b1 = max(int(iv.min()) - window, 0), min(int(iv.max()) + window + 1, n_u)
     box = sub[a0:a1, b0:b1]
-    c = np.minimum(ctx.clear32[a0:a1, b0:b1, k0:k1 + 1], np.float32(clip))
+    c = np.minimum(ctx.clear32[a0:a1, b0:b1, e0:e1], np.float32(clip))
     f = np.where(box, -(c * c), _BIG).astype(np.float32)
-    g = _power_cover(f, window, h)
+    g = _power_cover(f, window, h)[:, :, k0 - e0:k1 - e0 + 1]
     return _measure_sections(g, ctx.disk[a0:a1, b0:b1], ctx.rim[a0:a1, b0:b1],
                              ctx.u[a0:a1], ctx.u[b0:b1], h, seed_uv=None)
 
