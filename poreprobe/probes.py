@@ -58,6 +58,7 @@ from poreprobe._validate import check_int, check_positive
 from poreprobe.axis import PoreAxis
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.export import to_csv
+from poreprobe.kernel import AtomSpheres
 from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet
 from poreprobe.reach import ReachField, check_levels, reach_field, resolve_radii
 from poreprobe.structure import Atoms
@@ -370,6 +371,8 @@ class _Context:
         self.frame = frame_A
         self.radii = radii_A
         self.tree = cKDTree(frame_A)
+        self.spheres = AtomSpheres(frame_A, radii_A)
+        self._half: dict[int, np.ndarray] = {}
         self.max_r = float(radii_A.max())
         self.refine = refine_factor
         self.u = field_.u_A
@@ -385,6 +388,22 @@ class _Context:
 
     def clip(self, p: float) -> float:
         return p + self.margin
+
+    def half_layer(self, k: int) -> np.ndarray:
+        """Exact clearance at the body-centred points between layers k and k+1 (cached).
+
+        Shape (n_u - 1, n_v - 1); -inf outside the pore cylinder.
+        """
+        if k not in self._half:
+            f = self.field
+            uc = self.u[:-1] + 0.5 * self.h
+            uu, vv = np.meshgrid(uc, uc, indexing="ij")
+            ok = uu**2 + vv**2 <= f.pore_radius_A**2
+            out = np.full(uu.shape, -np.inf)
+            pts = np.column_stack([uu[ok], vv[ok], np.full(int(ok.sum()), f.s_A[k] + 0.5 * self.h)])
+            out[ok] = self.spheres.clearance_A(pts, max_clearance_A=f.clearance_cap_A)
+            self._half[k] = out
+        return self._half[k]
 
 
 @dataclass
@@ -530,7 +549,8 @@ def _measure_sections(g: np.ndarray, disk: np.ndarray, rim: np.ndarray, u_A, v_A
     enclosed = has & ~open_lab[chosen]
     comp = (labels == chosen[None, None, :]) & (chosen[None, None, :] > 0)
     # sub-pixel area: fractional coverage of the component's pixels and its rim of neighbours
-    gf = np.minimum(g, np.float32(1e6)).astype(np.float64)
+    dtype = np.float32 if g.dtype == np.float32 else np.float64
+    gf = np.minimum(g, 1e6).astype(dtype, copy=False)
     gu, gv = np.gradient(gf, h, axis=(0, 1)) if min(n_u, n_v) > 1 else (gf * 0, gf * 0)
     grad = np.maximum(np.hypot(gu, gv), 1e-9)
     frac = np.clip(0.5 - gf / grad / h, 0.0, 1.0)
@@ -539,14 +559,14 @@ def _measure_sections(g: np.ndarray, disk: np.ndarray, rim: np.ndarray, u_A, v_A
     if n_l == 1:
         near = near[:, :, None]
     near &= disk[:, :, None] & ((labels == 0) | comp)
-    area = (frac * near).sum(axis=(0, 1)) * h * h
+    area = (frac * near).sum(axis=(0, 1), dtype=np.float64) * h * h
     # inscribed: largest disk in the component (pixel distance transform) and never less
     # than the largest single empty-sphere cut sqrt(-g) that the component holds
     cut = np.sqrt(np.clip(np.where(comp, -gf, 0.0), 0.0, None)).max(axis=(0, 1))
+    padded = np.pad(comp, ((1, 1), (1, 1), (0, 0)))
     for k in np.flatnonzero(enclosed):
-        ck = comp[:, :, k]
-        ii, jj = np.nonzero(ck)
-        crop = np.pad(ck[ii.min():ii.max() + 1, jj.min():jj.max() + 1], 1)
+        ii, jj = np.nonzero(comp[:, :, k])
+        crop = padded[ii.min():ii.max() + 3, jj.min():jj.max() + 3, k]
         edt = ndimage.distance_transform_edt(crop, sampling=h)
         inscribed[k] = max(float(edt.max()) - 0.5 * h, float(cut[k]))
     return _Sections(area, inscribed, enclosed, has)
@@ -561,50 +581,59 @@ def _fine_section(ctx: _Context, region: np.ndarray, p: float, s_star: float, *,
                   seed_uv=None):
     """Swept cross-section of probe p in the plane at ``s_star`` on a fine raster.
 
-    Returns (area_A2, inscribed_A, enclosed) or None when nothing is swept.
+    Sphere centres: the grid voxels of the probe's region, the body-centred
+    points between them (exact clearance, for twice the centre density), and
+    the refined tip. Returns (area_A2, inscribed_A, enclosed), or None when
+    nothing is swept.
     """
     f = ctx.field
     h = ctx.h
     clip = ctx.clip(p)
     s = f.s_A
+    lattices = []
     ks = np.flatnonzero((np.abs(s - s_star) <= clip) & region.any(axis=(0, 1)))
     g = np.full(f.shape[:2], np.inf)
     for k in ks:
         c = np.minimum(np.asarray(f.clearance_A[:, :, k]), clip)
-        val = np.where(region[:, :, k], (s_star - s[k]) ** 2 - c * c, np.inf)
-        np.minimum(g, val, out=g)
+        np.minimum(g, np.where(region[:, :, k], (s_star - s[k]) ** 2 - c * c, np.inf), out=g)
+    lattices.append((ctx.u, g))
+    g2 = np.full((f.shape[0] - 1, f.shape[1] - 1), np.inf)
+    for k in range(max(int(ks.min()) - 1, 0) if ks.size else 0,
+                   min(int(ks.max()) + 1, f.shape[2] - 1) if ks.size else 0):
+        s_half = s[k] + 0.5 * h
+        if abs(s_half - s_star) > clip:
+            continue
+        near = region[:, :, k] | region[:, :, k + 1]
+        near = near[:-1, :-1] | near[1:, :-1] | near[:-1, 1:] | near[1:, 1:]
+        if not near.any():
+            continue
+        c2 = ctx.half_layer(k)
+        member = near & (c2 >= p)
+        c2 = np.minimum(c2, clip)
+        np.minimum(g2, np.where(member, (s_star - s_half) ** 2 - c2 * c2, np.inf), out=g2)
+    lattices.append((ctx.u[:-1] + 0.5 * h, g2))
     if tip is not None:
         seed_uv = (float(tip[0]), float(tip[1]))
-    finite = np.isfinite(g)
-    if not finite.any() and tip is None:
+    cols = [np.nonzero(np.isfinite(gl)) for _, gl in lattices]
+    if not any(c[0].size for c in cols) and tip is None:
         return None
-    window = int(math.ceil(clip / h)) + 1
-    n_u = f.shape[0]
-    if finite.any():
-        iu, iv = np.nonzero(finite)
-        a0, a1 = max(int(iu.min()) - window, 0), min(int(iu.max()) + window + 1, n_u)
-        b0, b1 = max(int(iv.min()) - window, 0), min(int(iv.max()) + window + 1, n_u)
+    reach_A = clip + 2 * h
+    lo, hi = -f.pore_radius_A - h, f.pore_radius_A + h
+    found = [(coords[c[0]], coords[c[1]]) for (coords, _), c in zip(lattices, cols, strict=True)
+             if c[0].size]
+    if found:
+        u_lo = max(min(x[0].min() for x in found) - reach_A, lo)
+        u_hi = min(max(x[0].max() for x in found) + reach_A, hi)
+        v_lo = max(min(x[1].min() for x in found) - reach_A, lo)
+        v_hi = min(max(x[1].max() for x in found) + reach_A, hi)
     else:
-        a0 = b0 = 0
-        a1 = b1 = n_u
-    uc, vc = ctx.u[a0:a1], ctx.u[b0:b1]
-    gsub = g[a0:a1, b0:b1]
+        u_lo, u_hi, v_lo, v_hi = lo, hi, lo, hi
     hf = h / ctx.refine
-    uf = np.arange(uc[0], uc[-1] + 0.5 * hf, hf)
-    vf = np.arange(vc[0], vc[-1] + 0.5 * hf, hf)
-    # pass over v: A[uc, vf] = min_vc (vf - vc)^2 + g[uc, vc]
-    dv2 = (vf[None, :] - vc[:, None]) ** 2                     # (n_vc, n_vf)
-    a_pass = np.empty((len(uc), len(vf)))
-    chunk = max(1, 2_000_000 // max(dv2.size, 1))
-    for i0 in range(0, len(uc), chunk):
-        blk = gsub[i0:i0 + chunk, :, None] + dv2[None, :, :]
-        a_pass[i0:i0 + chunk] = blk.min(axis=1)
-    du2 = (uf[:, None] - uc[None, :]) ** 2                     # (n_uf, n_uc)
-    gfine = np.empty((len(uf), len(vf)))
-    chunk = max(1, 2_000_000 // max(len(uc) * len(vf), 1))
-    for i0 in range(0, len(uf), chunk):
-        blk = du2[i0:i0 + chunk, :, None] + a_pass[None, :, :]
-        gfine[i0:i0 + chunk] = blk.min(axis=1)
+    uf = np.arange(np.floor(u_lo / hf), np.ceil(u_hi / hf) + 1) * hf
+    vf = np.arange(np.floor(v_lo / hf), np.ceil(v_hi / hf) + 1) * hf
+    gfine = np.full((len(uf), len(vf)), np.inf)
+    for coords, gl in lattices:
+        np.minimum(gfine, _to_raster(coords, gl, uf, vf, reach_A), out=gfine)
     if tip is not None:
         ball = ((uf[:, None] - tip[0]) ** 2 + (vf[None, :] - tip[1]) ** 2
                 + (s_star - tip[2]) ** 2 - p * p)
@@ -618,11 +647,33 @@ def _fine_section(ctx: _Context, region: np.ndarray, p: float, s_star: float, *,
     return float(sec.area[0]), float(sec.inscribed[0]), bool(sec.enclosed[0])
 
 
+def _to_raster(coords, g, uf, vf, reach_A) -> np.ndarray:
+    """``min over lattice columns (|x - y|^2 + g(y))`` at raster points, two separable passes."""
+    rows = np.flatnonzero(np.isfinite(g).any(axis=1))
+    colv = np.flatnonzero(np.isfinite(g).any(axis=0))
+    out = np.full((len(uf), len(vf)), np.inf)
+    if rows.size == 0:
+        return out
+    uc = coords[rows[0]:rows[-1] + 1]
+    vc = coords[colv[0]:colv[-1] + 1]
+    gsub = g[rows[0]:rows[-1] + 1, colv[0]:colv[-1] + 1]
+    dv2 = (vf[None, :] - vc[:, None]) ** 2                     # (n_vc, n_vf)
+    a_pass = np.empty((len(uc), len(vf)))
+    chunk = max(1, 2_000_000 // max(dv2.size, 1))
+    for i0 in range(0, len(uc), chunk):
+        a_pass[i0:i0 + chunk] = (gsub[i0:i0 + chunk, :, None] + dv2[None, :, :]).min(axis=1)
+    du2 = (uf[:, None] - uc[None, :]) ** 2                     # (n_uf, n_uc)
+    chunk = max(1, 2_000_000 // max(len(uc) * len(vf), 1))
+    for i0 in range(0, len(uf), chunk):
+        out[i0:i0 + chunk] = (du2[i0:i0 + chunk, :, None] + a_pass[None, :, :]).min(axis=1)
+    return out
+
+
 def _refine_bottleneck(ctx: _Context, region: np.ndarray, p: float, k_b: int):
     """Narrowest enclosed section near grid layer ``k_b``, on the fine raster."""
     s = ctx.field.s_A
     best = (float(s[k_b]), math.inf, math.nan)
-    for off in (-1.0, -0.5, 0.0, 0.5, 1.0):
+    for off in (-0.5, 0.0, 0.5):
         s_try = float(s[k_b]) + off * ctx.h
         res = _fine_section(ctx, region, p, s_try)
         if res is None or not res[2]:
