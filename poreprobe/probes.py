@@ -512,15 +512,15 @@ def _grid_sections(ctx: _Context, region: np.ndarray, p: float, k0: int, k1: int
     f = np.where(box, -(c * c), _BIG).astype(np.float32)
     g = _power_cover(f, window, h)[:, :, k0 - e0:k1 - e0 + 1]
     return _measure_sections(g, ctx.disk[a0:a1, b0:b1], ctx.rim[a0:a1, b0:b1],
-                             ctx.u[a0:a1], ctx.u[b0:b1], h, seed_uv=None)
+                             ctx.u[a0:a1], ctx.u[b0:b1], h, near_uv=None)
 
 
 def _measure_sections(g: np.ndarray, disk: np.ndarray, rim: np.ndarray, u_A, v_A, h: float,
-                      seed_uv=None) -> _Sections:
+                      near_uv=None) -> _Sections:
     """Area, inscribed radius and openness of the chosen part of each layer of ``g <= 0``.
 
     ``g`` has shape (n_u, n_v, L); the chosen part of a layer is the connected
-    (4-neighbour) component holding the swept pixel nearest ``seed_uv``
+    (4-neighbour) component holding the swept pixel nearest ``near_uv``
     (default: the axis). Areas get a sub-pixel edge correction: a pixel
     counts the fraction ``clip(1/2 - d/h, 0, 1)`` with ``d = g / |grad g|``,
     the signed distance to the edge.
@@ -537,7 +537,7 @@ def _measure_sections(g: np.ndarray, disk: np.ndarray, rim: np.ndarray, u_A, v_A
         labels, n_lab = ndimage.label(covered, structure=_PLANAR)
     else:
         labels, n_lab = _label_single(covered)
-    su, sv = (0.0, 0.0) if seed_uv is None else seed_uv
+    su, sv = (0.0, 0.0) if near_uv is None else near_uv
     dist2 = (u_A[:, None] - su) ** 2 + (v_A[None, :] - sv) ** 2
     score = np.where(covered, dist2[:, :, None], np.inf).reshape(n_u * n_v, n_l)
     pick = np.argmin(score, axis=0)
@@ -578,7 +578,7 @@ def _label_single(covered: np.ndarray):
 
 
 def _fine_section(ctx: _Context, region: np.ndarray, p: float, s_star: float, *, tip=None,
-                  seed_uv=None):
+                  near_uv=None):
     """Swept cross-section of probe p in the plane at ``s_star`` on a fine raster.
 
     Sphere centres: the grid voxels of the probe's region, the body-centred
@@ -613,7 +613,7 @@ def _fine_section(ctx: _Context, region: np.ndarray, p: float, s_star: float, *,
         np.minimum(g2, np.where(member, (s_star - s_half) ** 2 - c2 * c2, np.inf), out=g2)
     lattices.append((ctx.u[:-1] + 0.5 * h, g2))
     if tip is not None:
-        seed_uv = (float(tip[0]), float(tip[1]))
+        near_uv = (float(tip[0]), float(tip[1]))
     cols = [np.nonzero(np.isfinite(gl)) for _, gl in lattices]
     if not any(c[0].size for c in cols) and tip is None:
         return None
@@ -641,7 +641,7 @@ def _fine_section(ctx: _Context, region: np.ndarray, p: float, s_star: float, *,
     disk = (uf[:, None] ** 2 + vf[None, :] ** 2) <= f.pore_radius_A ** 2 + 1e-9
     rim = disk & ~ndimage.binary_erosion(disk, _CROSS2, border_value=0)
     gfine = np.where(np.isfinite(gfine), gfine, 1e6)
-    sec = _measure_sections(gfine[:, :, None], disk, rim, uf, vf, hf, seed_uv=seed_uv)
+    sec = _measure_sections(gfine[:, :, None], disk, rim, uf, vf, hf, near_uv=near_uv)
     if not sec.covered[0]:
         return None
     return float(sec.area[0]), float(sec.inscribed[0]), bool(sec.enclosed[0])

@@ -24,7 +24,7 @@ free space outside the protein's wall (:func:`exterior_voxels`). Along s
 the grid covers the atoms that touch that cylinder plus a margin of
 ``max probe + 2 spacings`` at both ends, so the end layers lie beyond the
 protein. The **entry bulk** is the end layer (cap) at the entry end
-(``from_end="low"``: smallest s); its voxels seed the reach with their own
+(``from_end="low"``: smallest s); its voxels start the reach with their own
 clearance. Connectivity is face-adjacency (6 neighbours).
 
 Algorithms (all exact on the grid; see ``benchmarks/bench_scan.py``)
@@ -98,7 +98,7 @@ class ReachField:
         Reach value (Å); ``-inf`` where no probe of radius >= 0 (or, with the
         ``"label"`` method, of the smallest level) gets from the entry bulk.
     entry : {"low", "high"}
-        The end where probes enter (the s end whose cap seeds the reach).
+        The end where probes enter (the s end whose cap starts the reach).
     clearance_cap_A : float
         Clearances (and so reach values) above this are reported as this (Å).
     pore_radius_A : float
@@ -440,7 +440,7 @@ def _clearance_grid(frame_A, radii_A, uv_A, s_A, disk, cap_A: float) -> np.ndarr
     return out
 
 
-def _seed_labels(labels: np.ndarray, entry_layer: int, n_labels: int) -> np.ndarray:
+def _entry_labels(labels: np.ndarray, entry_layer: int, n_labels: int) -> np.ndarray:
     keep = np.zeros(n_labels + 1, dtype=bool)
     keep[np.unique(labels[:, :, entry_layer])] = True
     keep[0] = False
@@ -461,7 +461,7 @@ def reach_by_labels(clearance_A, inside, entry_layer: int, levels_A) -> np.ndarr
         if not mask[:, :, entry_layer].any():
             break
         labels, n_labels = ndimage.label(mask, structure=_FACE)
-        region = _seed_labels(labels, entry_layer, n_labels)[labels]
+        region = _entry_labels(labels, entry_layer, n_labels)[labels]
         if not region.any():
             break
         reach[region] = level
@@ -475,9 +475,9 @@ def reach_by_reconstruction(clearance_A, inside, entry_layer: int) -> np.ndarray
 
     free = inside & (clearance_A >= 0)
     mask_img = np.where(free, clearance_A, -1.0)
-    seed = np.full(clearance_A.shape, -1.0)
-    seed[:, :, entry_layer] = mask_img[:, :, entry_layer]
-    rec = reconstruction(seed, mask_img, method="dilation", footprint=_FACE)
+    marker = np.full(clearance_A.shape, -1.0)
+    marker[:, :, entry_layer] = mask_img[:, :, entry_layer]
+    rec = reconstruction(marker, mask_img, method="dilation", footprint=_FACE)
     return np.where(free & (rec >= 0), rec, -np.inf)
 
 

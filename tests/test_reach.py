@@ -68,7 +68,7 @@ def test_exact_reach_is_max_min_bottleneck():
     np.testing.assert_allclose(a.reach_A, b.reach_A, rtol=0, atol=1e-12)
     ok = np.isfinite(a.reach_A)
     assert (a.reach_A[ok] <= a.clearance_A[ok] + 1e-12).all()
-    # the entry cap seeds with its own clearance
+    # the entry cap starts with its own clearance
     cap = a.inside[:, :, a.entry_layer]
     np.testing.assert_allclose(a.reach_A[:, :, 0][cap], a.clearance_A[:, :, 0][cap], atol=1e-12)
 
