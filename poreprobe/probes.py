@@ -32,9 +32,8 @@ Capture radius
     ``c(p) = R_open(p) - p``, with ``R_open`` the area-equivalent accessible
     radius at the stop level (bottleneck for a probe that passes). This is the
     default; ``capture_radius_inscribed_A`` uses the inscribed radius. A probe
-    that never gets into an enclosed section (its section at the stop level is
-    open bulk and so were all before) **does not enter**: capture radius 0 and
-    ``enters = False``.
+    whose section at its stop level is open bulk never got into the pore: it
+    **does not enter**, capture radius 0 and ``enters = False``.
 
 Grid profiles are measured on the grid layers (pixel areas with a sub-pixel
 edge correction); the capture radius is measured at the refined level on a
@@ -450,30 +449,28 @@ def _scan_one(ctx: _Context, p: float) -> _OneProbe:
     inscribed = np.minimum(sec.inscribed, radius)
     profile[k0:k1 + 1] = np.where(sec.enclosed, radius, np.nan)
     profile_in[k0:k1 + 1] = np.where(sec.enclosed, inscribed, np.nan)
-    any_enclosed = bool(sec.enclosed.any())
     if passes:
-        if not any_enclosed:
+        if not sec.enclosed.any():
             return _OneProbe(True, True, math.nan, math.nan, math.nan, math.nan, math.nan,
                              profile, profile_in,
                              "passes, but no enclosed section on its path (enlarge pore_radius_A)")
         s_b, r_b, ri_b = _refine_bottleneck(ctx, region, p, k0 + int(np.nanargmin(
             np.where(sec.enclosed, radius, np.inf))))
+        # a probe centre sits in every level it passes, so its disk bounds both radii below
+        r_b, ri_b = max(r_b, p), min(max(ri_b, p), max(r_b, p))
         return _OneProbe(True, True, s_b, r_b, ri_b, r_b - p, ri_b - p, profile, profile_in)
     deepest = k1 if f.entry == "low" else k0
     tip = _refine_tip(ctx, region, p, deepest)
     stop_s = float(tip[2])
     fine = _fine_section(ctx, region, p, stop_s, tip=tip)
-    if fine is not None and fine[2]:
-        area, ins, _ = fine
-        r_open = math.sqrt(area / math.pi)
-        ri_open = min(ins, r_open)
-        return _OneProbe(False, True, stop_s, r_open, ri_open, r_open - p, ri_open - p,
-                         profile, profile_in)
-    if not any_enclosed:
+    if fine is None or not fine[2]:
+        # the section where the probe stops is open bulk: it never got into the pore
         return _OneProbe(False, False, stop_s, 0.0, 0.0, 0.0, 0.0, profile, profile_in)
-    return _OneProbe(False, True, stop_s, math.nan, math.nan, math.nan, math.nan, profile,
-                     profile_in, "its section at the stop level is open to the edge of the "
-                     "pore region (a side opening, or enlarge pore_radius_A)")
+    # the probe's own equatorial disk lies in the section, so neither radius is below p
+    r_open = max(math.sqrt(fine[0] / math.pi), p)
+    ri_open = min(max(fine[1], p), r_open)
+    return _OneProbe(False, True, stop_s, r_open, ri_open, r_open - p, ri_open - p,
+                     profile, profile_in)
 
 
 def _power_cover(f: np.ndarray, window: int, h: float) -> np.ndarray:

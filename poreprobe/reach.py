@@ -67,6 +67,9 @@ from poreprobe.structure import Atoms
 ENTRY_ENDS = ("low", "high")
 REACH_METHODS = ("auto", "label", "reconstruction", "union-find")
 MAX_VOXELS = 60_000_000
+#: Gaps narrower than this (clearance below it) count as protein wall when telling the
+#: space outside the protein from the pore (default when no probe levels are given).
+WALL_GAP_A = 0.5
 #: Clearances are exact up to ``max_probe_A + CLEARANCE_MARGIN_A + 3 spacings``, clipped above.
 CLEARANCE_MARGIN_A = 3.0
 
@@ -349,7 +352,9 @@ def reach_field(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEFAUL
     cap = max_probe_A + CLEARANCE_MARGIN_A + 3 * spacing_A
     clearance = _clearance_grid(frame, radii_arr, uv, origin[2] + spacing_A * np.arange(shape[2]),
                                 disk, cap)
-    inside = np.broadcast_to(disk[:, :, None], shape) & ~exterior_voxels(clearance, disk, uv)
+    wall_gap = float(levels[0]) if levels is not None else WALL_GAP_A
+    inside = np.broadcast_to(disk[:, :, None], shape) & ~exterior_voxels(clearance, disk, uv,
+                                                                         wall_gap)
     entry_layer = 0 if from_end == "low" else shape[2] - 1
     if method == "label":
         reach = reach_by_labels(clearance, inside, entry_layer, levels)
@@ -364,17 +369,20 @@ def reach_field(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEFAUL
                       method=method, radius_set=radius_label, source=atoms.source)
 
 
-def exterior_voxels(clearance_A, disk, uv_A) -> np.ndarray:
-    """Free voxels outside the protein, excluded from the pore region.
+def exterior_voxels(clearance_A, disk, uv_A, wall_gap_A: float = 0.5) -> np.ndarray:
+    """Voxels outside the protein, excluded from the pore region.
 
-    At every level where the free space (clearance > 0) around the axis is
-    enclosed by atoms within the plane, the free space of that plane that is
-    connected (in the plane) to the edge of the cylinder lies outside the
-    protein's wall. Without this, a probe could go round the outside of a
-    narrow protein instead of through its pore.
+    Free space here is where the clearance is at least ``wall_gap_A`` (gaps
+    between atoms too narrow for the smallest probe of interest count as wall).
+    At every level where the free space around the axis is enclosed by atoms
+    within the plane, the free space of that plane connected (in the plane) to
+    the edge of the cylinder lies outside the protein's wall, and so does
+    everything narrower than ``wall_gap_A`` that is not enclosed with the axis'
+    part. Without this a probe could go round the outside of a narrow protein
+    instead of through its pore.
     """
     n_u, n_v, n_s = clearance_A.shape
-    free = disk[:, :, None] & (clearance_A > 0)
+    free = disk[:, :, None] & (clearance_A >= wall_gap_A)
     planar = np.zeros((3, 3, 3), dtype=bool)
     planar[:, :, 1] = ndimage.generate_binary_structure(2, 1)
     labels, n_lab = ndimage.label(free, structure=planar)

@@ -154,3 +154,14 @@ def test_no_atom_near_axis():
     atoms = make_atoms([[30.0, 0.0, 0.0], [30.0, 1.0, 0.0]])
     with pytest.raises(PoreNotFoundError, match="no atom lies within"):
         reach_field(atoms, Z_AXIS, pore_radius_A=10.0)
+
+
+def test_narrow_gaps_in_the_wall_do_not_open_a_bypass():
+    # 10 carbon atoms per ring of radius 6 Å are 3.7 Å apart: gaps of clearance ~0.2 Å
+    # (< the smallest probe, 1 Å) let free space through the wall, which must still count
+    # as wall when telling the outside of the protein from its pore (4.3 Å wide).
+    z = np.arange(-8.0, 8.01, 0.5)
+    atoms = ring_stack(np.full(z.shape, 6.0), z, atoms_per_ring=10, twist=False)
+    f = reach_field(atoms, Z_AXIS, spacing_A=0.5, pore_radius_A=12.0, levels_A=[1.0, 4.6])
+    assert f.region(1.0)[:, :, f.exit_layer].any()
+    assert not f.region(4.6)[:, :, f.exit_layer].any()
