@@ -157,11 +157,15 @@ def test_no_atom_near_axis():
 
 
 def test_narrow_gaps_in_the_wall_do_not_open_a_bypass():
-    # 10 carbon atoms per ring of radius 6 Å are 3.7 Å apart: gaps of clearance ~0.2 Å
-    # (< the smallest probe, 1 Å) let free space through the wall, which must still count
-    # as wall when telling the outside of the protein from its pore (4.3 Å wide).
+    # 7 carbon atoms per ring of radius 4 Å sit 3.59 Å apart (2 x 1.7 Å = 3.4 Å): slits of
+    # clearance ~0.1 Å cross the wall. The pore is 4 - 1.7 = 2.3 Å wide; outside the wall a
+    # 14 Å search cylinder leaves room for a 3 Å probe. With the smallest probe (1 Å) wider
+    # than the slits they count as wall and the 3 Å probe cannot go round the protein ...
     z = np.arange(-8.0, 8.01, 0.5)
-    atoms = ring_stack(np.full(z.shape, 6.0), z, atoms_per_ring=10, twist=False)
-    f = reach_field(atoms, Z_AXIS, spacing_A=0.5, pore_radius_A=12.0, levels_A=[1.0, 4.6])
+    atoms = ring_stack(np.full(z.shape, 4.0), z, atoms_per_ring=7, twist=False)
+    f = reach_field(atoms, Z_AXIS, spacing_A=0.5, pore_radius_A=14.0, levels_A=[1.0, 3.0])
     assert f.region(1.0)[:, :, f.exit_layer].any()
-    assert not f.region(4.6)[:, :, f.exit_layer].any()
+    assert not f.region(3.0)[:, :, f.exit_layer].any()
+    # ... whereas with a smallest probe narrower than the slits the outside is open
+    g = reach_field(atoms, Z_AXIS, spacing_A=0.5, pore_radius_A=14.0, levels_A=[0.02, 3.0])
+    assert g.region(3.0)[:, :, g.exit_layer].any()
