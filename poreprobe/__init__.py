@@ -9,6 +9,13 @@ __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
 from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
+from poreprobe.conductance import (  # noqa: E402
+    ConductanceEstimate,
+    SegmentResistance,
+    access_resistance_ohm,
+    series_resistance,
+)
+from poreprobe.electrolyte import BathConductivity, bath_conductivity  # noqa: E402
 from poreprobe.errors import (  # noqa: E402
     InputError,
     PoreNotFoundError,
@@ -17,9 +24,18 @@ from poreprobe.errors import (  # noqa: E402
 )
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
 from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
+from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.quality import QualityReport, check_model  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.reach import ReachField, reach_field  # noqa: E402
+from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
+from poreprobe.side_split import (  # noqa: E402
+    RatioFreeEnergy,
+    SideResistanceSplit,
+    ratio_free_energy,
+    split_side_resistances,
+)
 from poreprobe.structure import (  # noqa: E402
     Atoms,
     atoms_from_atomgroup,
@@ -32,30 +48,48 @@ from poreprobe.symmetry import subunit_deviation  # noqa: E402
 
 __all__ = [
     "__version__",
+    "access_resistance_ohm",
+    "atom_radii_A",
     "Atoms",
+    "atoms_from_atomgroup",
     "AtomSpheres",
+    "bath_conductivity",
+    "BathConductivity",
+    "capture_radius_at",
+    "check_model",
+    "clearance_A",
+    "compare_models",
+    "ConductanceEstimate",
+    "find_pore_axis",
+    "get_radius_set",
     "InputError",
+    "make_atoms",
     "ModelComparison",
+    "pore_extent",
+    "pore_lining",
+    "pore_segments",
     "PoreAxis",
     "PoreLining",
     "PoreNotFoundError",
     "PoreprobeError",
+    "PoreSegment",
+    "probe_scan",
+    "ProbeScan",
     "QualityReport",
     "QualityWarning",
+    "radius_profile",
     "RADIUS_SETS",
     "RadiusProfile",
-    "atom_radii_A",
-    "atoms_from_atomgroup",
-    "check_model",
-    "clearance_A",
-    "compare_models",
-    "find_pore_axis",
-    "get_radius_set",
-    "make_atoms",
-    "pore_lining",
-    "radius_profile",
+    "ratio_free_energy",
+    "RatioFreeEnergy",
+    "reach_field",
+    "ReachField",
     "read_structure",
+    "SegmentResistance",
     "select",
+    "series_resistance",
+    "SideResistanceSplit",
+    "split_side_resistances",
     "subunit_deviation",
     "superpose",
 ]
