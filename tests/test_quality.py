@@ -262,13 +262,9 @@ def test_bad_input(clean):
         check_model(replace(clean, kind=np.full(len(clean), "hetero")))
 
 
-def test_published_gramicidin_model():
+def test_published_gramicidin_model(gramicidin_pdb):
     """A real deposited channel (gramicidin A dimer from MDAnalysisTests' data folder)."""
-    import os
-
-    tests_pkg = pytest.importorskip("MDAnalysisTests")
-    path = os.path.join(os.path.dirname(tests_pkg.__file__), "data", "1grm_single.pdb")
-    atoms = read_structure(path, waters=True, ions=True, hetero=True)
+    atoms = read_structure(gramicidin_pdb, waters=True, ions=True, hetero=True)
     report = check_model(atoms, warn=False)
     # gramicidin A is a single-file pore about 4 Å across (Finkelstein & Andersen 1981,
     # J. Membr. Biol. 59:155): no room for a hydrated K+ (3.31 Å, Nightingale 1959)
