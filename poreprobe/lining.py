@@ -184,6 +184,8 @@ class PoreLining:
     gap_A : ndarray of shape (n_contacts,)
         Distance from the atom's surface to the sphere's surface (Å, <= the
         lining distance; ~0 for the atom that sets the radius).
+    contact_residue : ndarray of str, shape (n_contacts,)
+        Residue label (``"A:LEU12"``) of each contact's atom.
     s_A : ndarray of shape (n_planes,)
         The profile's plane positions (Å).
     lining_distance_A, constriction_radius_A, min_prominence_A : float
@@ -198,6 +200,7 @@ class PoreLining:
     plane_index: np.ndarray
     atom_index: np.ndarray
     gap_A: np.ndarray
+    contact_residue: np.ndarray
     s_A: np.ndarray
     lining_distance_A: float
     constriction_radius_A: float
@@ -207,13 +210,23 @@ class PoreLining:
     version: str = field(default=__version__)
 
     def __post_init__(self):
-        for name in ("plane_index", "atom_index", "gap_A", "s_A"):
+        for name in ("plane_index", "atom_index", "gap_A", "contact_residue", "s_A"):
             getattr(self, name).setflags(write=False)
 
     def atoms_at(self, s_A: float) -> np.ndarray:
         """Indices of the atoms lining the plane nearest to ``s_A``."""
         k = int(np.argmin(np.abs(self.s_A - float(s_A))))
         return self.atom_index[self.plane_index == k]
+
+    def levels(self) -> list[dict]:
+        """Per enclosed plane: s and the residues lining it, closest first."""
+        out = []
+        for k in np.unique(self.plane_index):
+            here = self.plane_index == k
+            out.append({"s_A": float(self.s_A[k]), "residues": list(dict.fromkeys(
+                self.contact_residue[here][np.argsort(self.gap_A[here], kind="stable")]
+                .tolist()))})
+        return out
 
     def labels(self) -> tuple[str, ...]:
         """Labels of all lining residues."""
@@ -225,7 +238,8 @@ class PoreLining:
                 "constriction_radius_A": self.constriction_radius_A,
                 "min_prominence_A": self.min_prominence_A,
                 "lining": [r.to_dict() for r in self.residues],
-                "constrictions": [c.to_dict() for c in self.constrictions]}
+                "constrictions": [c.to_dict() for c in self.constrictions],
+                "levels": self.levels()}
 
 
 def _resolve_radii(atoms: Atoms, profile: RadiusProfile, radii, radii_A) -> np.ndarray:
@@ -431,7 +445,8 @@ def pore_lining(atoms: Atoms, profile: RadiusProfile, *, radii: str | RadiusSet 
             residues=labels, groups=group_copies(atoms, here, backbone)))
     return PoreLining(
         residues=table, constrictions=tuple(constrictions), plane_index=plane,
-        atom_index=atom, gap_A=gap, s_A=np.asarray(profile.s_A, dtype=float).copy(),
+        atom_index=atom, gap_A=gap, contact_residue=atoms.residue_labels()[atom].astype(str),
+        s_A=np.asarray(profile.s_A, dtype=float).copy(),
         lining_distance_A=distance, constriction_radius_A=float(constriction_radius_A),
         min_prominence_A=float(min_prominence_A), radius_set=profile.radius_set,
         source=atoms.source)

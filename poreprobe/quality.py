@@ -273,6 +273,7 @@ class QualityReport:
             "profile": prof.to_dict()["profile"],
             "lining": [r.to_dict() for r in self.lining.residues],
             "constrictions": [c.to_dict() for c in self.lining.constrictions],
+            "lining_by_level": self.lining.levels(),
             "findings": [f.to_dict() for f in self.findings],
             "counts": self.counts(),
             "verdict": self.verdict.to_dict(),

@@ -60,6 +60,10 @@ def test_per_residue_table(hourglass4):
             - prof.radius_A[lining.plane_index])
     np.testing.assert_allclose(gaps, lining.gap_A, atol=1e-12)
     assert gaps.max() <= 0.5 + 1e-12 and gaps.min() >= -1e-6
+    # level by level: at the waist plane the ring at z = 0 (residue 11) lines it first
+    levels = {round(lv["s_A"], 6): lv["residues"] for lv in lining.levels()}
+    assert levels[0.0][0].endswith(":ALA11")
+    assert {lab.split(":")[0] for lab in levels[0.0] if lab.endswith(":ALA11")} == set("ABCD")
 
 
 def test_contacts_against_brute_force(hourglass4):

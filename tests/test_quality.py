@@ -276,3 +276,18 @@ def test_published_gramicidin_model(gramicidin_pdb):
     # formyl and ethanolamine caps are not reported as non-standard residues
     assert not report.by_code("nonstandard-residue")
     assert {f.code for f in report.findings} == {"hydrogens-absent", "uniform-b-factors"}
+
+
+def test_rigid_motion_leaves_the_report_unchanged(clean, clean_report):
+    from poreprobe.superpose import rotation_matrix
+
+    rot = rotation_matrix(np.array([0.3, -1.0, 0.4]) / np.linalg.norm([0.3, -1.0, 0.4]), 2.1)
+    moved = clean.with_coords(clean.coords_A @ rot.T + [40.0, -3.0, 11.0])
+    report = check_model(moved, warn=False)
+    assert [f.code for f in report.findings] == [f.code for f in clean_report.findings]
+    assert report.profile.min_radius_A == pytest.approx(clean_report.profile.min_radius_A,
+                                                        abs=0.01)   # PDB rounding in one
+    assert [r.label for r in report.lining.residues] == [r.label for r in
+                                                         clean_report.lining.residues]
+    assert [g.text for c in report.lining.constrictions for g in c.groups] == [
+        g.text for c in clean_report.lining.constrictions for g in c.groups]
