@@ -8,6 +8,7 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
     SegmentResistance,
@@ -22,8 +23,12 @@ from poreprobe.errors import (  # noqa: E402
     QualityWarning,
 )
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
+from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
+from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
+from poreprobe.quality import QualityReport, check_model  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.reach import ReachField, reach_field  # noqa: E402
 from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
 from poreprobe.side_split import (  # noqa: E402
     RatioFreeEnergy,
@@ -38,6 +43,8 @@ from poreprobe.structure import (  # noqa: E402
     read_structure,
     select,
 )
+from poreprobe.superpose import superpose  # noqa: E402
+from poreprobe.symmetry import subunit_deviation  # noqa: E402
 from poreprobe.viewer_export import (  # noqa: E402
     CenterLine,
     FieldGrid,
@@ -52,37 +59,50 @@ from poreprobe.viewer_export import (  # noqa: E402
 
 __all__ = [
     "__version__",
-    "Atoms",
-    "AtomSpheres",
-    "BathConductivity",
-    "ConductanceEstimate",
-    "InputError",
-    "PoreAxis",
-    "PoreNotFoundError",
-    "PoreSegment",
-    "PoreprobeError",
-    "QualityWarning",
-    "RADIUS_SETS",
-    "RadiusProfile",
-    "RatioFreeEnergy",
-    "SegmentResistance",
-    "SideResistanceSplit",
     "access_resistance_ohm",
     "atom_radii_A",
+    "Atoms",
     "atoms_from_atomgroup",
+    "AtomSpheres",
     "bath_conductivity",
+    "BathConductivity",
+    "capture_radius_at",
+    "check_model",
     "clearance_A",
+    "compare_models",
+    "ConductanceEstimate",
     "find_pore_axis",
     "get_radius_set",
+    "InputError",
     "make_atoms",
+    "ModelComparison",
     "pore_extent",
+    "pore_lining",
     "pore_segments",
+    "PoreAxis",
+    "PoreLining",
+    "PoreNotFoundError",
+    "PoreprobeError",
+    "PoreSegment",
+    "probe_scan",
+    "ProbeScan",
+    "QualityReport",
+    "QualityWarning",
     "radius_profile",
+    "RADIUS_SETS",
+    "RadiusProfile",
     "ratio_free_energy",
+    "RatioFreeEnergy",
+    "reach_field",
+    "ReachField",
     "read_structure",
+    "SegmentResistance",
     "select",
     "series_resistance",
+    "SideResistanceSplit",
     "split_side_resistances",
+    "subunit_deviation",
+    "superpose",
     # 3-D exports for molecular viewers (figures: import poreprobe.plots)
     "CenterLine",
     "FieldGrid",
