@@ -183,11 +183,18 @@ def add_ion_band_args(group) -> None:
                             "default crystal,hydrated (Å)")
 
 
-def add_figure_args(parser: argparse.ArgumentParser, *, ion_bands: bool = False) -> None:
-    """--figure FILE plus the figure size options, for commands that can draw their result."""
+def add_figure_args(parser: argparse.ArgumentParser, *, ion_bands: bool = False,
+                    kinds: tuple[str, ...] = ()) -> None:
+    """--figure FILE plus the figure size options, for commands that can draw their result.
+
+    With several ``kinds``, --figure-kind picks one (default the first).
+    """
     g = parser.add_argument_group("figure")
     g.add_argument("--figure", metavar="FILE",
                    help="also draw this command's figure: PNG, SVG or PDF by the suffix")
+    if kinds:
+        g.add_argument("--figure-kind", choices=kinds, default=kinds[0],
+                       help=f"which figure --figure draws (default {kinds[0]})")
     add_figure_size_args(g)
     if ion_bands:
         add_ion_band_args(g)

@@ -709,7 +709,9 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     data = scan_arrays(scan)
     if data["accessible_radius_A"] is None:
         raise InputError("the scan JSON holds no accessible-radius profiles "
-                         "(s_A and accessible_radius_A)")
+                         "(profiles.s_A and profiles.accessible_radius_A)")
+    if not np.isfinite(data["accessible_radius_A"]).any():
+        raise InputError("the scan's accessible-radius profiles hold no finite radius")
     ax = _axes(ax, width_mm, height_mm)
     refs = _checked_references(ion_radii)
     _draw_reference_bands(ax, refs)
@@ -718,12 +720,12 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     vmin, vmax = float(p.min()), float(p.max())
     norm = mpl.colors.Normalize(vmin, vmax if vmax > vmin else vmin + 1)
     cmap = mpl.colormaps[RADIUS_CMAP]
-    for k in np.argsort(-p):
+    for k in np.argsort(p):            # larger probes (shorter reach) drawn on top
         ax.plot(s, acc[k], color=cmap(norm(p[k])), linewidth=0.8, zorder=3)
         stop = data["stop_s_A"][k]
-        if not passes[k] and np.isfinite(stop):
-            j = int(np.argmin(np.abs(s - stop)))
-            y = acc[k, j] if np.isfinite(acc[k, j]) else p[k]
+        finite = np.isfinite(acc[k])
+        if not passes[k] and np.isfinite(stop) and finite.any():
+            y = np.interp(stop, s[finite], acc[k, finite])
             ax.plot([stop], [y], marker="o", markersize=2.5, color=cmap(norm(p[k])),
                     markeredgecolor="black", markeredgewidth=0.4, zorder=4)
     ax.plot([], [], marker="o", markersize=2.5, color="white", markeredgecolor="black",
@@ -733,7 +735,8 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     bar.set_label("Probe radius p (Å)")
     bar.ax.tick_params(labelsize=FONT_PT - 0.5, width=0.6, length=2)
     bar.outline.set_linewidth(0.6)
-    ax.set_xlim(s[0], s[-1])
+    covered = s[np.isfinite(acc).any(axis=0)]
+    ax.set_xlim(covered[0], covered[-1])
     ax.set_ylim(0, max([np.nanmax(acc)] + [v for _, v in refs]) * 1.1)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel("Accessible radius (Å)")

@@ -452,3 +452,28 @@ def test_capture_marks_probes_that_stop_pass_or_never_enter(scan):
     np.testing.assert_allclose(marks["probe passes (bottleneck)"], p[passes])
     np.testing.assert_allclose(marks["probe stops in the pore"], p[~passes][:-1])
     np.testing.assert_allclose(marks["probe does not enter (c = 0)"], p[-1:])
+
+
+@pytest.mark.parametrize("kind", ["probes", "capture"])
+def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
+    """The real scan JSON (issue 3 layout) drives the probes and capture figures."""
+    js, fig = tmp_path / "scan.json", tmp_path / f"{kind}.svg"
+    axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
+    assert main(["scan", c4_cylinder_pdb, *axis, "--probes", "1:5:1", "--json", str(js),
+                 "--figure", str(fig), "--figure-kind", kind, "--quiet"]) == 0
+    assert fig.read_text().lstrip().startswith("<?xml")
+    data = json.loads(js.read_text())
+    ax = plots.draw_figure(kind, [data])
+    p = np.array(data["capture"]["probe_radius_A"])
+    if kind == "probes":
+        acc = np.array(data["profiles"]["accessible_radius_A"], dtype=float)
+        lines = [ln for ln in ax.lines if len(ln.get_xdata()) == acc.shape[1]]
+        assert len(lines) == len(p)
+        assert ax.get_ylim()[1] >= np.nanmax(acc)
+        covered = np.array(data["profiles"]["s_A"])[np.isfinite(acc).any(axis=0)]
+        assert ax.get_xlim() == pytest.approx((covered[0], covered[-1]))
+    else:
+        curve = next(ln for ln in ax.lines if len(ln.get_xdata()) == len(p)
+                     and ln.get_linestyle() == "-")
+        np.testing.assert_allclose(curve.get_ydata(), data["capture"]["capture_radius_A"])
+        assert ax.get_xlim()[0] <= p.min() and ax.get_xlim()[1] >= p.max()
