@@ -460,33 +460,89 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
                          if np.isfinite(data["min_radius_A"]) else [])
     top = np.nanmax(np.concatenate([r, [v for _, v in refs]]))
     ax.set_xlim(s[0], s[-1])
-    for c in constrictions:
-        _annotate_constriction(ax, float(c["s_A"]), float(c["radius_A"]),
-                               list(c.get("residues") or ()))
     if np.isfinite(r).any() and (~np.isfinite(r)).any():
         ax.fill_between([], [], color=OPEN_COLOR, alpha=0.5, label="open to bulk")
     ax.set_ylim(0, top * 1.18)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel(RADIUS_LABEL)
     ax.legend(loc="best", handlelength=1.6)
-    return _finish(ax)
+    _finish(ax)
+    _annotate_constrictions(ax, constrictions, s, r)
+    return ax
 
 
-def _annotate_constriction(ax, s_A, radius_A, residues):
-    ax.plot([s_A], [radius_A], marker="v", color=OKABE_ITO["vermillion"], zorder=4,
-            markersize=4, linestyle="none")
-    text = f"{radius_A:.2f} Å"
-    if residues:
-        text += "\n" + residue_summary(residues)
+#: Heights (points above the marker) tried in turn for a constriction's label.
+_LABEL_OFFSETS_PT = (22, 40, 58)
+#: Two constrictions joined by a stretch no wider than this (Å) above both are one.
+_SAME_CONSTRICTION_A = 0.1
+
+
+def _same_constriction(s_A, radius_A, a: tuple, b: tuple) -> bool:
+    """Whether the profile between constrictions a and b stays within a hair of both."""
+    lo, hi = sorted((a[0], b[0]))
+    between = radius_A[(s_A >= lo) & (s_A <= hi)]
+    return bool(between.size) and np.all(np.isfinite(between)) and float(
+        between.max()) <= max(a[1], b[1]) + _SAME_CONSTRICTION_A
+
+
+def _annotate_constrictions(ax, constrictions: Sequence[Mapping], s_A, radius_A) -> None:
+    """Mark each constriction; label it (radius, lining residues) where the label fits.
+
+    The most prominent constrictions (``prominence_A``, as the check command
+    reports it; else the narrowest) are labelled first. A constriction joined to
+    a labelled one by a stretch no more than 0.1 Å wider (ripples of one narrow
+    stretch) keeps its marker only. A label that would overlap one already placed
+    is lifted to the next height in :data:`_LABEL_OFFSETS_PT`, and left out (the
+    marker stays) when no height is free.
+    """
+    ranked = sorted(constrictions, key=lambda c: (-float(c.get("prominence_A") or 0.0),
+                                                  float(c["radius_A"])))
+    items = [(float(c["s_A"]), float(c["radius_A"]), list(c.get("residues") or ()))
+             for c in ranked]
+    if not items:
+        return
+    renderer = _renderer(ax.figure)
     lo, hi = ax.get_xlim()
-    where = (s_A - lo) / (hi - lo) if hi > lo else 0.5
-    ha = "left" if where < 0.2 else "right" if where > 0.8 else "center"
-    ax.annotate(text, xy=(s_A, radius_A), xytext=(0, 22), textcoords="offset points",
+    placed, labelled = [], []
+    for item in items:
+        s_c, r_c, residues = item
+        ax.plot([s_c], [r_c], marker="v", color=OKABE_ITO["vermillion"], zorder=4,
+                markersize=4, linestyle="none")
+        if any(_same_constriction(s_A, radius_A, item, other) for other in labelled):
+            continue
+        labelled.append(item)
+        text = f"{r_c:.2f} Å" + ("\n" + residue_summary(residues) if residues else "")
+        where = (s_c - lo) / (hi - lo) if hi > lo else 0.5
+        ha = "left" if where < 0.2 else "right" if where > 0.8 else "center"
+        for offset in _LABEL_OFFSETS_PT:
+            note = ax.annotate(
+                text, xy=(s_c, r_c), xytext=(0, offset), textcoords="offset points",
                 ha=ha, va="bottom", fontsize=SMALL_FONT_PT, zorder=5,
                 bbox={"boxstyle": "square,pad=0.15", "facecolor": "white", "alpha": 0.85,
                       "edgecolor": "none"},
                 arrowprops={"arrowstyle": "-", "linewidth": 0.5, "color": "0.3",
                             "shrinkA": 0, "shrinkB": 3})
+            if renderer is None:
+                break
+            # the text alone (an Annotation's own extent includes its leader line)
+            note.update_positions(renderer)
+            box = mpl.text.Text.get_window_extent(note, renderer).padded(2)
+            if not any(box.overlaps(other) for other in placed):
+                placed.append(box)
+                break
+            note.remove()
+
+
+def _renderer(fig):
+    """A renderer for measuring text, after the layout engine has placed the axes."""
+    if not hasattr(fig.canvas, "get_renderer"):
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+        FigureCanvasAgg(fig)
+    engine = fig.get_layout_engine()
+    if engine is not None:
+        engine.execute(fig)
+    return fig.canvas.get_renderer() if hasattr(fig.canvas, "get_renderer") else None
 
 
 # --------------------------------------------------------------------------- overlay
@@ -1040,7 +1096,8 @@ def _constrictions_from_check(check: Mapping) -> list[dict] | None:
         residues = [r if isinstance(r, str) else
                     f"{r.get('chain', '')}:{r.get('resname', '')}{r.get('resid', '')}"
                     for r in residues]
-        out.append({"s_A": c["s_A"], "radius_A": c["radius_A"], "residues": residues})
+        out.append({"s_A": c["s_A"], "radius_A": c["radius_A"], "residues": residues,
+                    "prominence_A": c.get("prominence_A")})
     return out
 
 
@@ -1073,8 +1130,13 @@ def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,
     groups = _classify(dicts)
     size = {"width_mm": width_mm, "height_mm": height_mm}
     if kind == "profile":
+        if len(groups["check"]) > 1:
+            raise InputError("figure 'profile' takes at most one check JSON")
         check = groups["check"][0] if groups["check"] else None
-        return plot_profile(_one(groups["profile"], "profile", kind), ion_radii=ion_radii,
+        # a check result carries its own profile: it can stand alone
+        profile = (check if check is not None and not groups["profile"] and "profile" in check
+                   else _one(groups["profile"], "profile", kind))
+        return plot_profile(profile, ion_radii=ion_radii,
                             constrictions=_constrictions_from_check(check) if check else None,
                             **size)
     if kind == "overlay":

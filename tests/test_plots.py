@@ -228,12 +228,12 @@ def test_profile_axes_carry_profile_and_ion_bands(profile_a):
 
 def test_profile_constrictions_from_a_check_result(profile_a):
     check = {"lining": [], "constrictions": [
-        {"s_A": -5.0, "radius_A": 3.1, "residues": ["A:LEU12", "B:LEU12"]},
+        {"s_A": -9.0, "radius_A": 3.1, "residues": ["A:LEU12", "B:LEU12"]},
         {"s_A": 0.0, "radius_A": 2.3, "residues": [{"chain": "A", "resname": "THR",
                                                      "resid": 75}]}]}
     ax = plots.draw_figure("profile", [profile_a, check])
     texts = [t.get_text() for t in ax.texts]
-    assert texts == ["3.10 Å\nLEU12 ×2", "2.30 Å\nTHR75"]
+    assert texts == ["2.30 Å\nTHR75", "3.10 Å\nLEU12 ×2"]          # narrowest first
 
 
 def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, trajectory):
@@ -477,3 +477,25 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
                      and ln.get_linestyle() == "-")
         np.testing.assert_allclose(curve.get_ydata(), data["capture"]["capture_radius_A"])
         assert ax.get_xlim()[0] <= p.min() and ax.get_xlim()[1] >= p.max()
+
+
+def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
+    """The real check JSON (issue 6 layout) carries a profile and its constrictions."""
+    from poreprobe.writer import write_structure
+
+    z = np.arange(-12.0, 12.1, 1.0)
+    rings = np.interp(z, [-12, -8, -6, -4, -2, 2, 4, 8, 12], [8, 6, 4.3, 4.3, 7, 7, 3.3, 3.3, 8])
+    model = tmp_path / "gate_filter.pdb"
+    write_structure(synthetic.ring_stack(rings, z, atoms_per_ring=24, chains=4), model)
+    js = tmp_path / "check.json"
+    axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
+    assert main(["check", str(model), *axis, "--json", str(js), "--quiet"]) == 0
+    data = json.loads(js.read_text())
+    ax = plots.draw_figure("profile", [data])
+    markers = [ln for ln in ax.lines if ln.get_marker() == "v"]
+    assert len(markers) == len(data["constrictions"]) >= 2
+    labels = [t.get_text() for t in ax.texts]
+    # one label per narrow stretch: the gate (ring radius 4.3 Å) and the filter (3.3 Å)
+    assert len(labels) == 2 and all("×4" in t for t in labels)
+    gate = min(data["constrictions"], key=lambda c: abs(c["s_A"] + 5))
+    assert any(t.startswith(f"{gate['radius_A']:.2f} Å") for t in labels)
