@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
+from poreprobe._validate import check_positive, check_range
 from poreprobe.cli_common import add_axis_args, add_structure_args, radius_set_from_args, say
 from poreprobe.cli_profile import add_profile_args
 from poreprobe.cli_profile import compute as compute_profile
@@ -14,21 +17,29 @@ def register(sub) -> None:
         "export", help="pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) "
                        "for molecular viewers",
         description="Write the pore in the model's own coordinates for any molecular viewer: "
-                    "the clearance field as a CCP4/MRC map (its isosurface at level p is the "
-                    "surface traced by the centre of a probe of radius p), that surface for "
-                    "one probe radius as a PLY or OBJ mesh, and the profile's centre line as "
-                    "mmCIF. Model-based estimates: they depend on the radius set.")
+                    "the reach (or clearance) field as a CCP4/MRC map (its isosurface at "
+                    "level p bounds where the centre of a probe of radius p gets from the "
+                    "entry, or fits), the probe-centre surface for one probe radius as a PLY "
+                    "or OBJ mesh, and the profile's centre line as mmCIF. Model-based "
+                    "estimates: they depend on the radius set.")
     add_structure_args(p)
     add_axis_args(p)
     add_profile_args(p)
     g = p.add_argument_group("exports (at least one)")
     g.add_argument("--map", metavar="FILE",
-                   help="clearance map, .map/.ccp4/.mrc (values in Å)")
+                   help="reach (or clearance) map, .map/.ccp4/.mrc (values in Å)")
     g.add_argument("--mesh", metavar="FILE",
                    help="pore surface for --probe-radius-A, .ply or .obj (coordinates in Å)")
     g.add_argument("--centerline", metavar="FILE",
                    help="centre line with radius and lining residues per point, .cif")
     o = p.add_argument_group("export options")
+    o.add_argument("--map-field", choices=("reach", "clearance"), default="reach",
+                   help="what the map holds (Å): reach, the largest probe radius that gets "
+                        "there from the entry end (default), or clearance, the radius of the "
+                        "largest empty sphere centred there")
+    o.add_argument("--from", dest="from_end", choices=("low", "high"), default="low",
+                   help="end of the axis where probes enter, for the reach map (default low: "
+                        "the --entry end)")
     o.add_argument("--probe-radius-A", "--probe-radius", dest="probe_radius_A", type=float,
                    metavar="P", help="probe radius for --mesh in Å (required with --mesh; "
                                      "0 gives the atoms' van der Waals surface)")
@@ -60,6 +71,9 @@ def _check_request(args) -> None:
 
     if not (args.map or args.mesh or args.centerline):
         raise InputError("nothing to export: give --map, --mesh and/or --centerline")
+    check_range(args.spacing_A, "spacing_A", 0.05, 5.0)
+    if args.region_radius_A is not None:
+        check_positive(args.region_radius_A, "region_radius_A")
     if args.map:
         check_suffix(args.map, MAP_SUFFIXES, "--map")
     if args.mesh:
@@ -68,6 +82,20 @@ def _check_request(args) -> None:
             raise InputError("--mesh needs --probe-radius-A (the probe radius in Å)")
     if args.centerline:
         check_suffix(args.centerline, CENTERLINE_SUFFIXES, "--centerline")
+
+
+def _reach_map(atoms, prof, radii_A, args):
+    """The reach field around the pore, resampled onto a Cartesian grid."""
+    from poreprobe import viewer_export as ve
+    from poreprobe.reach import reach_field
+
+    region = (ve.default_region_radius_A(prof) if args.region_radius_A is None
+              else args.region_radius_A)
+    field = reach_field(atoms, prof.axis, radii_A=radii_A, spacing_A=args.spacing_A,
+                        from_end=args.from_end, pore_radius_A=region,
+                        max_probe_A=max(6.0, args.probe_radius_A or 0.0))
+    field = replace(field, radius_set=prof.radius_set, source=atoms.source)
+    return ve.reach_grid(field, quiet=args.quiet)
 
 
 def run(args) -> int:
@@ -79,20 +107,26 @@ def run(args) -> int:
     say(args, f"poreprobe {prof.version}: pore of {atoms.source} ({len(atoms)} atoms), "
               f"radius set {prof.radius_set}, narrowest radius {prof.min_radius_A:.2f} Å at "
               f"s = {prof.min_s_A:.1f} Å - a model-based estimate")
-    grid = surface = line = None
-    if args.map or args.mesh:
+    grid = map_grid = surface = line = None
+    if args.mesh or (args.map and args.map_field == "clearance"):
         grid = ve.clearance_grid(atoms, prof, radii_A=radii_A, spacing_A=args.spacing_A,
                                  region_radius_A=args.region_radius_A, quiet=args.quiet)
+        map_grid = grid
+    if args.map and args.map_field == "reach":
+        map_grid = _reach_map(atoms, prof, radii_A, args)
     if args.mesh:
         surface = ve.pore_surface(grid, prof, probe_radius_A=args.probe_radius_A)
     if args.centerline:
         line = ve.center_line(atoms, prof, radii_A=radii_A, contact_tol_A=args.contact_tol_A)
     # everything is computed before the first file is written
     if args.map:
-        ve.write_map(grid, args.map)
-        say(args, f"{args.map}: clearance (Å) on {'x'.join(map(str, grid.shape))} points "
-                  f"every {grid.spacing_A:g} Å; the isosurface at level p is the surface "
-                  "traced by the centre of a probe of radius p")
+        ve.write_map(map_grid, args.map)
+        what = ("reach from the " + args.from_end + " end" if map_grid.field == "reach"
+                else "clearance")
+        say(args, f"{args.map}: {what} (Å) on {'x'.join(map(str, map_grid.shape))} points "
+                  f"every {map_grid.spacing_A:g} Å; the isosurface at level p bounds where "
+                  "the centre of a probe of radius p "
+                  + ("gets from the entry" if map_grid.field == "reach" else "fits"))
     if surface is not None:
         ve.write_mesh(surface, args.mesh, color_by_radius=args.mesh_colors,
                       radius_range_A=args.radius_range_A)

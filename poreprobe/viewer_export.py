@@ -67,7 +67,7 @@ class FieldGrid:
     spacing_A : float
         Distance between neighbouring grid points (Å).
     field : str
-        What the values are (``"clearance"``).
+        What the values are: ``"clearance"`` or ``"reach"``.
     axis : PoreAxis
         The pore axis the grid was built around.
     region_radius_A : float
@@ -188,8 +188,21 @@ def clearance_grid(atoms: Atoms, profile: RadiusProfile, *,
     spheres = AtomSpheres(atoms.coords_A, radii_A)
     axis = profile.axis
     s_lo, s_hi = float(profile.s_A[0]), float(profile.s_A[-1])
+    start, shape = _cartesian_box(axis, (s_lo, s_hi), region_radius_A, spacing_A)
+    values = np.empty(shape, dtype=np.float64)
+    for rows, pts in progress(_point_blocks(start, shape, spacing_A), desc="clearance grid",
+                              quiet=quiet, total=_n_blocks(shape)):
+        values[rows] = spheres.clearance_A(pts).reshape(-1, shape[1], shape[2])
+    return FieldGrid(values_A=values, start=start, spacing_A=spacing_A, field="clearance",
+                     axis=axis, region_radius_A=region_radius_A, s_range_A=(s_lo, s_hi),
+                     radius_set=radius_set, source=atoms.source)
+
+
+def _cartesian_box(axis, s_range_A, radius_A: float, spacing_A: float):
+    """Start index and shape of the grid (multiples of the spacing) holding a cylinder."""
+    s_lo, s_hi = s_range_A
     ends = np.array([axis.point_A + s_lo * axis.direction, axis.point_A + s_hi * axis.direction])
-    half = region_radius_A * np.sqrt(np.clip(1.0 - axis.direction**2, 0.0, 1.0))
+    half = radius_A * np.sqrt(np.clip(1.0 - axis.direction**2, 0.0, 1.0))
     start = np.floor((ends.min(0) - half) / spacing_A).astype(np.int64)
     stop = np.ceil((ends.max(0) + half) / spacing_A).astype(np.int64)
     shape = tuple(int(n) for n in stop - start + 1)
@@ -197,19 +210,80 @@ def clearance_grid(atoms: Atoms, profile: RadiusProfile, *,
     if n_points > MAX_GRID_POINTS:
         raise InputError(f"the grid would hold {n_points:,} points (limit {MAX_GRID_POINTS:,}); "
                          f"use a larger spacing_A than {spacing_A} or a smaller region")
-    values = np.empty(shape, dtype=np.float64)
-    x = (start[0] + np.arange(shape[0])) * spacing_A
-    y = (start[1] + np.arange(shape[1])) * spacing_A
-    z = (start[2] + np.arange(shape[2])) * spacing_A
+    return start, shape
+
+
+def _rows_per_block(shape) -> int:
+    return max(1, _CHUNK_POINTS // (shape[1] * shape[2]))
+
+
+def _n_blocks(shape) -> int:
+    return -(-shape[0] // _rows_per_block(shape))
+
+
+def _point_blocks(start, shape, spacing_A: float):
+    """Blocks of x rows of the grid: (row slice, their points (m, 3) in Å)."""
+    x, y, z = ((start[k] + np.arange(shape[k])) * spacing_A for k in range(3))
     yz = np.stack(np.meshgrid(y, z, indexing="ij"), axis=-1).reshape(-1, 2)
-    per_chunk = max(1, _CHUNK_POINTS // len(yz))
-    for i0 in progress(range(0, shape[0], per_chunk), desc="clearance grid", quiet=quiet):
-        xs = x[i0:i0 + per_chunk]
-        pts = np.column_stack([np.repeat(xs, len(yz)), np.tile(yz, (len(xs), 1))])
-        values[i0:i0 + len(xs)] = spheres.clearance_A(pts).reshape(len(xs), shape[1], shape[2])
-    return FieldGrid(values_A=values, start=start, spacing_A=spacing_A, field="clearance",
-                     axis=axis, region_radius_A=region_radius_A, s_range_A=(s_lo, s_hi),
-                     radius_set=radius_set, source=atoms.source)
+    step = _rows_per_block(shape)
+    for i0 in range(0, shape[0], step):
+        xs = x[i0:i0 + step]
+        yield slice(i0, i0 + len(xs)), np.column_stack([np.repeat(xs, len(yz)),
+                                                        np.tile(yz, (len(xs), 1))])
+
+
+def reach_grid(field, *, spacing_A: float | None = None, quiet: bool = True) -> FieldGrid:
+    """The reach field of a probe-size scan, resampled onto a Cartesian grid for a map.
+
+    Parameters
+    ----------
+    field : ReachField
+        From :func:`poreprobe.reach_field` (its grid lies in the pore-axis frame).
+    spacing_A : float, optional
+        Spacing of the Cartesian grid (Å, 0.05 to 5); default the field's own.
+    quiet : bool
+        No progress bar.
+
+    Returns
+    -------
+    FieldGrid
+        ``field="reach"``: the largest probe radius (Å) whose centre gets from the
+        entry bulk to each grid point, so the isosurface at level p bounds the
+        region probe p reaches. Values are trilinear in the field's voxels; where
+        no probe gets (reach -inf) a voxel counts as its own clearance inside atoms
+        and as minus one spacing elsewhere, as does everything outside the field's
+        pore region. Reach above the field's clearance cap is reported as the cap.
+
+    Notes
+    -----
+    Where the Cartesian grid points coincide with the field's voxels (an axis
+    along x, y or z through a grid point, same spacing) the values are the
+    field's own, exactly.
+    """
+    from scipy.ndimage import map_coordinates
+
+    from poreprobe.reach import ReachField
+
+    if not isinstance(field, ReachField):
+        raise InputError(f"field must be a ReachField, got {type(field).__name__}")
+    h = field.spacing_A if spacing_A is None else check_range(spacing_A, "spacing_A", 0.05, 5.0)
+    low = -field.spacing_A
+    reach = np.asarray(field.reach_A)
+    clearance = np.asarray(field.clearance_A)
+    voxels = np.where(np.isfinite(reach), reach,
+                      np.where(np.isfinite(clearance) & (clearance < 0), clearance, low))
+    voxels = np.where(field.inside, voxels, low)
+    s_range = (float(field.s_A[0]), float(field.s_A[-1]))
+    start, shape = _cartesian_box(field.axis, s_range, field.pore_radius_A, h)
+    values = np.empty(shape, dtype=np.float64)
+    for rows, pts in progress(_point_blocks(start, shape, h), desc="reach map", quiet=quiet,
+                              total=_n_blocks(shape)):
+        index = (field.axis.to_frame(pts) - field.origin_A) / field.spacing_A
+        values[rows] = map_coordinates(voxels, index.T, order=1, mode="constant",
+                                       cval=low).reshape(-1, shape[1], shape[2])
+    return FieldGrid(values_A=values, start=start, spacing_A=h, field="reach", axis=field.axis,
+                     region_radius_A=field.pore_radius_A, s_range_A=s_range,
+                     radius_set=field.radius_set, source=field.source)
 
 
 def check_suffix(path, suffixes, what) -> str:

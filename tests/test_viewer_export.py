@@ -118,6 +118,44 @@ def test_map_file_name_and_grid_size_are_checked(hourglass, tmp_path):
                           region_radius_A=60.0)
 
 
+def test_reach_map_equals_the_reach_field_where_the_grids_coincide(tmp_path):
+    """Axis along z through the origin: the field's voxels are Cartesian grid points."""
+    z = np.arange(-8, 8.1, 1.0)
+    atoms = synthetic.ring_stack(4.0 + 4.0 * (z / 8) ** 2, z, atoms_per_ring=24, chains=4)
+    axis = poreprobe.PoreAxis([0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "user")
+    field = poreprobe.reach_field(atoms, axis, spacing_A=SPACING_A, pore_radius_A=9.0)
+    path = tmp_path / "reach.map"
+    ve.write_map(ve.reach_grid(field), path)
+    _, h = _read_map(path)
+    step = h["cell"] / h["sampling"]
+    voxels = np.argwhere(field.inside & np.isfinite(field.reach_A))[::11]
+    xyz = field.index_to_xyz(voxels)
+    index = np.rint(xyz / step).astype(np.int64) - h["start"]
+    np.testing.assert_allclose(index * step + h["start"] * step, xyz, atol=1e-9)
+    np.testing.assert_allclose(h["values"][tuple(index.T)], field.reach_A[tuple(voxels.T)],
+                               atol=1e-5)
+    assert len(voxels) > 100
+
+
+def test_reach_map_shows_how_far_each_probe_gets_from_the_entry(hourglass, tmp_path):
+    """General pose: {reach >= p} reaches past the 2.3 Å waist only for p below it."""
+    field = poreprobe.reach_field(hourglass.atoms, hourglass.axis, radii_A=hourglass.radii_A,
+                                  spacing_A=SPACING_A, pore_radius_A=9.0, from_end="low")
+    path = tmp_path / "reach.ccp4"
+    ve.write_map(ve.reach_grid(field), path)
+    _, h = _read_map(path)
+    step = h["cell"] / h["sampling"]
+    waist = hourglass.profile.min_radius_A
+    for probe, passes in ((waist - 0.5, True), (waist + 0.5, False)):
+        idx = np.argwhere(h["values"] >= probe)
+        s = hourglass.axis.s_A((h["start"] + idx) * step)
+        assert s.min() < -6                                 # in from the low (entry) end
+        assert bool(s.max() > 6) == passes                  # through the waist or not
+        # a probe centre only sits where it fits: clearance >= p, to interpolation error
+        c = hourglass.spheres.clearance_A((h["start"] + idx) * step)
+        assert c.min() >= probe - SPACING_A
+
+
 # --------------------------------------------------------------------------- mesh
 
 
@@ -288,17 +326,22 @@ def model_file(tmp_path_factory):
 AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
 
 
-def test_export_command_writes_all_three(model_file, tmp_path, capsys):
+@pytest.mark.parametrize("field", ["reach", "clearance"])
+def test_export_command_writes_all_three(model_file, tmp_path, capsys, field):
     out = {k: tmp_path / name for k, name in
            [("map", "p.ccp4"), ("mesh", "p.ply"), ("centerline", "p.cif")]}
     assert main(["export", str(model_file), *AXIS, "--map", str(out["map"]),
-                 "--mesh", str(out["mesh"]), "--probe-radius-A", "1.0",
+                 "--map-field", field, "--mesh", str(out["mesh"]), "--probe-radius-A", "1.0",
                  "--centerline", str(out["centerline"])]) == 0
     text = capsys.readouterr().out
     assert "model-based estimate" in text and "centre-line points" in text
+    assert f"p.ccp4: {field}" in text
     assert all(p.stat().st_size > 0 for p in out.values())
-    m, _ = _read_map(out["map"])
+    m, h = _read_map(out["map"])
     assert m.header_float(11) / m.header_i32(8) == pytest.approx(0.5)
+    # the narrowest point (ring radius 4 Å less carbon 1.7 Å) holds 2.3 Å in either field
+    centre = (np.rint(np.zeros(3) / 0.5).astype(int) - h["start"])
+    assert h["values"][tuple(centre)] == pytest.approx(2.3, abs=0.05)
 
 
 @pytest.mark.parametrize("argv, message", [
