@@ -17,7 +17,6 @@ from poreprobe.viscosity import (
     water_viscosity_mPa_s,
 )
 
-
 # --- water --------------------------------------------------------------------------
 
 def test_water_table_points_reproduced():
