@@ -8,13 +8,21 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.capture import (  # noqa: E402
+    CaptureRadiusEstimate,
+    capture_radius_from_current_A,
+    diffusion_limited_current_pA,
+    estimate_capture_radius,
+)
 from poreprobe.errors import (  # noqa: E402
     InputError,
     PoreNotFoundError,
     PoreprobeError,
     QualityWarning,
 )
+from poreprobe.ions import IONS, Ion, get_ion  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
+from poreprobe.match import CaptureMatch, match_capture_radius, match_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
 from poreprobe.structure import (  # noqa: E402
@@ -23,6 +31,12 @@ from poreprobe.structure import (  # noqa: E402
     make_atoms,
     read_structure,
     select,
+)
+from poreprobe.viscosity import (  # noqa: E402
+    VISCOGENS,
+    DiffusionEstimate,
+    diffusion_coefficient,
+    water_viscosity_mPa_s,
 )
 
 __all__ = [
@@ -45,4 +59,19 @@ __all__ = [
     "radius_profile",
     "read_structure",
     "select",
+    # bench side: capture radius of a current, ion data, viscosity, the match
+    "CaptureMatch",
+    "CaptureRadiusEstimate",
+    "DiffusionEstimate",
+    "IONS",
+    "Ion",
+    "VISCOGENS",
+    "capture_radius_from_current_A",
+    "diffusion_coefficient",
+    "diffusion_limited_current_pA",
+    "estimate_capture_radius",
+    "get_ion",
+    "match_capture_radius",
+    "match_scan",
+    "water_viscosity_mPa_s",
 ]

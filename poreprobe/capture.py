@@ -302,7 +302,8 @@ def estimate_capture_radius(current_pA: float, conc_mM: float, diffusion_m2_per_
     if r_draws.size < 2:
         raise InputError("the input uncertainties are so large that almost every Monte Carlo "
                          "draw has a non-positive current, concentration or D")
-    mc_sd = float(r_draws.std(ddof=1))
+    # Identical draws (no uncertainty given) have exactly zero spread.
+    mc_sd = float(r_draws.std(ddof=1)) if np.ptp(r_draws) > 0 else 0.0
     lo, hi = np.percentile(r_draws, [2.5, 97.5])
     result = CaptureRadiusEstimate(
         capture_radius_A=r, capture_radius_sd_A=sd_first,
