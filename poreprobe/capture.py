@@ -30,8 +30,6 @@ seed (independent normal draws; draws with a non-positive I, c or D are
 rejected and counted). Both are reported; a warning says when they disagree.
 """
 
-# Unit suffixes in function names (_pA, _A, _mM) are the project's naming convention.
-# ruff: noqa: N802
 from __future__ import annotations
 
 import math

@@ -30,8 +30,6 @@ Tables (all values as printed in their source)
   about 5 % above a smooth curve through its neighbours; it is kept as printed.
 """
 
-# Unit suffixes in function names (_pA, _A, _mM) are the project's naming convention.
-# ruff: noqa: N802
 from __future__ import annotations
 
 import math
