@@ -158,6 +158,10 @@ class CaptureRadiusEstimate:
         Mean and SD of the Monte Carlo draws of r_c.
     capture_radius_mc_interval_A : tuple of float
         2.5 and 97.5 percentiles of the draws (a 95 % interval).
+    capture_radius_mc_halfwidth68_A : float
+        Half the distance between the 16th and 84th percentiles of the draws: equals
+        the SD for a normal spread, but unlike the SD it is not inflated by the rare
+        draws of a near-zero concentration or D when uncertainties are large.
     capture_rate_per_s : float
         Ions captured per second, ``I / (|z| e)``.
     variance_shares : dict
@@ -181,6 +185,7 @@ class CaptureRadiusEstimate:
     capture_radius_mc_mean_A: float
     capture_radius_mc_sd_A: float
     capture_radius_mc_interval_A: tuple[float, float]
+    capture_radius_mc_halfwidth68_A: float
     capture_rate_per_s: float
     variance_shares: dict
     current_pA: float
@@ -214,6 +219,7 @@ class CaptureRadiusEstimate:
             "capture_radius_mc_mean_A": self.capture_radius_mc_mean_A,
             "capture_radius_mc_sd_A": self.capture_radius_mc_sd_A,
             "capture_radius_mc_interval_A": list(self.capture_radius_mc_interval_A),
+            "capture_radius_mc_halfwidth68_A": self.capture_radius_mc_halfwidth68_A,
             "sd_relative_difference": self.sd_relative_difference,
             "capture_rate_per_s": self.capture_rate_per_s,
             "variance_shares": dict(self.variance_shares),
@@ -302,11 +308,12 @@ def estimate_capture_radius(current_pA: float, conc_mM: float, diffusion_m2_per_
                          "draw has a non-positive current, concentration or D")
     # Identical draws (no uncertainty given) have exactly zero spread.
     mc_sd = float(r_draws.std(ddof=1)) if np.ptp(r_draws) > 0 else 0.0
-    lo, hi = np.percentile(r_draws, [2.5, 97.5])
+    lo, p16, p84, hi = np.percentile(r_draws, [2.5, 16.0, 84.0, 97.5])
     result = CaptureRadiusEstimate(
         capture_radius_A=r, capture_radius_sd_A=sd_first,
         capture_radius_mc_mean_A=float(r_draws.mean()), capture_radius_mc_sd_A=mc_sd,
         capture_radius_mc_interval_A=(float(lo), float(hi)),
+        capture_radius_mc_halfwidth68_A=float(p84 - p16) / 2 if mc_sd > 0 else 0.0,
         capture_rate_per_s=float(pA_to_A(means[0]) / (abs(z) * constants.e)),
         variance_shares={"current": float(shares[0]), "concentration": float(shares[1]),
                          "diffusion": float(shares[2])},

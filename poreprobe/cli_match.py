@@ -162,6 +162,7 @@ def compute(args) -> dict:
         "capture_radius_sd_A": est.capture_radius_sd_A,
         "capture_radius_mc_sd_A": est.capture_radius_mc_sd_A,
         "capture_radius_mc_interval_A": list(est.capture_radius_mc_interval_A),
+        "capture_radius_mc_halfwidth68_A": est.capture_radius_mc_halfwidth68_A,
         "diffusion_m2_s": diff.diffusion_m2_per_s,
         "diffusion_sd_m2_s": diff.diffusion_sd_m2_per_s,
         "ion": ion.symbol,

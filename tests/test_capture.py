@@ -148,6 +148,7 @@ def test_monte_carlo_agrees_with_first_order():
         est = estimate_capture_radius(12.0, 150.0, 1.957e-9, current_sd_pA=0.6, conc_sd_mM=3.0,
                                       diffusion_sd_m2_per_s=0.03 * 1.957e-9, mc_samples=200_000)
     assert est.capture_radius_mc_sd_A == pytest.approx(est.capture_radius_sd_A, rel=0.02)
+    assert est.capture_radius_mc_halfwidth68_A == pytest.approx(est.capture_radius_sd_A, rel=0.03)
     assert est.capture_radius_mc_mean_A == pytest.approx(est.capture_radius_A, rel=0.01)
     lo, hi = est.capture_radius_mc_interval_A
     assert lo < est.capture_radius_A < hi
@@ -177,6 +178,8 @@ def test_large_uncertainty_warns():
         est = estimate_capture_radius(5.0, 100.0, 1e-9, conc_sd_mM=40.0, mc_samples=20_000)
     assert est.capture_radius_mc_sd_A > 1.1 * est.capture_radius_sd_A
     assert est.mc_rejected > 0
+    # The 68 % half-width stays close to the core spread while the SD is inflated.
+    assert est.capture_radius_mc_halfwidth68_A < est.capture_radius_mc_sd_A
 
 
 def test_capture_rate():
