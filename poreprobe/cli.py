@@ -21,6 +21,7 @@ from poreprobe.errors import PoreprobeError
 COMMAND_MODULES = (
     "poreprobe.cli_profile",
     "poreprobe.cli_match",
+    "poreprobe.cli_resistance",
 )
 
 

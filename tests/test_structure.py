@@ -163,3 +163,20 @@ def test_atoms_are_read_only(small_pdb):
     atoms = read_structure(small_pdb)
     with pytest.raises(ValueError, match="read-only"):
         atoms.coords_A[0, 0] = 1.0
+
+
+def test_psf_with_xyz_and_dcd_trajectories():
+    from conftest import mdanalysis_test_file
+
+    psf_xyz = read_structure(
+        mdanalysis_test_file("2r9r-1b.psf"), trajectory=mdanalysis_test_file("2r9r-1b.xyz")
+    )
+    assert len(psf_xyz) > 0 and np.isfinite(psf_xyz.coords_A).all()
+    psf = mdanalysis_test_file("adk.psf")
+    dcd = mdanalysis_test_file("adk_dims.dcd")
+    first = read_structure(psf, trajectory=dcd, frame=0)
+    third = read_structure(psf, trajectory=dcd, frame=2)
+    assert len(first) == len(third) > 3000  # adenylate kinase, all atoms
+    assert "H" in set(first.element)
+    assert not np.allclose(first.coords_A, third.coords_A)
+    assert len(read_structure(psf, trajectory=dcd, hydrogens=False)) < len(first)
