@@ -14,6 +14,7 @@ from poreprobe.capture import (  # noqa: E402
     diffusion_limited_current_pA,
     estimate_capture_radius,
 )
+from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
     SegmentResistance,
@@ -29,9 +30,13 @@ from poreprobe.errors import (  # noqa: E402
 )
 from poreprobe.ions import IONS, Ion, get_ion  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
+from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
 from poreprobe.match import CaptureMatch, match_capture_radius, match_scan  # noqa: E402
+from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
+from poreprobe.quality import QualityReport, check_model  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.reach import ReachField, reach_field  # noqa: E402
 from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
 from poreprobe.side_split import (  # noqa: E402
     RatioFreeEnergy,
@@ -46,6 +51,8 @@ from poreprobe.structure import (  # noqa: E402
     read_structure,
     select,
 )
+from poreprobe.superpose import superpose  # noqa: E402
+from poreprobe.symmetry import subunit_deviation  # noqa: E402
 from poreprobe.viscosity import (  # noqa: E402
     VISCOGENS,
     DiffusionEstimate,
@@ -55,50 +62,62 @@ from poreprobe.viscosity import (  # noqa: E402
 
 __all__ = [
     "__version__",
-    "Atoms",
-    "AtomSpheres",
-    "BathConductivity",
-    "ConductanceEstimate",
-    "InputError",
-    "PoreAxis",
-    "PoreNotFoundError",
-    "PoreSegment",
-    "PoreprobeError",
-    "QualityWarning",
-    "RADIUS_SETS",
-    "RadiusProfile",
-    "RatioFreeEnergy",
-    "SegmentResistance",
-    "SideResistanceSplit",
     "access_resistance_ohm",
     "atom_radii_A",
+    "Atoms",
     "atoms_from_atomgroup",
+    "AtomSpheres",
     "bath_conductivity",
-    "clearance_A",
-    "find_pore_axis",
-    "get_radius_set",
-    "make_atoms",
-    "pore_extent",
-    "pore_segments",
-    "radius_profile",
-    "ratio_free_energy",
-    "read_structure",
-    "select",
-    "series_resistance",
-    "split_side_resistances",
-    # bench side: capture radius of a current, ion data, viscosity, the match
+    "BathConductivity",
+    "capture_radius_at",
+    "capture_radius_from_current_A",
     "CaptureMatch",
     "CaptureRadiusEstimate",
-    "DiffusionEstimate",
-    "IONS",
-    "Ion",
-    "VISCOGENS",
-    "capture_radius_from_current_A",
+    "check_model",
+    "clearance_A",
+    "compare_models",
+    "ConductanceEstimate",
     "diffusion_coefficient",
     "diffusion_limited_current_pA",
+    "DiffusionEstimate",
     "estimate_capture_radius",
+    "find_pore_axis",
     "get_ion",
+    "get_radius_set",
+    "InputError",
+    "Ion",
+    "IONS",
+    "make_atoms",
     "match_capture_radius",
     "match_scan",
+    "ModelComparison",
+    "pore_extent",
+    "pore_lining",
+    "pore_segments",
+    "PoreAxis",
+    "PoreLining",
+    "PoreNotFoundError",
+    "PoreprobeError",
+    "PoreSegment",
+    "probe_scan",
+    "ProbeScan",
+    "QualityReport",
+    "QualityWarning",
+    "radius_profile",
+    "RADIUS_SETS",
+    "RadiusProfile",
+    "ratio_free_energy",
+    "RatioFreeEnergy",
+    "reach_field",
+    "ReachField",
+    "read_structure",
+    "SegmentResistance",
+    "select",
+    "series_resistance",
+    "SideResistanceSplit",
+    "split_side_resistances",
+    "subunit_deviation",
+    "superpose",
+    "VISCOGENS",
     "water_viscosity_mPa_s",
 ]
