@@ -8,10 +8,6 @@ measured band.
 
 from __future__ import annotations
 
-import math
-
-import numpy as np
-
 from poreprobe import __version__
 from poreprobe.capture import (
     DEFAULT_MC_SAMPLES,
@@ -28,13 +24,13 @@ from poreprobe.cli_common import (
     radius_set_from_args,
     say,
 )
-from poreprobe.errors import InputError
+from poreprobe.cli_scan import DEFAULT_PROBES, parse_probe_range
 from poreprobe.export import to_json
 from poreprobe.ions import IONS, get_ion
 from poreprobe.match import match_scan
+from poreprobe.probes import probe_scan
+from poreprobe.radii import atom_radii_A
 from poreprobe.viscosity import VISCOGENS, diffusion_coefficient
-
-DEFAULT_PROBES = "0.5:6:0.25"
 
 
 def register(sub) -> None:
@@ -53,6 +49,14 @@ def register(sub) -> None:
     g = p.add_argument_group("probe-size scan (with STRUCTURE)")
     g.add_argument("--probes", default=DEFAULT_PROBES, metavar="START:STOP:STEP",
                    help=f"probe radii in Å, STOP included (default {DEFAULT_PROBES})")
+    g.add_argument("--from", "--from-end", dest="from_end", choices=("low", "high"),
+                   default="low", help="end of the axis (in s) where probes enter; default low, "
+                                       "which is the --entry end when --entry is given")
+    g.add_argument("--spacing-A", type=float, default=0.5,
+                   help="scan grid spacing in Å (default 0.5)")
+    g.add_argument("--pore-radius-A", type=float, default=15.0,
+                   help="radius in Å of the region around the axis searched; sections "
+                        "reaching it count as open bulk (default 15)")
 
     b = p.add_argument_group("bench measurement")
     b.add_argument("--current-pA", type=float, required=True, metavar="I",
@@ -105,36 +109,17 @@ def register(sub) -> None:
     p.set_defaults(func=run)
 
 
-def parse_probe_range(text: str) -> np.ndarray:
-    """``"START:STOP:STEP"`` (Å, STOP included) -> probe radii."""
-    parts = str(text).split(":")
-    try:
-        start, stop, step = (float(x) for x in parts)
-    except ValueError as exc:
-        raise InputError(f"--probes must be START:STOP:STEP in Å, got {text!r}") from exc
-    if not all(math.isfinite(v) for v in (start, stop, step)):
-        raise InputError(f"--probes must be finite numbers, got {text!r}")
-    if start < 0 or step <= 0 or stop <= start:
-        raise InputError(f"--probes needs 0 <= START < STOP and STEP > 0, got {text!r}")
-    n = int(math.floor((stop - start) / step + 1e-9)) + 1
-    return np.round(start + step * np.arange(n), 10)
-
-
-def _scan_structure(args, probe_radii_A: np.ndarray):
-    """Read the structure, find its axis and run the probe-size scan."""
-    try:
-        from poreprobe.probes import probe_scan
-    except ImportError as exc:
-        raise InputError("matching against a structure needs the probe-size scan "
-                         "(poreprobe.probes), which this installation lacks") from exc
+def _scan_structure(args):
+    """Read the structure, find its axis and run the probe-size scan as the options ask."""
+    probes = parse_probe_range(args.probes)
     atoms = load_atoms(args)
     rset = radius_set_from_args(args)
-    from poreprobe.radii import atom_radii_A
-
     radii_A = atom_radii_A(atoms, rset)
     axis = load_axis(args, atoms, radii_A)
-    scan = probe_scan(atoms, axis, probe_radii_A=probe_radii_A, radii_A=radii_A)
-    return atoms, axis, rset.name, scan
+    scan = probe_scan(atoms, axis, probe_radii_A=probes, radii=rset, radii_A=radii_A,
+                      spacing_A=args.spacing_A, from_end=args.from_end,
+                      pore_radius_A=args.pore_radius_A, quiet=args.quiet)
+    return atoms, scan
 
 
 def compute(args) -> dict:
@@ -171,14 +156,19 @@ def compute(args) -> dict:
         "diffusion": diff.to_dict(),
     }
     if args.structure:
-        probe_radii = parse_probe_range(args.probes)
-        atoms, axis, set_name, scan = _scan_structure(args, probe_radii)
+        atoms, scan = _scan_structure(args)
         match = match_scan(scan, est.capture_radius_A, est.capture_radius_sd_A, ion=ion)
         out["probe_radius_A_best"] = match.best_probe_radius_A
         out["probe_radius_A_intervals"] = [list(iv) for iv in match.intervals_A]
         out["match"] = match.to_dict()
-        out["structure"] = {"source": atoms.source, "atoms": len(atoms), "radius_set": set_name,
-                            "axis": axis.to_dict()}
+        out["structure"] = {
+            "source": atoms.source, "atoms": len(atoms), "radius_set": scan.radius_set,
+            "axis": scan.axis.to_dict(), "entry": scan.entry, "spacing_A": scan.spacing_A,
+            "pore_radius_A": scan.pore_radius_A, "capture_definition": scan.capture_definition,
+            "probe_radius_A": scan.probe_radius_A.tolist(),
+            "capture_radius_A": scan.capture_radius_A.tolist(),
+            "passes": scan.passes.tolist(), "enters": scan.enters.tolist(),
+            "notes": [*atoms.notes, *scan.notes]}
     return out
 
 
@@ -195,8 +185,10 @@ def summary_lines(out: dict) -> list[str]:
     if diff["method"] == "explicit":
         lines.append(f"D = {diff['diffusion_m2_per_s']:.4g} m²/s (given)")
     else:
-        visc = (f"{diff['viscogen']} {diff['viscogen_percent_w_w']:g} % w/w"
-                if diff["viscogen"] else "given")
+        if diff["viscogen"]:
+            visc = f"{diff['viscogen']} {diff['viscogen_percent_w_w']:g} % w/w"
+        else:
+            visc = "plain water" if diff["relative_viscosity"] == 1 else "given"
         lines.append(f"D = {diff['diffusion_m2_per_s']:.4g} m²/s: {out['ion']} at 25 °C in water "
                      f"({diff['reference_diffusion_m2_per_s']:.4g}) scaled by Stokes-Einstein to "
                      f"{diff['temperature_C']:g} °C (water {diff['water_viscosity_mPa_s']:.4g} "
@@ -210,13 +202,19 @@ def summary_lines(out: dict) -> list[str]:
     lines.append(f"capture rate {cap['capture_rate_per_s']:.3g} ions/s")
     if "match" in out:
         m = out["match"]
-        ivs = ", ".join(f"{a:.2f}-{b:.2f}" for a, b in m["probe_radius_A_intervals"]) or "none"
+        ivs = ", ".join(f"{a:.2f}-{b:.2f} Å" for a, b in m["probe_radius_A_intervals"])
+        ivs = ivs or "none"
+        if any(lo or hi for lo, hi in m["intervals_at_scan_end"]):
+            ivs += " (reaching the end of the scanned range: the band may extend further)"
         lines.append(f"structure {out['structure']['source']} (radius set "
                      f"{out['structure']['radius_set']}): probe radii with capture radius "
-                     f"within r_c ± SD: {ivs} Å")
-        how = "crossing" if m["best_exact"] else "nearest, not within the band"
-        lines.append(f"best probe radius {m['probe_radius_A_best']:.3g} Å ({how}; capture "
-                     f"radius there {m['best_capture_radius_A']:.3g} Å)")
+                     f"within r_c ± SD: {ivs}")
+        if m["best_exact"]:
+            how = "where the capture curve crosses r_c"
+        else:
+            how = (f"no crossing of r_c in the scanned range: the nearest scanned probe, "
+                   f"capture radius {m['best_capture_radius_A']:.3g} Å")
+        lines.append(f"best probe radius {m['probe_radius_A_best']:.3g} Å ({how})")
         for c in m["ion_radii"]:
             where = ("outside the scanned probe radii" if not c["in_scan_range"] else
                      f"capture radius {c['capture_radius_A']:.3g} Å"

@@ -298,11 +298,20 @@ def match_scan(scan, measured_A: float, sd_A: float, *, ion: str | Ion | None = 
     """:func:`match_capture_radius` on a probe-size scan result.
 
     ``scan`` is anything with ``probe_radius_A`` and ``capture_radius_A`` arrays
-    (a :class:`poreprobe.probes.ProbeScan`); its ``source`` is recorded.
+    (a :class:`poreprobe.probes.ProbeScan`); its ``source`` is recorded. Probes
+    whose capture radius is undefined (NaN; the scan's notes say why) are left
+    out of the curve with a warning.
     """
     try:
-        p, c = scan.probe_radius_A, scan.capture_radius_A
+        p = np.asarray(scan.probe_radius_A, dtype=float)
+        c = np.asarray(scan.capture_radius_A, dtype=float)
     except AttributeError as exc:
         raise InputError("scan must have probe_radius_A and capture_radius_A arrays") from exc
+    undefined = ~np.isfinite(c)
+    if undefined.any() and p.shape == c.shape:
+        warnings.warn("capture radius undefined for probe radii "
+                      f"{', '.join(f'{x:g}' for x in p[undefined])} Å; left out of the match",
+                      QualityWarning, stacklevel=2)
+        p, c = p[~undefined], c[~undefined]
     return match_capture_radius(p, c, measured_A, sd_A, ion=ion,
                                 source=str(getattr(scan, "source", "") or "probe-size scan"))

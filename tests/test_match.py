@@ -171,6 +171,16 @@ def test_match_scan_duck_typed():
         match_scan(object(), 3.0, 0.5)
 
 
+def test_match_scan_drops_undefined_probes():
+    c = 6.0 - P
+    c[4] = np.nan
+    scan = types.SimpleNamespace(probe_radius_A=P, capture_radius_A=c)
+    with pytest.warns(QualityWarning, match="undefined for probe radii 2 "):
+        m = match_scan(scan, 3.0, 0.5)
+    assert m.probe_radius_A.size == P.size - 1 and 2.0 not in m.probe_radius_A
+    assert m.best_probe_radius_A == pytest.approx(3.0)
+
+
 def test_to_dict_keys_and_read_only():
     m = match_capture_radius(P, 6.0 - P, 3.0, 0.5, ion="K")
     d = m.to_dict()
