@@ -76,7 +76,8 @@ def test_worked_example_disk():
 
 
 def test_by_hand():
-    # r = I / (g z F D c) written out in SI units (common practice; no table involved).
+    # r = I / (g z F D c) written out in SI units by hand, with F = 96485.33212 C/mol
+    # (CODATA 2018, REFERENCE_VALUES §7) and g = 2π.
     i_A, d, c_mol_m3, z = 20e-12, 1.0e-9, 100.0, 2
     expected_m = i_A / (2 * math.pi * z * 96485.33212 * d * c_mol_m3)
     r = capture_radius_from_current_A(20.0, d, 100.0, charge=-2)
