@@ -8,6 +8,12 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.capture import (  # noqa: E402
+    CaptureRadiusEstimate,
+    capture_radius_from_current_A,
+    diffusion_limited_current_pA,
+    estimate_capture_radius,
+)
 from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
@@ -22,8 +28,10 @@ from poreprobe.errors import (  # noqa: E402
     PoreprobeError,
     QualityWarning,
 )
+from poreprobe.ions import IONS, Ion, get_ion  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
 from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
+from poreprobe.match import CaptureMatch, match_capture_radius, match_scan  # noqa: E402
 from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.quality import QualityReport, check_model  # noqa: E402
@@ -57,6 +65,12 @@ from poreprobe.viewer_export import (  # noqa: E402
     write_map,
     write_mesh,
 )
+from poreprobe.viscosity import (  # noqa: E402
+    VISCOGENS,
+    DiffusionEstimate,
+    diffusion_coefficient,
+    water_viscosity_mPa_s,
+)
 
 __all__ = [
     "__version__",
@@ -68,14 +82,26 @@ __all__ = [
     "bath_conductivity",
     "BathConductivity",
     "capture_radius_at",
+    "capture_radius_from_current_A",
+    "CaptureMatch",
+    "CaptureRadiusEstimate",
     "check_model",
     "clearance_A",
     "compare_models",
     "ConductanceEstimate",
+    "diffusion_coefficient",
+    "diffusion_limited_current_pA",
+    "DiffusionEstimate",
+    "estimate_capture_radius",
     "find_pore_axis",
+    "get_ion",
     "get_radius_set",
     "InputError",
+    "Ion",
+    "IONS",
     "make_atoms",
+    "match_capture_radius",
+    "match_scan",
     "ModelComparison",
     "pore_extent",
     "pore_lining",
@@ -104,6 +130,8 @@ __all__ = [
     "split_side_resistances",
     "subunit_deviation",
     "superpose",
+    "VISCOGENS",
+    "water_viscosity_mPa_s",
     # 3-D exports for molecular viewers (figures: import poreprobe.plots)
     "CenterLine",
     "FieldGrid",
