@@ -211,8 +211,12 @@ def check_figure_path(args: argparse.Namespace) -> None:
 
 
 def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
-    """Labelled reference radii named by --ion / --ion-radii (empty without --ion)."""
-    if not getattr(args, "ion", None):
+    """Labelled reference radii named by --ion / --ion-radii (empty without them).
+
+    Only for parsers that took :func:`add_ion_band_args`; a command whose own --ion
+    means something else (``match``) has no --ion-radii and gets no bands here.
+    """
+    if not getattr(args, "ion", None) or not hasattr(args, "ion_radii"):
         return []
     from poreprobe.plots import ion_reference_radii
 
@@ -230,7 +234,7 @@ def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> Non
         return
     from poreprobe import plots
 
-    if "ion_radii" not in options and getattr(args, "ion", None):
+    if "ion_radii" not in options:
         options["ion_radii"] = figure_ion_radii(args)
     ax = plots.draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm,
                            **options)

@@ -499,3 +499,24 @@ def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
     assert len(labels) == 2 and all("×4" in t for t in labels)
     gate = min(data["constrictions"], key=lambda c: abs(c["s_A"] + 5))
     assert any(t.startswith(f"{gate['radius_A']:.2f} Å") for t in labels)
+
+
+def test_match_command_figure_shows_the_measured_band(c4_cylinder_pdb, tmp_path):
+    """The real match JSON (issue 4 layout) carries its curve; --figure draws it."""
+    js, fig = tmp_path / "match.json", tmp_path / "match.png"
+    axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
+    assert main(["match", c4_cylinder_pdb, *axis, "--probes", "1:4:0.5", "--current-pA", "20",
+                 "--current-sd-pA", "2", "--conc-mM", "150", "--ion", "K", "--json", str(js),
+                 "--figure", str(fig), "--dpi", "80", "--quiet"]) == 0
+    assert _png_size(fig)[1] == pytest.approx(plots.CAPTURE_HEIGHT_MM / 25.4 * 80, abs=1.5)
+    data = json.loads(js.read_text())
+    ax = plots.draw_figure("capture", [data])
+    c, sd = data["capture_radius_A"], data["capture_radius_sd_A"]
+    band = next(p for p in ax.patches if p.get_label().startswith("measured"))
+    box = band.get_path().get_extents(band.get_transform()).transformed(ax.transData.inverted())
+    assert (box.y0, box.y1) == pytest.approx((c - sd, c + sd))
+    refs = [ln.get_label() for ln in ax.lines if "radius" in ln.get_label()]
+    assert "K⁺ crystal radius 1.38 Å" in refs                 # the ion radii the match compared
+    curve = next(ln for ln in ax.lines if ln.get_linestyle() == "-"
+                 and len(ln.get_xdata()) == len(data["match"]["curve"]["probe_radius_A"]))
+    np.testing.assert_allclose(curve.get_ydata(), data["match"]["curve"]["capture_radius_A"])
