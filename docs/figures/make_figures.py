@@ -56,14 +56,22 @@ def main_script() -> None:
     with tempfile.TemporaryDirectory() as tmp:
         channel = build(tmp, "invented_channel", gate_A=4.3)
         widened = build(tmp, "widened_gate", gate_A=5.6)
-        js = {k: os.path.join(tmp, f"{k}.json") for k in ("channel", "widened", "resistance")}
+        js = {k: os.path.join(tmp, f"{k}.json") for k in
+              ("channel", "widened", "check", "resistance", "scan", "match")}
         run(["profile", channel, *AXIS, "--step-A", "0.25", "--json", js["channel"]])
         run(["profile", widened, *AXIS, "--step-A", "0.25", "--json", js["widened"]])
+        run(["check", channel, *AXIS, "--step-A", "0.25", "--json", js["check"]])
         run(["resistance", channel, *AXIS, "--segments", "gate:-9:-5", "cavity:-5:3",
              "filter:3:9", "--json", js["resistance"]])
-        figure("profile", [js["channel"]], "--ion", "K", "--ion-radii", "crystal,hydrated")
+        run(["scan", channel, *AXIS, "--probes", "0.5:4:0.25", "--json", js["scan"]])
+        # invented bench numbers: 6 pA at 150 mM K+ in plain water
+        run(["match", channel, *AXIS, "--probes", "0.5:4:0.25", "--current-pA", "6",
+             "--current-sd-pA", "0.6", "--conc-mM", "150", "--ion", "K", "--json", js["match"]])
+        figure("profile", [js["check"]], "--ion", "K", "--ion-radii", "crystal,hydrated")
         figure("overlay", [js["channel"], js["widened"]], "--labels",
                "invented channel,widened gate")
+        figure("probes", [js["scan"]])
+        figure("capture", [js["scan"], js["match"]])
         figure("resistance", [js["resistance"]])
         mesh = os.path.join(tmp, "pore.ply")
         run(["export", channel, *AXIS, "--mesh", mesh, "--probe-radius-A", "1.0",
