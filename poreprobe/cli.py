@@ -20,6 +20,8 @@ from poreprobe.errors import PoreprobeError
 #: Command modules, in the order ``poreprobe --help`` lists them.
 COMMAND_MODULES = (
     "poreprobe.cli_profile",
+    "poreprobe.cli_traj",
+    "poreprobe.cli_batch",
 )
 
 

@@ -93,3 +93,35 @@ def say(args: argparse.Namespace, text: str = "") -> None:
     """Print a summary line unless --quiet."""
     if not getattr(args, "quiet", False):
         sys.stdout.write(text + "\n")
+
+
+def add_backend_args(parser: argparse.ArgumentParser):
+    """--backend, --workers and --scheduler: where the work runs. Returns the option group."""
+    g = parser.add_argument_group("where it runs")
+    g.add_argument("--backend", default="serial", choices=("serial", "multiprocessing", "dask"),
+                   help="serial (default), a local process pool, or dask (a local cluster, "
+                        "or the scheduler given by --scheduler)")
+    g.add_argument("--workers", type=int, default=None, metavar="N",
+                   help="worker processes for local runs (count; default 2, or all the "
+                        "workers of the --scheduler cluster)")
+    g.add_argument("--scheduler", metavar="ADDRESS",
+                   help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
+                        "(implies --backend dask; files must be readable by every worker)")
+    return g
+
+
+def backend_from_args(args: argparse.Namespace) -> tuple[str, int | None]:
+    """The backend name and worker count (None: all workers of the --scheduler cluster)."""
+    backend = "dask" if args.scheduler else args.backend
+    if args.scheduler and args.backend not in ("serial", "dask"):
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--scheduler needs --backend dask, got --backend {args.backend}")
+    workers = args.workers
+    if workers is None and not args.scheduler:
+        workers = 1 if backend == "serial" else 2
+    if workers is not None and workers < 1:
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--workers must be >= 1, got {workers}")
+    return backend, workers

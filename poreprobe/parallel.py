@@ -27,7 +27,7 @@ from collections.abc import Callable, Iterator
 from MDAnalysis.analysis.backends import BackendBase, BackendMultiprocessing, BackendSerial
 
 from poreprobe._progress import progress
-from poreprobe._validate import check_choice, check_int
+from poreprobe._validate import check_choice, check_int, check_positive
 from poreprobe.errors import InputError
 
 BACKENDS = ("serial", "multiprocessing", "dask")
@@ -134,7 +134,8 @@ def _count_workers(client) -> int:
 @contextlib.contextmanager
 def open_backend(name: str = "serial", *, n_workers: int | None = 1,
                  scheduler: str | None = None, quiet: bool = True,
-                 desc: str = "tasks") -> Iterator[BackendBase]:
+                 desc: str = "tasks", connect_timeout_s: float = 10.0
+                 ) -> Iterator[BackendBase]:
     """A ready MDAnalysis backend for ``name``; cleans up what it started.
 
     Parameters
@@ -151,6 +152,8 @@ def open_backend(name: str = "serial", *, n_workers: int | None = 1,
         No progress bar.
     desc : str
         Label of the progress bar.
+    connect_timeout_s : float
+        How long to try to reach ``scheduler`` (s).
 
     Yields
     ------
@@ -165,6 +168,7 @@ def open_backend(name: str = "serial", *, n_workers: int | None = 1,
     name = check_choice(name, "backend", BACKENDS)
     if n_workers is not None:
         n_workers = check_int(n_workers, "n_workers", minimum=1)
+    connect_timeout_s = check_positive(connect_timeout_s, "connect_timeout_s")
     if scheduler is not None and name != "dask":
         raise InputError(f"a dask scheduler address needs backend 'dask', got backend {name!r}")
     if name == "serial":
@@ -175,12 +179,19 @@ def open_backend(name: str = "serial", *, n_workers: int | None = 1,
         return
     from distributed import Client, LocalCluster
 
-    if scheduler is not None:
+    with _quiet_logger("distributed"):
+        if scheduler is None:
+            with LocalCluster(n_workers=n_workers or 1, threads_per_worker=1, processes=True,
+                              dashboard_address=None, scheduler_kwargs={"dashboard": False},
+                              silence_logs=logging.ERROR) as cluster, \
+                    Client(cluster) as client:
+                yield DaskClientBackend(client, n_workers or 1, quiet=quiet, desc=desc)
+            return
         if not isinstance(scheduler, str) or not scheduler.strip():
             raise InputError(f"scheduler must be an address such as tcp://host:8786, "
                              f"got {scheduler!r}")
         try:
-            client = Client(scheduler, timeout="10s")
+            client = Client(scheduler, timeout=f"{connect_timeout_s}s")
         except (OSError, TimeoutError, ValueError) as exc:
             raise InputError(f"cannot connect to the dask scheduler at {scheduler}: {exc}") \
                 from exc
@@ -188,8 +199,15 @@ def open_backend(name: str = "serial", *, n_workers: int | None = 1,
             yield DaskClientBackend(client, n_workers, quiet=quiet, desc=desc)
         finally:
             client.close()
-        return
-    with LocalCluster(n_workers=n_workers or 1, threads_per_worker=1, processes=True,
-                      dashboard_address=None, silence_logs=logging.ERROR) as cluster, \
-            Client(cluster) as client:
-        yield DaskClientBackend(client, n_workers or 1, quiet=quiet, desc=desc)
+
+
+@contextlib.contextmanager
+def _quiet_logger(name: str, level: int = logging.ERROR) -> Iterator[None]:
+    """Raise a logger's level for the duration (dask's own chatter on the terminal)."""
+    logger = logging.getLogger(name)
+    old = logger.level
+    logger.setLevel(max(level, old))
+    try:
+        yield
+    finally:
+        logger.setLevel(old)

@@ -42,7 +42,7 @@ from MDAnalysis.analysis.results import ResultsGroup
 from poreprobe import __version__
 from poreprobe._validate import check_choice, check_int, check_positive, check_range
 from poreprobe.axis import PoreAxis, find_pore_axis
-from poreprobe.errors import InputError, PoreNotFoundError
+from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.export import to_csv
 from poreprobe.ions import get_ion
 from poreprobe.profile import plane_positions_A, radius_profile
@@ -192,6 +192,9 @@ class PoreProfileAnalysis(AnalysisBase):
 
         traj = atomgroup.universe.trajectory
         here = traj.ts.frame
+        if not _has_time_step(traj):
+            warnings.warn(f"{_source_name(atomgroup)} gives no time step: frame times are "
+                          "reported as frame number x 1 ps", QualityWarning, stacklevel=2)
         try:
             traj[self.reference_frame]
             self._template = atoms_from_atomgroup(atomgroup, source=_source_name(atomgroup))
@@ -274,6 +277,13 @@ class PoreProfileAnalysis(AnalysisBase):
                               ref.direction @ rot, ref.method, ref.n_fold,
                               ref.symmetry_rmsd_A, ref.oriented_by)
         return atoms.with_coords(moved), ref, frame_axis, float(rmsd)
+
+    def _compute(self, indexed_frames, verbose=None, *, progressbar_kwargs=None):
+        # the missing-time-step warning was given once in __init__; not again per block
+        with warnings.catch_warnings():
+            warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)
+            return super()._compute(indexed_frames, verbose,
+                                    progressbar_kwargs=progressbar_kwargs)
 
     def _prepare(self):
         n, p = self.n_frames, len(self.s_A)
@@ -567,6 +577,16 @@ def _select(universe, selection: str):
     return group
 
 
+_NO_DT_MESSAGE = "Reader has no dt information"
+
+
+def _has_time_step(trajectory) -> bool:
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        _ = trajectory.ts.dt
+    return not any(_NO_DT_MESSAGE in str(w.message) for w in caught)
+
+
 def _source_name(atomgroup) -> str:
     name = getattr(atomgroup.universe, "filename", None)
     return os.path.basename(str(name)) if name else "Universe"
@@ -574,7 +594,7 @@ def _source_name(atomgroup) -> str:
 
 def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
                        start: int | None = None, stop: int | None = None,
-                       step: int | None = None, backend="serial", n_workers: int = 1,
+                       step: int | None = None, backend="serial", n_workers: int | None = 1,
                        scheduler: str | None = None, n_parts: int | None = None,
                        quiet: bool = True, **options) -> TrajectoryProfiles:
     """Open a trajectory, run :class:`PoreProfileAnalysis` on a backend, return the summary.
@@ -594,8 +614,9 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
         cluster of ``n_workers`` processes (see :func:`poreprobe.parallel.open_backend`).
         A backend object (e.g. :class:`poreprobe.parallel.DaskClientBackend`)
         is used as it is.
-    n_workers : int
-        Worker processes (local runs) or the number of blocks to aim for (remote).
+    n_workers : int, optional
+        Local worker processes (default 1); with ``scheduler``, the workers to
+        plan for (None: all the workers the scheduler knows).
     scheduler : str, optional
         Address of a running dask scheduler, e.g. ``"tcp://10.0.0.5:8786"``.
     n_parts : int, optional
@@ -622,8 +643,18 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
         trajectory = os.fspath(trajectory)
         if not os.path.isfile(trajectory):
             raise InputError(f"no such file: {trajectory}")
-    n_workers = check_int(n_workers, "n_workers", minimum=1)
+    if n_workers is not None:
+        n_workers = check_int(n_workers, "n_workers", minimum=1)
     universe = open_universe(topology, trajectory)
+    if not _has_time_step(universe.trajectory):
+        # say it once here; a time step of 1 ps keeps workers from repeating it
+        warnings.warn(f"{os.path.basename(topology)} gives no time step: frame times are "
+                      "reported as frame number x 1 ps", QualityWarning, stacklevel=2)
+        import MDAnalysis
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            universe = MDAnalysis.Universe(*[f for f in (topology, trajectory) if f], dt=1.0)
     atomgroup = _select(universe, select)
     analysis = PoreProfileAnalysis(atomgroup, **options)
     traj = universe.trajectory
@@ -637,7 +668,7 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
     if isinstance(backend, BackendBase):
         context = contextlib.nullcontext(backend)
     else:
-        context = open_backend(backend, n_workers=None if scheduler else n_workers,
+        context = open_backend(backend, n_workers=n_workers,
                                scheduler=scheduler, quiet=quiet, desc="frame blocks")
     with context as executor:
         if isinstance(executor, BackendSerial):  # a bar that advances frame by frame
@@ -655,6 +686,7 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
             parts = min(check_int(parts, "n_parts", minimum=1), len(frames))
             with warnings.catch_warnings():
                 warnings.filterwarnings("ignore", message="Analysis not making use of all")
+                warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)  # when serialised
                 analysis.run(start=start, stop=stop, step=step, backend=executor,
                              n_parts=parts, unsupported_backend=True)
     result = analysis.summary()

@@ -1,0 +1,253 @@
+"""Many models at once: one summary row per file, on any backend.
+
+Each file is read, its pore axis found and its radius profile computed exactly
+as ``poreprobe profile`` does for one file (same options for every file). The
+files are mapped one task each onto a backend of :mod:`poreprobe.parallel`
+(serial, a local process pool, or a dask cluster). A file that cannot be read
+or profiled becomes a row with its error; it never stops the batch.
+"""
+
+from __future__ import annotations
+
+import glob
+import os
+import warnings
+from dataclasses import dataclass, field
+from functools import partial
+
+from poreprobe import __version__
+from poreprobe._validate import check_int, check_positive
+from poreprobe.axis import find_pore_axis
+from poreprobe.errors import InputError, PoreprobeError
+from poreprobe.export import to_csv
+from poreprobe.profile import radius_profile
+from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
+from poreprobe.structure import read_structure
+
+_GLOB_CHARS = frozenset("*?[")
+
+
+@dataclass(frozen=True)
+class BatchRow:
+    """The summary of one file.
+
+    Attributes
+    ----------
+    path : str
+        The file as given.
+    n_atoms : int
+        Atoms profiled (0 when the file failed).
+    min_radius_A, min_s_A : float
+        Narrowest radius (Å) and its position along the axis (Å); NaN on failure.
+    axis_method : str
+        How the axis was found (``""`` on failure).
+    min_residues : tuple of str
+        Residues lining the narrowest point.
+    warnings : tuple of str
+        Warnings raised while reading and profiling this file.
+    error : str
+        ``""`` for a profiled file, else the error (type and message).
+    """
+
+    path: str
+    n_atoms: int = 0
+    min_radius_A: float = float("nan")
+    min_s_A: float = float("nan")
+    axis_method: str = ""
+    min_residues: tuple[str, ...] = ()
+    warnings: tuple[str, ...] = ()
+    error: str = ""
+
+    @property
+    def ok(self) -> bool:
+        return not self.error
+
+    def to_dict(self) -> dict:
+        return {"path": self.path, "ok": self.ok, "n_atoms": self.n_atoms,
+                "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
+                "axis_method": self.axis_method, "min_residues": list(self.min_residues),
+                "warnings": list(self.warnings), "error": self.error}
+
+
+@dataclass(frozen=True)
+class BatchSummary:
+    """One row per file, in the order the files were given.
+
+    Attributes
+    ----------
+    rows : tuple of BatchRow
+    radius_set : str
+    step_A, margin_A, max_radius_A : float
+        Profile options used for every file (Å).
+    version : str
+    """
+
+    rows: tuple[BatchRow, ...]
+    radius_set: str
+    step_A: float
+    margin_A: float
+    max_radius_A: float
+    version: str = field(default=__version__)
+
+    @property
+    def n_failed(self) -> int:
+        return sum(not row.ok for row in self.rows)
+
+    def to_dict(self) -> dict:
+        return {"version": self.version,
+                "kind": "radius profiles of many models (model-based estimates)",
+                "radius_set": self.radius_set, "step_A": self.step_A,
+                "margin_A": self.margin_A, "max_radius_A": self.max_radius_A,
+                "n_files": len(self.rows), "n_failed": self.n_failed,
+                "rows": [row.to_dict() for row in self.rows]}
+
+
+@dataclass(frozen=True)
+class _FileOptions:
+    read: dict
+    axis: dict
+    radius_set: RadiusSet
+    step_A: float
+    margin_A: float
+    max_radius_A: float
+
+
+def expand_paths(files) -> list[str]:
+    """Turn file names and glob patterns into a list of paths, in the given order.
+
+    A pattern (with ``*``, ``?`` or ``[``) is expanded and sorted; one that
+    matches nothing is kept as it is, so that the batch reports it. Repeated
+    paths are kept once.
+
+    Raises
+    ------
+    InputError
+        If ``files`` is empty.
+    """
+    if isinstance(files, str | os.PathLike):
+        files = [files]
+    paths: list[str] = []
+    for item in files:
+        item = os.fspath(item)
+        if _GLOB_CHARS & set(item):
+            matches = sorted(glob.glob(item, recursive=True))
+            paths.extend(matches or [item])
+        else:
+            paths.append(item)
+    paths = list(dict.fromkeys(paths))
+    if not paths:
+        raise InputError("files must name at least one file or pattern")
+    return paths
+
+
+def _error_text(exc: BaseException) -> str:
+    message = str(exc).splitlines()[0] if str(exc) else ""
+    if isinstance(exc, PoreprobeError):
+        return message or type(exc).__name__
+    return f"{type(exc).__name__}: {message}" if message else type(exc).__name__
+
+
+def profile_file(path: str, options: _FileOptions) -> BatchRow:
+    """Profile one file; any error becomes the row's ``error`` (never raised)."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            if _GLOB_CHARS & set(path) and not os.path.exists(path):
+                raise InputError(f"pattern {path} matches no files")
+            atoms = read_structure(path, **options.read)
+            radii_A = atom_radii_A(atoms, options.radius_set)
+            axis = find_pore_axis(atoms, radii_A=radii_A, **options.axis)
+            prof = radius_profile(atoms, axis, radii_A=radii_A, step_A=options.step_A,
+                                  margin_A=options.margin_A,
+                                  max_radius_A=options.max_radius_A)
+        except Exception as exc:  # a failed file is reported, never fatal to the batch
+            return BatchRow(path=path, error=_error_text(exc),
+                            warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
+    return BatchRow(path=path, n_atoms=len(atoms), min_radius_A=prof.min_radius_A,
+                    min_s_A=prof.min_s_A, axis_method=axis.method,
+                    min_residues=prof.min_residues,
+                    warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
+
+
+def profile_files(files, *, backend="serial", n_workers: int | None = 1,
+                  scheduler: str | None = None, quiet: bool = True,
+                  radii: str | RadiusSet = DEFAULT_RADIUS_SET, radii_file=None,
+                  step_A: float = 0.2, margin_A: float = 2.0, max_radius_A: float = 20.0,
+                  model: int = 0, altloc: str = "occupancy", hydrogens: bool = True,
+                  waters: bool = False, ions: bool = False, hetero: bool = False,
+                  selection: str | None = None, axis_method: str = "auto",
+                  axis_point_A=None, axis_direction=None,
+                  axis_selections: tuple[str, str] | None = None,
+                  entry: str | None = None) -> BatchSummary:
+    """Profile many structure files and summarise each in one row.
+
+    Parameters
+    ----------
+    files : str, path or sequence of them
+        File names and glob patterns (``"models/*.cif"``), see :func:`expand_paths`.
+    backend : {"serial", "multiprocessing", "dask"} or BackendBase
+        Where the files are profiled (one task per file); ``"dask"`` uses the
+        scheduler at ``scheduler`` or starts a local cluster (see
+        :func:`poreprobe.parallel.open_backend`). A backend object, e.g.
+        :class:`poreprobe.parallel.DaskClientBackend`, is used as it is.
+    n_workers : int, optional
+        Local worker processes (default 1); with ``scheduler``, the workers to
+        plan for (None: all the workers the scheduler knows).
+    scheduler : str, optional
+        Address of a running dask scheduler.
+    quiet : bool
+        No progress bar.
+    radii, radii_file
+        Radius set and optional TOML overrides (see :func:`poreprobe.get_radius_set`).
+    step_A, margin_A, max_radius_A : float
+        Profile options (Å), as in :func:`poreprobe.radius_profile`.
+    model, altloc, hydrogens, waters, ions, hetero, selection
+        Reading and cleaning options of :func:`poreprobe.read_structure`.
+    axis_method, axis_point_A, axis_direction, axis_selections, entry
+        Axis options of :func:`poreprobe.find_pore_axis`.
+
+    Returns
+    -------
+    BatchSummary
+        One row per file, failed files included with their error.
+    """
+    from MDAnalysis.analysis.backends import BackendBase
+
+    from poreprobe.parallel import open_backend
+
+    paths = expand_paths(files)
+    options = _FileOptions(
+        read={"model": check_int(model, "model", minimum=0), "altloc": altloc,
+              "hydrogens": hydrogens, "waters": waters, "ions": ions, "hetero": hetero,
+              "selection": selection},
+        axis={"method": axis_method, "point_A": axis_point_A, "direction": axis_direction,
+              "selections": axis_selections, "entry": entry},
+        radius_set=get_radius_set(radii, radii_file),
+        step_A=check_positive(step_A, "step_A"),
+        margin_A=check_positive(margin_A, "margin_A", allow_zero=True),
+        max_radius_A=check_positive(max_radius_A, "max_radius_A"),
+    )
+    task = partial(profile_file, options=options)
+    if isinstance(backend, BackendBase):
+        rows = backend.apply(task, paths)
+    else:
+        with open_backend(backend, n_workers=n_workers,
+                          scheduler=scheduler, quiet=quiet, desc="files") as executor:
+            rows = executor.apply(task, paths)
+    return BatchSummary(rows=tuple(rows), radius_set=options.radius_set.name,
+                        step_A=options.step_A, margin_A=options.margin_A,
+                        max_radius_A=options.max_radius_A)
+
+
+def batch_csv(summary: BatchSummary, path=None) -> str:
+    """CSV with one row per file: narrowest radius, its position, status and error."""
+    header = ("file", "status", "n_atoms", "min_radius_A", "min_s_A", "axis_method",
+              "narrowest_lined_by", "warnings", "error")
+    rows = ((row.path, "ok" if row.ok else "failed", row.n_atoms, float(row.min_radius_A),
+             float(row.min_s_A), row.axis_method, " ".join(row.min_residues[:8]),
+             len(row.warnings), row.error) for row in summary.rows)
+    comments = (f"poreprobe {summary.version} batch summary: {len(summary.rows)} files, "
+                f"{summary.n_failed} failed",
+                f"radius set: {summary.radius_set}; model-based estimates; lengths in Å; "
+                f"plane step {summary.step_A:g} Å")
+    return to_csv(header, rows, path, comments)
