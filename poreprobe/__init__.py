@@ -8,6 +8,13 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.conductance import (  # noqa: E402
+    ConductanceEstimate,
+    SegmentResistance,
+    access_resistance_ohm,
+    series_resistance,
+)
+from poreprobe.electrolyte import BathConductivity, bath_conductivity  # noqa: E402
 from poreprobe.errors import (  # noqa: E402
     InputError,
     PoreNotFoundError,
@@ -17,6 +24,13 @@ from poreprobe.errors import (  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
+from poreprobe.side_split import (  # noqa: E402
+    RatioFreeEnergy,
+    SideResistanceSplit,
+    ratio_free_energy,
+    split_side_resistances,
+)
 from poreprobe.structure import (  # noqa: E402
     Atoms,
     atoms_from_atomgroup,
@@ -29,20 +43,33 @@ __all__ = [
     "__version__",
     "Atoms",
     "AtomSpheres",
+    "BathConductivity",
+    "ConductanceEstimate",
     "InputError",
     "PoreAxis",
     "PoreNotFoundError",
+    "PoreSegment",
     "PoreprobeError",
     "QualityWarning",
     "RADIUS_SETS",
     "RadiusProfile",
+    "RatioFreeEnergy",
+    "SegmentResistance",
+    "SideResistanceSplit",
+    "access_resistance_ohm",
     "atom_radii_A",
     "atoms_from_atomgroup",
+    "bath_conductivity",
     "clearance_A",
     "find_pore_axis",
     "get_radius_set",
     "make_atoms",
+    "pore_extent",
+    "pore_segments",
     "radius_profile",
+    "ratio_free_energy",
     "read_structure",
     "select",
+    "series_resistance",
+    "split_side_resistances",
 ]

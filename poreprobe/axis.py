@@ -92,18 +92,30 @@ class PoreAxis:
         """Cartesian coordinates from axis-frame (u, v, s) coordinates."""
         e1, e2 = self.basis()
         uvs = np.asarray(uvs_A, dtype=np.float64)
-        return (self.point_A + uvs[..., :1] * e1 + uvs[..., 1:2] * e2
-                + uvs[..., 2:3] * self.direction)
+        return (
+            self.point_A + uvs[..., :1] * e1 + uvs[..., 1:2] * e2 + uvs[..., 2:3] * self.direction
+        )
 
     def flipped(self, oriented_by: str) -> PoreAxis:
         """The same line with the opposite direction."""
-        return PoreAxis(self.point_A, -self.direction, self.method, self.n_fold,
-                        self.symmetry_rmsd_A, oriented_by)
+        return PoreAxis(
+            self.point_A,
+            -self.direction,
+            self.method,
+            self.n_fold,
+            self.symmetry_rmsd_A,
+            oriented_by,
+        )
 
     def to_dict(self) -> dict:
-        return {"point_A": self.point_A.tolist(), "direction": self.direction.tolist(),
-                "method": self.method, "n_fold": self.n_fold,
-                "symmetry_rmsd_A": self.symmetry_rmsd_A, "oriented_by": self.oriented_by}
+        return {
+            "point_A": self.point_A.tolist(),
+            "direction": self.direction.tolist(),
+            "method": self.method,
+            "n_fold": self.n_fold,
+            "symmetry_rmsd_A": self.symmetry_rmsd_A,
+            "oriented_by": self.oriented_by,
+        }
 
 
 def _kabsch(mobile: np.ndarray, target: np.ndarray) -> np.ndarray:
@@ -127,7 +139,7 @@ def _rotate_about(points, point, axis, angle):
     k = axis / np.linalg.norm(axis)
     rel = points - point
     cos, sin = np.cos(angle), np.sin(angle)
-    return (point + rel * cos + np.cross(k, rel) * sin + np.outer(rel @ k, k) * (1 - cos))
+    return point + rel * cos + np.cross(k, rel) * sin + np.outer(rel @ k, k) * (1 - cos)
 
 
 def equivalent_chains(atoms: Atoms) -> tuple[list[str], np.ndarray]:
@@ -186,8 +198,9 @@ def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
             moved = _rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
             best = min(best, float(np.sqrt(((moved - matched[k]) ** 2).sum(1).mean())))
         deviations.append(best)
-    return PoreAxis(centre, direction, f"symmetry C{n}", n_fold=n,
-                    symmetry_rmsd_A=float(np.mean(deviations)))
+    return PoreAxis(
+        centre, direction, f"symmetry C{n}", n_fold=n, symmetry_rmsd_A=float(np.mean(deviations))
+    )
 
 
 def principal_axes(atoms: Atoms) -> list[PoreAxis]:
@@ -212,8 +225,9 @@ def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray) -> float:
 def _recentre(axis: PoreAxis, atoms: Atoms) -> PoreAxis:
     centre = atoms.coords_A.mean(0)
     point = axis.point_A + ((centre - axis.point_A) @ axis.direction) * axis.direction
-    return PoreAxis(point, axis.direction, axis.method, axis.n_fold, axis.symmetry_rmsd_A,
-                    axis.oriented_by)
+    return PoreAxis(
+        point, axis.direction, axis.method, axis.n_fold, axis.symmetry_rmsd_A, axis.oriented_by
+    )
 
 
 def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreAxis:
@@ -240,14 +254,22 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
         lo, hi = float(s.min()), float(s.max())
         third = (hi - lo) / 3
         if lo + third < s_entry < hi - third:
-            raise InputError(f"entry selection {entry!r} lies in the middle of the pore "
-                             f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
-                             "select atoms at one end")
+            raise InputError(
+                f"entry selection {entry!r} lies in the middle of the pore "
+                f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
+                "select atoms at one end"
+            )
         mid = 0.5 * (lo + hi)
         if s_entry > mid:
             return axis.flipped(f"entry {entry!r}")
-        return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                        axis.symmetry_rmsd_A, f"entry {entry!r}")
+        return PoreAxis(
+            axis.point_A,
+            axis.direction,
+            axis.method,
+            axis.n_fold,
+            axis.symmetry_rmsd_A,
+            f"entry {entry!r}",
+        )
     poly = atoms.kind == "polymer"
     firsts = []
     for ch in np.unique(atoms.chain[poly]):
@@ -258,17 +280,36 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
     if abs(mean_first) >= 1.0:
         if mean_first > 0:
             return axis.flipped("N-termini at negative s")
-        return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                        axis.symmetry_rmsd_A, "N-termini at negative s")
+        return PoreAxis(
+            axis.point_A,
+            axis.direction,
+            axis.method,
+            axis.n_fold,
+            axis.symmetry_rmsd_A,
+            "N-termini at negative s",
+        )
     if axis.direction[int(np.argmax(np.abs(axis.direction)))] < 0:
         return axis.flipped("largest component positive")
-    return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                    axis.symmetry_rmsd_A, "largest component positive")
+    return PoreAxis(
+        axis.point_A,
+        axis.direction,
+        axis.method,
+        axis.n_fold,
+        axis.symmetry_rmsd_A,
+        "largest component positive",
+    )
 
 
-def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, direction=None,
-                   selections: tuple[str, str] | None = None, entry: str | None = None,
-                   radii_A: np.ndarray | None = None) -> PoreAxis:
+def find_pore_axis(
+    atoms: Atoms,
+    *,
+    method: str = "auto",
+    point_A=None,
+    direction=None,
+    selections: tuple[str, str] | None = None,
+    entry: str | None = None,
+    radii_A: np.ndarray | None = None,
+) -> PoreAxis:
     """Find the pore axis of a channel model.
 
     Parameters
@@ -324,8 +365,9 @@ def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, directio
             raise InputError("the two axis selections have the same centroid")
         axis = _recentre(PoreAxis(a, b - a, "selections"), atoms)
         if entry is None:
-            return PoreAxis(axis.point_A, axis.direction, "selections",
-                            oriented_by="first to second selection")
+            return PoreAxis(
+                axis.point_A, axis.direction, "selections", oriented_by="first to second selection"
+            )
         return orient_axis(axis, atoms, entry)
     if radii_A is None:
         from poreprobe.radii import atom_radii_A
@@ -334,8 +376,10 @@ def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, directio
     sym = symmetry_axis(atoms)
     if method == "symmetry":
         if sym is None:
-            raise InputError("no group of two or more chains with identical sequence found; "
-                             "use method 'principal' or give the axis")
+            raise InputError(
+                "no group of two or more chains with identical sequence found; "
+                "use method 'principal' or give the axis"
+            )
         chosen = sym
     elif method == "principal":
         chosen = max(principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A))

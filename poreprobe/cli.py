@@ -20,6 +20,7 @@ from poreprobe.errors import PoreprobeError
 #: Command modules, in the order ``poreprobe --help`` lists them.
 COMMAND_MODULES = (
     "poreprobe.cli_profile",
+    "poreprobe.cli_resistance",
     "poreprobe.cli_traj",
     "poreprobe.cli_batch",
 )
@@ -42,7 +43,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = OneLineParser(
         prog="poreprobe",
         description="Ion-channel pore geometry from structural models. All numbers are "
-                    "model-based estimates (they depend on the radius set and the model).",
+        "model-based estimates (they depend on the radius set and the model).",
     )
     parser.add_argument("--version", action="version", version=f"poreprobe {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=OneLineParser)
@@ -54,7 +55,10 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv=None) -> int:
     """Run the command line; returns the exit code."""
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # --help, --version, or a one-line usage error
+        return int(exc.code or 0)
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
@@ -69,8 +73,7 @@ def main(argv=None) -> int:
             sys.stderr.write(f"poreprobe: error: {exc}\n")
             return 2
         except OSError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: "
-                             f"{exc.filename or ''}\n")
+            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: {exc.filename or ''}\n")
             return 2
 
 

@@ -13,47 +13,99 @@ from poreprobe.structure import Atoms, read_structure
 def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = True) -> None:
     """STRUCTURE and the options that control reading and cleaning it."""
     if positional:
-        parser.add_argument("structure", metavar="STRUCTURE",
-                            help="channel model: PDB/mmCIF (optionally .gz) or any file "
-                                 "MDAnalysis reads (GRO, PSF, XYZ, ...)")
+        parser.add_argument(
+            "structure",
+            metavar="STRUCTURE",
+            help="channel model: PDB/mmCIF (optionally .gz) or any file "
+            "MDAnalysis reads (GRO, PSF, XYZ, ...)",
+        )
     g = parser.add_argument_group("structure input")
-    g.add_argument("--trajectory", metavar="FILE",
-                   help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD)")
-    g.add_argument("--model", type=int, default=0, metavar="N",
-                   help="0-based model index of a multi-model PDB/mmCIF (default 0)")
-    g.add_argument("--frame", type=int, default=0, metavar="N",
-                   help="0-based frame of a trajectory (default 0)")
-    g.add_argument("--altloc", default="occupancy", metavar="POLICY",
-                   help="alternate locations: 'occupancy' (highest, default), 'first', "
-                        "or one altloc letter")
-    g.add_argument("--no-hydrogens", action="store_true",
-                   help="drop hydrogen atoms (default: keep those in the file)")
+    g.add_argument(
+        "--trajectory",
+        metavar="FILE",
+        help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD)",
+    )
+    g.add_argument(
+        "--model",
+        type=int,
+        default=0,
+        metavar="N",
+        help="0-based model index of a multi-model PDB/mmCIF (default 0)",
+    )
+    g.add_argument(
+        "--frame",
+        type=int,
+        default=0,
+        metavar="N",
+        help="0-based frame of a trajectory (default 0)",
+    )
+    g.add_argument(
+        "--altloc",
+        default="occupancy",
+        metavar="POLICY",
+        help="alternate locations: 'occupancy' (highest, default), 'first', or one altloc letter",
+    )
+    g.add_argument(
+        "--no-hydrogens",
+        action="store_true",
+        help="drop hydrogen atoms (default: keep those in the file)",
+    )
     g.add_argument("--keep-waters", action="store_true", help="keep water molecules")
     g.add_argument("--keep-ions", action="store_true", help="keep ions")
-    g.add_argument("--keep-hetero", action="store_true",
-                   help="keep ligands, lipids and other hetero groups")
-    g.add_argument("--select", metavar="SEL",
-                   help="MDAnalysis selection limiting the atoms that count")
-    g.add_argument("--radii", default=DEFAULT_RADIUS_SET, choices=sorted(RADIUS_SETS),
-                   help="van der Waals radius set (Å), default bondi (Bondi 1964)")
-    g.add_argument("--radii-file", metavar="TOML",
-                   help="TOML file overriding radii ([elements] / [atoms] tables, Å)")
+    g.add_argument(
+        "--keep-hetero", action="store_true", help="keep ligands, lipids and other hetero groups"
+    )
+    g.add_argument(
+        "--select", metavar="SEL", help="MDAnalysis selection limiting the atoms that count"
+    )
+    g.add_argument(
+        "--radii",
+        default=DEFAULT_RADIUS_SET,
+        choices=sorted(RADIUS_SETS),
+        help="van der Waals radius set (Å), default bondi (Bondi 1964)",
+    )
+    g.add_argument(
+        "--radii-file",
+        metavar="TOML",
+        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
+    )
 
 
 def add_axis_args(parser: argparse.ArgumentParser) -> None:
     """Options that choose and orient the pore axis."""
     g = parser.add_argument_group("pore axis")
-    g.add_argument("--axis-method", default="auto", choices=AXIS_METHODS,
-                   help="how to find the axis (default auto: n-fold symmetry axis of "
-                        "equivalent chains, else the most open principal axis)")
-    g.add_argument("--axis-point", nargs=3, type=float, metavar=("X", "Y", "Z"),
-                   help="a point on a user axis (Å)")
-    g.add_argument("--axis-direction", nargs=3, type=float, metavar=("DX", "DY", "DZ"),
-                   help="direction of a user axis (any length but zero)")
-    g.add_argument("--axis-selections", nargs=2, metavar=("SEL1", "SEL2"),
-                   help="two selections whose centroids define the axis (s grows 1 -> 2)")
-    g.add_argument("--entry", metavar="SEL",
-                   help="atoms at the pore end where ions enter; s increases from there")
+    g.add_argument(
+        "--axis-method",
+        default="auto",
+        choices=AXIS_METHODS,
+        help="how to find the axis (default auto: n-fold symmetry axis of "
+        "equivalent chains, else the most open principal axis)",
+    )
+    g.add_argument(
+        "--axis-point",
+        nargs=3,
+        type=float,
+        metavar=("X", "Y", "Z"),
+        help="a point on a user axis (Å)",
+    )
+    g.add_argument(
+        "--axis-direction",
+        nargs=3,
+        type=float,
+        metavar=("DX", "DY", "DZ"),
+        help="direction of a user axis (any length but zero)",
+    )
+    g.add_argument(
+        "--axis-selections",
+        nargs=2,
+        metavar=("SEL1", "SEL2"),
+        help="two selections whose centroids define the axis (s grows 1 -> 2)",
+    )
+    g.add_argument(
+        "--entry",
+        metavar="SEL",
+        help="atoms at the pore end where ions enter; s increases from there",
+    )
 
 
 def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> None:
@@ -62,16 +114,24 @@ def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> Non
     g.add_argument("--json", metavar="FILE", help="write the result as JSON")
     if csv:
         g.add_argument("--csv", metavar="FILE", help="write the table as CSV")
-    g.add_argument("--quiet", action="store_true",
-                   help="no summary, progress bars or warnings on the terminal")
+    g.add_argument(
+        "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
+    )
 
 
 def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
     """Read the structure named on the command line with its cleaning options."""
     return read_structure(
-        path or args.structure, trajectory=args.trajectory, model=args.model, frame=args.frame,
-        altloc=args.altloc, hydrogens=not args.no_hydrogens, waters=args.keep_waters,
-        ions=args.keep_ions, hetero=args.keep_hetero, selection=args.select,
+        path or args.structure,
+        trajectory=args.trajectory,
+        model=args.model,
+        frame=args.frame,
+        altloc=args.altloc,
+        hydrogens=not args.no_hydrogens,
+        waters=args.keep_waters,
+        ions=args.keep_ions,
+        hetero=args.keep_hetero,
+        selection=args.select,
     )
 
 
@@ -84,9 +144,15 @@ def load_axis(args: argparse.Namespace, atoms: Atoms, radii_A=None) -> PoreAxis:
     """Find the pore axis as the command-line options ask."""
     if radii_A is None:
         radii_A = atom_radii_A(atoms, radius_set_from_args(args))
-    return find_pore_axis(atoms, method=args.axis_method, point_A=args.axis_point,
-                          direction=args.axis_direction, selections=args.axis_selections,
-                          entry=args.entry, radii_A=radii_A)
+    return find_pore_axis(
+        atoms,
+        method=args.axis_method,
+        point_A=args.axis_point,
+        direction=args.axis_direction,
+        selections=args.axis_selections,
+        entry=args.entry,
+        radii_A=radii_A,
+    )
 
 
 def say(args: argparse.Namespace, text: str = "") -> None:

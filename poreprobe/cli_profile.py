@@ -17,17 +17,28 @@ from poreprobe.radii import atom_radii_A
 
 
 def register(sub) -> None:
-    p = sub.add_parser("profile", help="radius profile along the pore axis (Å)",
-                       description="Largest empty sphere per plane along the pore axis. "
-                                   "A model-based estimate: it depends on the radius set.")
+    p = sub.add_parser(
+        "profile",
+        help="radius profile along the pore axis (Å)",
+        description="Largest empty sphere per plane along the pore axis. "
+        "A model-based estimate: it depends on the radius set.",
+    )
     add_structure_args(p)
     add_axis_args(p)
     g = p.add_argument_group("profile")
     g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument("--margin-A", type=float, default=2.0,
-                   help="extension beyond the protein along the axis, Å (default 2)")
-    g.add_argument("--max-radius-A", type=float, default=20.0,
-                   help="planes wider than this (Å) count as open bulk (default 20)")
+    g.add_argument(
+        "--margin-A",
+        type=float,
+        default=2.0,
+        help="extension beyond the protein along the axis, Å (default 2)",
+    )
+    g.add_argument(
+        "--max-radius-A",
+        type=float,
+        default=20.0,
+        help="planes wider than this (Å) count as open bulk (default 20)",
+    )
     add_output_args(p)
     p.set_defaults(func=run)
 
@@ -38,8 +49,14 @@ def compute(args):
     rset = radius_set_from_args(args)
     radii_A = atom_radii_A(atoms, rset)
     axis = load_axis(args, atoms, radii_A)
-    prof = radius_profile(atoms, axis, radii_A=radii_A, step_A=args.step_A,
-                          margin_A=args.margin_A, max_radius_A=args.max_radius_A)
+    prof = radius_profile(
+        atoms,
+        axis,
+        radii_A=radii_A,
+        step_A=args.step_A,
+        margin_A=args.margin_A,
+        max_radius_A=args.max_radius_A,
+    )
     prof = _with_set_name(prof, rset.name)
     return atoms, axis, prof
 
@@ -56,10 +73,10 @@ def summary_lines(atoms, prof) -> list[str]:
     lines = [
         f"poreprobe {prof.version}: radius profile of {atoms.source} ({len(atoms)} atoms) "
         "- a model-based estimate",
-        f"axis: {ax.method}" + (f" (symmetry RMSD {ax.symmetry_rmsd_A:.2f} Å)"
-                                if ax.symmetry_rmsd_A is not None else "")
+        f"axis: {ax.method}"
+        + (f" (symmetry RMSD {ax.symmetry_rmsd_A:.2f} Å)" if ax.symmetry_rmsd_A is not None else "")
         + f", point {_fmt(ax.point_A)} Å, direction {_fmt(ax.direction, 3)}, "
-          f"oriented by {ax.oriented_by}",
+        f"oriented by {ax.oriented_by}",
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
         f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
