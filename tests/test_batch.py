@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from _breathing import RING_Z_A, frame_coords, ring_radii
+from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 
 from poreprobe import atom_radii_A, find_pore_axis, radius_profile, read_structure
 from poreprobe.batch import BatchSummary, batch_csv, expand_paths, profile_files

@@ -5,7 +5,7 @@ from __future__ import annotations
 import json
 
 import pytest
-from _breathing import RING_Z_A, frame_coords, ring_radii
+from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 
 from poreprobe.cli import main
 from poreprobe.synthetic import ring_stack

@@ -6,6 +6,7 @@ import json
 
 import numpy as np
 import pytest
+from _trajectory_data import write_trajectory
 
 from poreprobe.cli import main
 
@@ -14,8 +15,6 @@ pytestmark = pytest.mark.filterwarnings("ignore:Reader has no dt information")
 
 @pytest.fixture(scope="module")
 def breathing(tmp_path_factory):
-    from _breathing import write_trajectory
-
     return write_trajectory(tmp_path_factory.mktemp("breathing"))
 
 

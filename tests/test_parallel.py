@@ -7,12 +7,12 @@ would reach a remote cluster.
 
 from __future__ import annotations
 
-import os
 import warnings
 
 import MDAnalysis
 import numpy as np
 import pytest
+from _trajectory_data import RING_Z_A, frame_coords, grm_models_path, ring_radii, write_trajectory
 
 from poreprobe.batch import profile_files
 from poreprobe.cli import main
@@ -27,12 +27,6 @@ RESULT_KEYS = ("radius_A", "min_radius_A", "min_s_A", "fit_rmsd_A", "axis_point_
                "axis_direction", "mean_radius_A", "sd_radius_A", "percentile_radius_A",
                "n_enclosed", "closed_frames")
 
-
-def grm_path() -> str:
-    import MDAnalysisTests
-
-    return os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data",
-                        "1grm_elNemo_mode7.pdb.bz2")
 
 
 @pytest.fixture(scope="module")
@@ -58,8 +52,6 @@ def client(cluster):
 
 @pytest.fixture(scope="module")
 def breathing(tmp_path_factory):
-    from _breathing import write_trajectory
-
     return write_trajectory(tmp_path_factory.mktemp("breathing"))
 
 
@@ -96,7 +88,7 @@ def assert_same_results(runs):
 
 
 def test_grm_models_identical_on_every_backend(client):
-    runs = run_all_backends([grm_path()], client, "all", step_A=1.0)
+    runs = run_all_backends([grm_models_path()], client, "all", step_A=1.0)
     assert runs["serial"].n_frames == 11
     assert np.isfinite(runs["serial"].results.min_radius_A).all()
     assert_same_results(runs)
@@ -147,8 +139,6 @@ def test_profile_trajectory_through_scheduler_address(cluster, breathing):
 
 
 def test_batch_same_on_every_backend(client, tmp_path):
-    from _breathing import RING_Z_A, frame_coords, ring_radii
-
     from poreprobe.synthetic import ring_stack
     from poreprobe.writer import write_structure
 

@@ -2,13 +2,21 @@
 
 from __future__ import annotations
 
-import os
 import warnings
 
 import MDAnalysis
 import numpy as np
 import pytest
-from _breathing import AMPLITUDE_A, N_FRAMES, PERIOD, RING_Z_A, rigid_motion, ring_radii
+from _trajectory_data import (
+    AMPLITUDE_A,
+    N_FRAMES,
+    PERIOD,
+    RING_Z_A,
+    grm_models_path,
+    rigid_motion,
+    ring_radii,
+    write_trajectory,
+)
 
 from poreprobe import atom_radii_A, atoms_from_atomgroup, find_pore_axis, radius_profile
 from poreprobe.errors import InputError
@@ -21,23 +29,17 @@ from poreprobe.trajectory import (
     profile_trajectory,
 )
 
+pytestmark = pytest.mark.filterwarnings("ignore:.*gives no time step")
+
 #: Bondi 1964, Table I: van der Waals radius of carbon.
 CARBON_A = 1.70
 #: Shannon 1976 (Acta Cryst. A32:751), CN 6: crystal radius of K+, the default threshold.
 K_CRYSTAL_A = 1.38
 
 
-def grm_path() -> str:
-    import MDAnalysisTests
-
-    return os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data",
-                        "1grm_elNemo_mode7.pdb.bz2")
-
 
 @pytest.fixture(scope="module")
 def breathing(tmp_path_factory):
-    from _breathing import write_trajectory
-
     return write_trajectory(tmp_path_factory.mktemp("breathing"))
 
 
@@ -130,7 +132,7 @@ def test_per_frame_axis_equals_single_structure_profile(breathing):
 
 
 def test_grm_per_frame_equals_single_structure_profile():
-    u = universe(grm_path())
+    u = universe(grm_models_path())
     ag = u.select_atoms("all")
     ana = PoreProfileAnalysis(ag, axis_mode="per-frame", step_A=0.5).run(step=5)
     for row, frame in enumerate(ana.frames):
@@ -149,8 +151,8 @@ def test_grm_per_frame_equals_single_structure_profile():
 def test_grm_fixed_axis_equals_profile_of_aligned_frame():
     from MDAnalysis.analysis.align import alignto
 
-    u = universe(grm_path())
-    ref = universe(grm_path())
+    u = universe(grm_models_path())
+    ref = universe(grm_models_path())
     ana = PoreProfileAnalysis(u.select_atoms("all"), step_A=0.5,
                               align_selection="name CA").run(step=5)
     for row, frame in enumerate(ana.frames):
@@ -182,6 +184,15 @@ def test_summary_and_exports(breathing_fixed, tmp_path):
               if not ln.startswith("#")]
     assert frames[0] == ["frame", "time_ps", "min_radius_A", "min_s_A", "fit_rmsd_A", "closed"]
     assert [row[0] for row in frames[1:] if row[-1] == "1"] == ["2", "10"]
+
+
+def test_missing_time_step_is_said_once():
+    from poreprobe.errors import QualityWarning
+
+    u = universe(grm_models_path())
+    with pytest.warns(QualityWarning, match="gives no time step") as record:
+        PoreProfileAnalysis(u.atoms, step_A=1.0).run(stop=2)
+    assert len([w for w in record if "time step" in str(w.message)]) == 1
 
 
 def test_summary_before_run_is_refused(breathing):

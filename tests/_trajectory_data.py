@@ -1,4 +1,6 @@
-"""An invented trajectory for the trajectory tests: a breathing hourglass pore on the move.
+"""Data for the trajectory tests: an invented breathing pore, and an open multi-model file.
+
+The invented trajectory: a breathing hourglass pore on the move.
 
 Frame t is the hourglass ring stack of :func:`poreprobe.synthetic.hourglass`
 (waist 4 Å, ends 9 Å, 21 rings 1 Å apart, 32 carbon atoms per ring, four chains),
@@ -9,6 +11,8 @@ generator. Written as a PDB topology plus a DCD trajectory with MDAnalysis.
 
 from __future__ import annotations
 
+import os
+
 import numpy as np
 
 from poreprobe.synthetic import ring_stack
@@ -18,6 +22,15 @@ PERIOD = 8
 N_FRAMES = 12
 RING_Z_A = np.arange(-10.0, 10.0 + 1e-9, 1.0)
 BASE_RADII_A = 4.0 + 5.0 * (RING_Z_A / 10.0) ** 2
+
+
+def grm_models_path() -> str:
+    """1grm_elNemo_mode7.pdb.bz2 (11 models of gramicidin A along one normal mode), from
+    the MDAnalysisTests data folder, reached by its file name."""
+    import MDAnalysisTests
+
+    return os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data",
+                        "1grm_elNemo_mode7.pdb.bz2")
 
 
 def ring_radii(t: int) -> np.ndarray:
