@@ -337,26 +337,29 @@ class PoreProfileAnalysis(AnalysisBase):
     # -- results ------------------------------------------------------------
 
     def summary(self) -> TrajectoryProfiles:
-        """The run's results as a frozen :class:`TrajectoryProfiles`."""
+        """The run's results as a frozen :class:`TrajectoryProfiles`.
+
+        The arrays are shared with ``results`` (no copy) and become read-only.
+        """
         if "closed" not in self.results:
             raise InputError("run() the analysis before asking for its summary")
         r = self.results
         traj = self.atomgroup.universe.trajectory
         return TrajectoryProfiles(
-            frames=np.asarray(self.frames, dtype=np.int64).copy(),
-            times_ps=np.asarray(self.times, dtype=np.float64).copy(),
-            s_A=np.array(self.s_A), radius_A=np.array(r.radius_A),
-            min_radius_A=np.array(r.min_radius_A), min_s_A=np.array(r.min_s_A),
-            fit_rmsd_A=np.array(r.fit_rmsd_A), axis_point_A=np.array(r.axis_point_A),
-            axis_direction=np.array(r.axis_direction),
-            mean_radius_A=np.array(r.mean_radius_A), sd_radius_A=np.array(r.sd_radius_A),
+            frames=np.asarray(self.frames, dtype=np.int64),
+            times_ps=np.asarray(self.times, dtype=np.float64),
+            s_A=np.asarray(self.s_A), radius_A=np.asarray(r.radius_A),
+            min_radius_A=np.asarray(r.min_radius_A), min_s_A=np.asarray(r.min_s_A),
+            fit_rmsd_A=np.asarray(r.fit_rmsd_A), axis_point_A=np.asarray(r.axis_point_A),
+            axis_direction=np.asarray(r.axis_direction),
+            mean_radius_A=np.asarray(r.mean_radius_A), sd_radius_A=np.asarray(r.sd_radius_A),
             percentiles=self.percentiles,
-            percentile_radius_A=np.array(r.percentile_radius_A),
-            n_enclosed=np.array(r.n_enclosed),
+            percentile_radius_A=np.asarray(r.percentile_radius_A),
+            n_enclosed=np.asarray(r.n_enclosed),
             min_radius_mean_A=r.min_radius_mean_A, min_radius_sd_A=r.min_radius_sd_A,
-            min_radius_percentiles_A=np.array(r.min_radius_percentiles_A),
+            min_radius_percentiles_A=np.asarray(r.min_radius_percentiles_A),
             closed_below_A=self.closed_below_A,
-            closed_frames=np.array(r.closed_frames, dtype=np.int64),
+            closed_frames=np.asarray(r.closed_frames, dtype=np.int64),
             reference_axis=self.reference_axis, axis_mode=self.axis_mode,
             reference_frame=self.reference_frame,
             align_selection=self.align_selection if self.axis_mode == "fixed" else None,
