@@ -8,6 +8,7 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.batch import BatchRow, BatchSummary, profile_files  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
     SegmentResistance,
@@ -43,6 +44,8 @@ __all__ = [
     "__version__",
     "Atoms",
     "AtomSpheres",
+    "BatchRow",
+    "BatchSummary",
     "BathConductivity",
     "ConductanceEstimate",
     "InputError",
@@ -61,6 +64,7 @@ __all__ = [
     "atoms_from_atomgroup",
     "bath_conductivity",
     "clearance_A",
+    "profile_files",
     "find_pore_axis",
     "get_radius_set",
     "make_atoms",
@@ -73,3 +77,19 @@ __all__ = [
     "series_resistance",
     "split_side_resistances",
 ]
+
+#: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.
+_LAZY_EXPORTS = {
+    "PoreProfileAnalysis": "poreprobe.trajectory",
+    "TrajectoryProfiles": "poreprobe.trajectory",
+    "profile_trajectory": "poreprobe.trajectory",
+    "DaskClientBackend": "poreprobe.parallel",
+}
+
+
+def __getattr__(name):
+    if name in _LAZY_EXPORTS:
+        import importlib
+
+        return getattr(importlib.import_module(_LAZY_EXPORTS[name]), name)
+    raise AttributeError(f"module 'poreprobe' has no attribute {name!r}")

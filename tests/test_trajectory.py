@@ -238,3 +238,12 @@ def test_profile_trajectory_bad_input(breathing, tmp_path):
         profile_trajectory(*breathing, start=50)
     with pytest.raises(InputError, match="backend must be one of"):
         profile_trajectory(*breathing, backend="threads")
+
+
+def test_package_exports_trajectory_names_lazily():
+    import poreprobe
+
+    assert poreprobe.PoreProfileAnalysis is PoreProfileAnalysis
+    assert poreprobe.profile_trajectory is profile_trajectory
+    with pytest.raises(AttributeError, match="no attribute 'no_such_name'"):
+        poreprobe.no_such_name  # noqa: B018
