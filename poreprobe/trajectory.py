@@ -658,8 +658,6 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             universe = MDAnalysis.Universe(*[f for f in (topology, trajectory) if f], dt=1.0)
-    atomgroup = _select(universe, select)
-    analysis = PoreProfileAnalysis(atomgroup, **options)
     traj = universe.trajectory
     for name, value in (("start", start), ("stop", stop), ("step", step)):
         if value is not None:
@@ -668,6 +666,8 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
     if len(frames) == 0:
         raise InputError(f"no frames selected (start={start}, stop={stop}, step={step}, "
                          f"{len(traj)} frames in the trajectory)")
+    atomgroup = _select(universe, select)
+    analysis = PoreProfileAnalysis(atomgroup, **options)
     if isinstance(backend, BackendBase):
         context = contextlib.nullcontext(backend)
     else:

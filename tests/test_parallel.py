@@ -61,7 +61,7 @@ def universe(*files):
         return MDAnalysis.Universe(*files)
 
 
-def run_all_backends(files, client, selection, **options):
+def run_all_backends(files, client, selection, step=None, **options):
     """Results of one analysis on serial, multiprocessing, built-in dask and our client."""
     runs = {
         "serial": {},
@@ -73,7 +73,7 @@ def run_all_backends(files, client, selection, **options):
     out = {}
     for name, kwargs in runs.items():
         ana = PoreProfileAnalysis(universe(*files).select_atoms(selection), **options)
-        out[name] = ana.run(**kwargs)
+        out[name] = ana.run(step=step, **kwargs)
     return out
 
 
@@ -88,8 +88,8 @@ def assert_same_results(runs):
 
 
 def test_grm_models_identical_on_every_backend(client):
-    runs = run_all_backends([grm_models_path()], client, "all", step_A=1.0)
-    assert runs["serial"].n_frames == 11
+    runs = run_all_backends([grm_models_path()], client, "all", step=2, step_A=1.0)
+    np.testing.assert_array_equal(runs["serial"].frames, [0, 2, 4, 6, 8, 10])
     assert np.isfinite(runs["serial"].results.min_radius_A).all()
     assert_same_results(runs)
 
@@ -174,6 +174,23 @@ def test_open_backend_rejects_bad_requests():
     with pytest.raises(InputError, match="n_workers must be >= 1"):
         with open_backend("multiprocessing", n_workers=0):
             pass
+
+
+def _square(x):
+    return x * x
+
+
+@pytest.mark.parametrize("name", ["serial", "multiprocessing"])
+def test_local_backends_keep_task_order(name):
+    with open_backend(name, n_workers=2) as backend:
+        assert backend.apply(_square, [3, 1, 2, 5]) == [9, 1, 4, 25]
+
+
+def test_client_backend_keeps_task_order_and_raises_task_errors(client):
+    backend = DaskClientBackend(client)
+    assert backend.apply(_square, [3, 1, 2, 5]) == [9, 1, 4, 25]
+    with pytest.raises(TypeError):
+        backend.apply(_square, [2, "x"])
 
 
 def test_unreachable_scheduler_is_one_clear_error():
