@@ -39,8 +39,10 @@ def timed(func, repeat=5):
 
 def cylinders() -> None:
     print("ring-stack cylinders, rho = 0.8 Ohm m")
-    print(f"{'R_ring':>7} {'L':>6} {'model GOhm':>11} {'closed GOhm':>12} {'rel err':>9} "
-          f"{'pore vs exact profile':>22}")
+    print(
+        f"{'R_ring':>7} {'L':>6} {'model GOhm':>11} {'closed GOhm':>12} {'rel err':>9} "
+        f"{'pore vs exact profile':>22}"
+    )
     for ring, length in ((6.7, 10.0), (8.0, 16.0), (5.5, 30.0), (12.0, 40.0)):
         atoms, ring_r, ring_z = synthetic.cylinder(ring, length, atoms_per_ring=36)
         prof = poreprobe.radius_profile(atoms, AXIS)
@@ -52,8 +54,10 @@ def cylinders() -> None:
         r = synthetic.expected_radius_A(ring_r, ring_z, fine, R_C) * 1e-10
         exact_pore = RHO * np.trapezoid(1 / (np.pi * r * r), fine * 1e-10)
         pore = sum(s.resistance_Gohm for s in est.segments if s.kind == "pore") * 1e9
-        print(f"{ring:7.1f} {length:6.1f} {est.resistance_Gohm:11.4f} {closed * 1e-9:12.4f} "
-              f"{est.resistance_Gohm * 1e9 / closed - 1:9.2e} {pore / exact_pore - 1:22.2e}")
+        print(
+            f"{ring:7.1f} {length:6.1f} {est.resistance_Gohm:11.4f} {closed * 1e-9:12.4f} "
+            f"{est.resistance_Gohm * 1e9 / closed - 1:9.2e} {pore / exact_pore - 1:22.2e}"
+        )
 
 
 def speed() -> None:
@@ -62,20 +66,24 @@ def speed() -> None:
     try:
         import MDAnalysisTests
 
-        path = os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data",
-                            "1grm_single.pdb")
+        path = os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data", "1grm_single.pdb")
         atoms = poreprobe.read_structure(path)
-        cases.append(("gramicidin A (1grm_single.pdb)", atoms,
-                      poreprobe.find_pore_axis(atoms)))
+        cases.append(("gramicidin A (1grm_single.pdb)", atoms, poreprobe.find_pore_axis(atoms)))
     except (ImportError, OSError):
         print("  (MDAnalysisTests not installed: gramicidin case skipped)")
     for label, atoms, axis in cases:
         prof, t_prof = timed(lambda a=atoms, x=axis: poreprobe.radius_profile(a, x))
-        est, t_est = timed(lambda p=prof, a=atoms: poreprobe.series_resistance(
-            p, atoms=a, electrolyte="KCl", conc_mM=150), repeat=20)
-        print(f"  {label}: {len(atoms)} atoms, {len(prof.s_A)} planes; profile "
-              f"{t_prof * 1e3:.0f} ms, breakdown {t_est * 1e3:.2f} ms; "
-              f"{est.conductance_pS:.0f} pS in 150 mM KCl (model estimate)")
+        est, t_est = timed(
+            lambda p=prof, a=atoms: poreprobe.series_resistance(
+                p, atoms=a, electrolyte="KCl", conc_mM=150
+            ),
+            repeat=20,
+        )
+        print(
+            f"  {label}: {len(atoms)} atoms, {len(prof.s_A)} planes; profile "
+            f"{t_prof * 1e3:.0f} ms, breakdown {t_est * 1e3:.2f} ms; "
+            f"{est.conductance_pS:.0f} pS in 150 mM KCl (model estimate)"
+        )
 
 
 if __name__ == "__main__":

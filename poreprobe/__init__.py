@@ -23,8 +23,10 @@ from poreprobe.errors import (  # noqa: E402
     QualityWarning,
 )
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
+from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
+from poreprobe.reach import ReachField, reach_field  # noqa: E402
 from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
 from poreprobe.side_split import (  # noqa: E402
     RatioFreeEnergy,
@@ -42,39 +44,44 @@ from poreprobe.structure import (  # noqa: E402
 
 __all__ = [
     "__version__",
-    "Atoms",
-    "AtomSpheres",
-    "BatchRow",
-    "BatchSummary",
-    "BathConductivity",
-    "ConductanceEstimate",
-    "InputError",
-    "PoreAxis",
-    "PoreNotFoundError",
-    "PoreSegment",
-    "PoreprobeError",
-    "QualityWarning",
-    "RADIUS_SETS",
-    "RadiusProfile",
-    "RatioFreeEnergy",
-    "SegmentResistance",
-    "SideResistanceSplit",
     "access_resistance_ohm",
     "atom_radii_A",
+    "Atoms",
     "atoms_from_atomgroup",
+    "AtomSpheres",
     "bath_conductivity",
+    "BathConductivity",
+    "BatchRow",
+    "BatchSummary",
+    "capture_radius_at",
     "clearance_A",
-    "profile_files",
+    "ConductanceEstimate",
     "find_pore_axis",
     "get_radius_set",
+    "InputError",
     "make_atoms",
     "pore_extent",
     "pore_segments",
+    "profile_files",
+    "PoreAxis",
+    "PoreNotFoundError",
+    "PoreprobeError",
+    "PoreSegment",
+    "probe_scan",
+    "ProbeScan",
+    "QualityWarning",
     "radius_profile",
+    "RADIUS_SETS",
+    "RadiusProfile",
     "ratio_free_energy",
+    "RatioFreeEnergy",
+    "reach_field",
+    "ReachField",
     "read_structure",
+    "SegmentResistance",
     "select",
     "series_resistance",
+    "SideResistanceSplit",
     "split_side_resistances",
 ]
 

@@ -21,6 +21,7 @@ from poreprobe.errors import PoreprobeError
 COMMAND_MODULES = (
     "poreprobe.cli_profile",
     "poreprobe.cli_resistance",
+    "poreprobe.cli_scan",
     "poreprobe.cli_traj",
     "poreprobe.cli_batch",
 )

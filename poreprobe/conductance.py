@@ -63,6 +63,7 @@ SIDES = ("entry", "far", "neither")
 _TOL_A = 1e-6
 _A_TO_M = 1e-10
 
+
 # --------------------------------------------------------------------------- integrals
 def pore_integral_per_m(s_A, radius_A, s_start_A: float, s_end_A: float) -> float:
     """``∫ ds / (π r(s)²)`` over [s_start_A, s_end_A] in 1/m, r linear between planes.
@@ -104,14 +105,16 @@ def pore_integral_per_m(s_A, radius_A, s_start_A: float, s_end_A: float) -> floa
     s = np.asarray(s_A, dtype=float)
     r = np.asarray(radius_A, dtype=float)
     if s.ndim != 1 or s.shape != r.shape or s.size < 2:
-        raise InputError(f"s_A and radius_A must be 1-D of equal length >= 2, got {s.shape} "
-                         f"and {r.shape}")
+        raise InputError(
+            f"s_A and radius_A must be 1-D of equal length >= 2, got {s.shape} and {r.shape}"
+        )
     if np.any(np.diff(s) <= 0):
         raise InputError("s_A must increase strictly")
     lo, hi = check_finite(s_start_A, "s_start_A"), check_finite(s_end_A, "s_end_A")
     if hi < lo or lo < s[0] - _TOL_A or hi > s[-1] + _TOL_A:
-        raise InputError(f"interval {lo:g}..{hi:g} Å must be ordered and within "
-                         f"{s[0]:g}..{s[-1]:g} Å")
+        raise InputError(
+            f"interval {lo:g}..{hi:g} Å must be ordered and within {s[0]:g}..{s[-1]:g} Å"
+        )
     inside = (s > lo + _TOL_A) & (s < hi - _TOL_A)
     nodes = np.concatenate([[lo], s[inside], [hi]])
     radii = np.interp(nodes, s, r)
@@ -120,8 +123,10 @@ def pore_integral_per_m(s_A, radius_A, s_start_A: float, s_end_A: float) -> floa
     if not np.all(np.isfinite(used)):
         raise InputError(f"the radius is open (NaN) within {lo:g}..{hi:g} Å")
     if np.any(used <= 0):
-        raise PoreNotFoundError(f"the pore is closed (radius {used.min():.2f} Å <= 0) within "
-                                f"{lo:g}..{hi:g} Å: no conductance")
+        raise PoreNotFoundError(
+            f"the pore is closed (radius {used.min():.2f} Å <= 0) within "
+            f"{lo:g}..{hi:g} Å: no conductance"
+        )
     return float(np.sum(np.diff(nodes) / (np.pi * radii[:-1] * radii[1:])) / _A_TO_M)
 
 
@@ -136,6 +141,7 @@ def access_resistance_ohm(resistivity_ohm_m: float, mouth_radius_A: float) -> fl
     rho = check_positive(resistivity_ohm_m, "resistivity_ohm_m")
     a = check_positive(mouth_radius_A, "mouth_radius_A")
     return rho / (4.0 * a * _A_TO_M)
+
 
 # --------------------------------------------------------------------------- forward model
 @dataclass(frozen=True)
@@ -236,7 +242,8 @@ class ConductanceEstimate:
         return out
 
     def predicted_conductance_pS(  # noqa: N802 (unit suffix)
-            self, entry_factor: float = 1.0, far_factor: float = 1.0) -> float:
+        self, entry_factor: float = 1.0, far_factor: float = 1.0
+    ) -> float:
         """Conductance if the entry/far side resistivities are further scaled by the factors."""
         fe = check_positive(entry_factor, "entry_factor")
         ff = check_positive(far_factor, "far_factor")
@@ -250,7 +257,7 @@ class ConductanceEstimate:
             "source": self.source,
             "radius_set": self.radius_set,
             "model": "series resistance: Ohmic pore segments (Hille 2001) + access "
-                     "resistance rho/(4a) at each mouth (Hall 1975); a model estimate",
+            "resistance rho/(4a) at each mouth (Hall 1975); a model estimate",
             "resistivity_ohm_m": self.resistivity_ohm_m,
             "resistivity_source": self.resistivity_source,
             "entry_side_factor": self.entry_side_factor,
@@ -259,8 +266,7 @@ class ConductanceEstimate:
             "pore_s_range_A": [self.pore_start_A, self.pore_end_A],
             "narrowest_s_A": self.narrowest_s_A,
             "narrowest_radius_A": self.narrowest_radius_A,
-            "mouth_radius_A": {"entry": self.entry_mouth_radius_A,
-                               "far": self.far_mouth_radius_A},
+            "mouth_radius_A": {"entry": self.entry_mouth_radius_A, "far": self.far_mouth_radius_A},
             "mouth_rule": self.mouth_rule,
             "segments": [seg.to_dict() for seg in self.segments],
             "by_side_Gohm": self.by_side_Gohm(),
@@ -269,20 +275,28 @@ class ConductanceEstimate:
         }
 
 
-def resolve_resistivity(*, resistivity_ohm_m: float | None = None,
-                        conductivity_S_per_m: float | None = None,
-                        electrolyte: str | None = None, conc_mM: float | None = None
-                        ) -> tuple[float, str]:
+def resolve_resistivity(
+    *,
+    resistivity_ohm_m: float | None = None,
+    conductivity_S_per_m: float | None = None,
+    electrolyte: str | None = None,
+    conc_mM: float | None = None,
+) -> tuple[float, str]:
     """Base resistivity (Ω m) and a description of where it came from.
 
     Exactly one of ``resistivity_ohm_m``, ``conductivity_S_per_m`` or
     ``electrolyte`` (with ``conc_mM``) must be given.
     """
-    given = [resistivity_ohm_m is not None, conductivity_S_per_m is not None,
-             electrolyte is not None]
+    given = [
+        resistivity_ohm_m is not None,
+        conductivity_S_per_m is not None,
+        electrolyte is not None,
+    ]
     if sum(given) != 1:
-        raise InputError("give exactly one of resistivity_ohm_m, conductivity_S_per_m or "
-                         "electrolyte (with conc_mM)")
+        raise InputError(
+            "give exactly one of resistivity_ohm_m, conductivity_S_per_m or "
+            "electrolyte (with conc_mM)"
+        )
     if conc_mM is not None and electrolyte is None:
         raise InputError("conc_mM needs electrolyte")
     if resistivity_ohm_m is not None:
@@ -296,15 +310,18 @@ def resolve_resistivity(*, resistivity_ohm_m: float | None = None,
     bath = bath_conductivity(electrolyte, conc_mM)
     return bath.resistivity_ohm_m, (
         f"{bath.electrolyte} {bath.conc_mM:g} mM at {bath.temperature_C:g} °C: "
-        f"{bath.conductivity_S_per_m:.4g} S/m interpolated from {bath.source}")
+        f"{bath.conductivity_S_per_m:.4g} S/m interpolated from {bath.source}"
+    )
 
 
 def _mobility_for(mobility_factor, names: list[str]) -> dict[str, float]:
     if isinstance(mobility_factor, Mapping):
         unknown = set(mobility_factor) - set(names)
         if unknown:
-            raise InputError(f"mobility_factor names unknown segment(s) {sorted(unknown)}; "
-                             f"pore segments: {names}")
+            raise InputError(
+                f"mobility_factor names unknown segment(s) {sorted(unknown)}; "
+                f"pore segments: {names}"
+            )
         out = dict.fromkeys(names, 1.0)
         out.update({k: float(v) for k, v in mobility_factor.items()})
     else:
@@ -312,24 +329,32 @@ def _mobility_for(mobility_factor, names: list[str]) -> dict[str, float]:
     for name, value in out.items():
         val = check_positive(value, f"mobility_factor[{name!r}]")
         if val > 1:
-            raise InputError(f"mobility_factor[{name!r}] must be in (0, 1] (it reduces the "
-                             f"conductivity of narrow pores), got {value!r}")
+            raise InputError(
+                f"mobility_factor[{name!r}] must be in (0, 1] (it reduces the "
+                f"conductivity of narrow pores), got {value!r}"
+            )
         out[name] = val
     return out
 
 
-def series_resistance(profile: RadiusProfile, *, atoms: Atoms | None = None,
-                      resistivity_ohm_m: float | None = None,
-                      conductivity_S_per_m: float | None = None,
-                      electrolyte: str | None = None, conc_mM: float | None = None,
-                      segments: Sequence | None = None,
-                      cuts_s_A: Sequence[float] | None = None,
-                      entry_side_factor: float = 1.0, far_side_factor: float = 1.0,
-                      bathed_by: Mapping[str, str] | None = None,
-                      mobility_factor: float | Mapping[str, float] = 1.0,
-                      mouth_radii_A: tuple[float, float] | None = None,
-                      side_names: tuple[str, str] = ("entry", "far"),
-                      constriction_margin_A: float = 1.0) -> ConductanceEstimate:
+def series_resistance(
+    profile: RadiusProfile,
+    *,
+    atoms: Atoms | None = None,
+    resistivity_ohm_m: float | None = None,
+    conductivity_S_per_m: float | None = None,
+    electrolyte: str | None = None,
+    conc_mM: float | None = None,
+    segments: Sequence | None = None,
+    cuts_s_A: Sequence[float] | None = None,
+    entry_side_factor: float = 1.0,
+    far_side_factor: float = 1.0,
+    bathed_by: Mapping[str, str] | None = None,
+    mobility_factor: float | Mapping[str, float] = 1.0,
+    mouth_radii_A: tuple[float, float] | None = None,
+    side_names: tuple[str, str] = ("entry", "far"),
+    constriction_margin_A: float = 1.0,
+) -> ConductanceEstimate:
     """Series-resistance breakdown of a pore from its radius profile.
 
     Parameters
@@ -385,15 +410,24 @@ def series_resistance(profile: RadiusProfile, *, atoms: Atoms | None = None,
     True
     """
     rho, rho_source = resolve_resistivity(
-        resistivity_ohm_m=resistivity_ohm_m, conductivity_S_per_m=conductivity_S_per_m,
-        electrolyte=electrolyte, conc_mM=conc_mM)
+        resistivity_ohm_m=resistivity_ohm_m,
+        conductivity_S_per_m=conductivity_S_per_m,
+        electrolyte=electrolyte,
+        conc_mM=conc_mM,
+    )
     fe = check_positive(entry_side_factor, "entry_side_factor")
     ff = check_positive(far_side_factor, "far_side_factor")
     entry_name, far_name = check_side_names(side_names)
     extent = pore_extent(profile, atoms)
-    pores = pore_segments(profile, atoms=atoms, segments=segments, cuts_s_A=cuts_s_A,
-                          constriction_margin_A=constriction_margin_A,
-                          side_names=(entry_name, far_name), extent=extent)
+    pores = pore_segments(
+        profile,
+        atoms=atoms,
+        segments=segments,
+        cuts_s_A=cuts_s_A,
+        constriction_margin_A=constriction_margin_A,
+        side_names=(entry_name, far_name),
+        extent=extent,
+    )
     names = [seg.name for seg in pores]
     sides = _sides_for(pores, extent.narrowest_s_A, bathed_by or {})
     mobility = _mobility_for(mobility_factor, names)
@@ -407,30 +441,75 @@ def series_resistance(profile: RadiusProfile, *, atoms: Atoms | None = None,
         a_entry = check_positive(mouth_radii_A[0], "mouth_radii_A[0]")
         a_far = check_positive(mouth_radii_A[1], "mouth_radii_A[1]")
     side_rho = {"entry": rho * fe, "far": rho * ff, "neither": rho}
-    rows = [(f"{entry_name} access", "access", "entry", extent.start_A, extent.start_A, a_entry,
-             side_rho["entry"], 1.0, access_resistance_ohm(side_rho["entry"], a_entry),
-             "Hall 1975 rho/(4a)")]
+    rows = [
+        (
+            f"{entry_name} access",
+            "access",
+            "entry",
+            extent.start_A,
+            extent.start_A,
+            a_entry,
+            side_rho["entry"],
+            1.0,
+            access_resistance_ohm(side_rho["entry"], a_entry),
+            "Hall 1975 rho/(4a)",
+        )
+    ]
     for seg in pores:
         eff = side_rho[sides[seg.name]] / mobility[seg.name]
         integral = pore_integral_per_m(s, r, seg.s_start_A, seg.s_end_A)
-        rows.append((seg.name, "pore", sides[seg.name], seg.s_start_A, seg.s_end_A,
-                     _min_radius(s, r, seg.s_start_A, seg.s_end_A), eff, mobility[seg.name],
-                     eff * integral, seg.origin))
-    rows.append((f"{far_name} access", "access", "far", extent.end_A, extent.end_A, a_far,
-                 side_rho["far"], 1.0, access_resistance_ohm(side_rho["far"], a_far),
-                 "Hall 1975 rho/(4a)"))
+        rows.append(
+            (
+                seg.name,
+                "pore",
+                sides[seg.name],
+                seg.s_start_A,
+                seg.s_end_A,
+                _min_radius(s, r, seg.s_start_A, seg.s_end_A),
+                eff,
+                mobility[seg.name],
+                eff * integral,
+                seg.origin,
+            )
+        )
+    rows.append(
+        (
+            f"{far_name} access",
+            "access",
+            "far",
+            extent.end_A,
+            extent.end_A,
+            a_far,
+            side_rho["far"],
+            1.0,
+            access_resistance_ohm(side_rho["far"], a_far),
+            "Hall 1975 rho/(4a)",
+        )
+    )
     total_ohm = sum(row[8] for row in rows)
-    segs = tuple(SegmentResistance(name, kind, side, lo, hi, rad, eff, mob, res * 1e-9,
-                                   100.0 * res / total_ohm, origin)
-                 for name, kind, side, lo, hi, rad, eff, mob, res, origin in rows)
+    segs = tuple(
+        SegmentResistance(
+            name, kind, side, lo, hi, rad, eff, mob, res * 1e-9, 100.0 * res / total_ohm, origin
+        )
+        for name, kind, side, lo, hi, rad, eff, mob, res, origin in rows
+    )
     return ConductanceEstimate(
-        segments=segs, resistance_Gohm=total_ohm * 1e-9, conductance_pS=1e12 / total_ohm,
-        resistivity_ohm_m=rho, resistivity_source=rho_source, entry_side_factor=fe,
-        far_side_factor=ff, pore_start_A=extent.start_A, pore_end_A=extent.end_A,
-        narrowest_s_A=extent.narrowest_s_A, narrowest_radius_A=extent.narrowest_radius_A,
-        entry_mouth_radius_A=a_entry, far_mouth_radius_A=a_far,
+        segments=segs,
+        resistance_Gohm=total_ohm * 1e-9,
+        conductance_pS=1e12 / total_ohm,
+        resistivity_ohm_m=rho,
+        resistivity_source=rho_source,
+        entry_side_factor=fe,
+        far_side_factor=ff,
+        pore_start_A=extent.start_A,
+        pore_end_A=extent.end_A,
+        narrowest_s_A=extent.narrowest_s_A,
+        narrowest_radius_A=extent.narrowest_radius_A,
+        entry_mouth_radius_A=a_entry,
+        far_mouth_radius_A=a_far,
         mouth_rule=MOUTH_RULE if mouth_radii_A is None else "mouth radii given by the user",
-        side_names=(entry_name, far_name), radius_set=profile.radius_set,
+        side_names=(entry_name, far_name),
+        radius_set=profile.radius_set,
         source=profile.source,
     )
 
@@ -441,15 +520,17 @@ def _min_radius(s, r, lo, hi) -> float:
     return float(min(np.min(r[inside], initial=np.inf), ends.min()))
 
 
-def _sides_for(pores: Sequence[PoreSegment], narrowest_s_A: float,
-               bathed_by: Mapping[str, str]) -> dict[str, str]:
+def _sides_for(
+    pores: Sequence[PoreSegment], narrowest_s_A: float, bathed_by: Mapping[str, str]
+) -> dict[str, str]:
     names = [seg.name for seg in pores]
     if not isinstance(bathed_by, Mapping):
         raise InputError(f"bathed_by must map segment names to sides, got {bathed_by!r}")
     unknown = set(bathed_by) - set(names)
     if unknown:
-        raise InputError(f"bathed_by names unknown segment(s) {sorted(unknown)}; pore "
-                         f"segments: {names}")
+        raise InputError(
+            f"bathed_by names unknown segment(s) {sorted(unknown)}; pore segments: {names}"
+        )
     out = {}
     for seg in pores:
         if seg.name in bathed_by:

@@ -95,14 +95,32 @@ _MEMORY = "NaCl 1.0 mol/L value from memory (no checked source at hand)"
 
 #: The tables. Each entry is (c in mol/L, κ in mS/cm, source, status).
 CONDUCTIVITY_TABLES: dict[str, tuple[ConductivityPoint, ...]] = {
-    "KCl": tuple(ConductivityPoint(c, k, _CRC, "published") for c, k in (
-        (0.0005, 0.07387), (0.001, 0.14688), (0.005, 0.7169), (0.01, 1.412),
-        (0.02, 2.7654), (0.05, 6.665), (0.1, 12.89),
-    )) + (ConductivityPoint(kcl_molarity_mol_per_L(1.0), 108.620, _NIST_1M, "published"),),
-    "NaCl": tuple(ConductivityPoint(c, k, _CRC, "published") for c, k in (
-        (0.0005, 0.06222), (0.001, 0.12368), (0.005, 0.60295), (0.01, 1.1845),
-        (0.02, 2.314), (0.05, 5.5505), (0.1, 10.669),
-    )) + (ConductivityPoint(1.0, 85.8, _MEMORY, "memory"),),
+    "KCl": tuple(
+        ConductivityPoint(c, k, _CRC, "published")
+        for c, k in (
+            (0.0005, 0.07387),
+            (0.001, 0.14688),
+            (0.005, 0.7169),
+            (0.01, 1.412),
+            (0.02, 2.7654),
+            (0.05, 6.665),
+            (0.1, 12.89),
+        )
+    )
+    + (ConductivityPoint(kcl_molarity_mol_per_L(1.0), 108.620, _NIST_1M, "published"),),
+    "NaCl": tuple(
+        ConductivityPoint(c, k, _CRC, "published")
+        for c, k in (
+            (0.0005, 0.06222),
+            (0.001, 0.12368),
+            (0.005, 0.60295),
+            (0.01, 1.1845),
+            (0.02, 2.314),
+            (0.05, 5.5505),
+            (0.1, 10.669),
+        )
+    )
+    + (ConductivityPoint(1.0, 85.8, _MEMORY, "memory"),),
 }
 
 
@@ -179,22 +197,33 @@ def bath_conductivity(electrolyte: str, conc_mM: float) -> BathConductivity:
     name = check_choice(electrolyte, "electrolyte", CONDUCTIVITY_TABLES)
     conc = check_positive(conc_mM, "conc_mM")
     if not MIN_CONC_MM <= conc <= MAX_CONC_MM:
-        raise InputError(f"conc_mM must be between {MIN_CONC_MM:g} and {MAX_CONC_MM:g} mM for "
-                         f"{name} (the tabulated range), got {conc_mM!r}")
+        raise InputError(
+            f"conc_mM must be between {MIN_CONC_MM:g} and {MAX_CONC_MM:g} mM for "
+            f"{name} (the tabulated range), got {conc_mM!r}"
+        )
     c = conc / 1000.0
     table = CONDUCTIVITY_TABLES[name]
     lam = float(_INTERPOLATORS[name](np.sqrt(c)))
-    kappa_S_per_m = lam * c * 0.1          # mS/cm -> S/m
+    kappa_S_per_m = lam * c * 0.1  # mS/cm -> S/m
     upper = [p for p in table if p.conc_mol_per_L > 0.1]
     from_memory = c > 0.1 and any(p.status == "memory" for p in upper)
     if from_memory:
-        warnings.warn(f"{name} above 100 mM is interpolated towards a value from memory "
-                      f"({upper[-1].conductivity_mS_per_cm:g} mS/cm at "
-                      f"{upper[-1].conc_mol_per_L:g} mol/L); give a measured conductivity "
-                      "if you have one", QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"{name} above 100 mM is interpolated towards a value from memory "
+            f"({upper[-1].conductivity_mS_per_cm:g} mS/cm at "
+            f"{upper[-1].conc_mol_per_L:g} mol/L); give a measured conductivity "
+            "if you have one",
+            QualityWarning,
+            stacklevel=2,
+        )
     sources = list(dict.fromkeys(p.source for p in table))
     return BathConductivity(
-        electrolyte=name, conc_mM=conc, conductivity_S_per_m=kappa_S_per_m,
-        resistivity_ohm_m=1.0 / kappa_S_per_m, molar_conductivity_S_cm2_per_mol=lam,
-        temperature_C=TEMPERATURE_C, source="; ".join(sources), from_memory=from_memory,
+        electrolyte=name,
+        conc_mM=conc,
+        conductivity_S_per_m=kappa_S_per_m,
+        resistivity_ohm_m=1.0 / kappa_S_per_m,
+        molar_conductivity_S_cm2_per_mol=lam,
+        temperature_C=TEMPERATURE_C,
+        source="; ".join(sources),
+        from_memory=from_memory,
     )

@@ -63,7 +63,14 @@ class AtomSpheres:
     def max_radius_A(self) -> float:
         return float(self.class_radii_A[-1])
 
-    def clearance_A(self, points_A, *, return_index: bool = False, workers: int | None = None):
+    def clearance_A(
+        self,
+        points_A,
+        *,
+        return_index: bool = False,
+        workers: int | None = None,
+        max_clearance_A: float | None = None,
+    ):
         """Exact clearance of each point.
 
         Parameters
@@ -76,6 +83,10 @@ class AtomSpheres:
             Threads for the KD-tree queries (-1: all cores). Default: all cores for
             batches of more than 4,000 points, one thread otherwise (thread start-up
             costs more than it saves on small batches).
+        max_clearance_A : float, optional
+            Clip the result at this value (Å): values up to it stay exact, larger
+            ones are reported as ``max_clearance_A`` (index -1 where no atom lies
+            within reach). Far points then cost much less.
 
         Returns
         -------
@@ -87,36 +98,54 @@ class AtomSpheres:
         shape = pts.shape[:-1]
         pts = pts.reshape(-1, 3)
         workers = _default_workers(len(pts), workers)
-        best, best_idx = self._nearest_clearance(pts, workers)
+        bound = np.inf
+        if max_clearance_A is not None:
+            bound = float(max_clearance_A)
+            if not np.isfinite(bound):
+                raise InputError(f"max_clearance_A must be finite, got {max_clearance_A!r}")
+        best, best_idx = self._nearest_clearance(pts, workers, bound)
+        if max_clearance_A is not None:
+            clipped = best > bound
+            best[clipped] = bound
+            best_idx[clipped] = -1
         if return_index:
             return best.reshape(shape), best_idx.reshape(shape)
         return best.reshape(shape)
 
-    def _nearest_clearance(self, pts: np.ndarray, workers: int):
+    def _nearest_clearance(self, pts: np.ndarray, workers: int, bound: float = np.inf):
         """Exact smallest clearance: k nearest atoms from one tree, checked, then per class.
 
         Among the k atoms nearest by centre distance, the smallest clearance is exact
         whenever the k-th distance minus the largest radius is no smaller than it (no atom
         farther away can do better); the few points that fail that test are settled with
-        one tree per radius class.
+        one tree per radius class. With a finite ``bound``, atoms whose clearance must
+        exceed it are not searched for (such points may come back as ``inf``, index -1).
         """
-        k = min(self._k_single, len(self.coords_A))
-        dist, j = self.tree.query(pts, k=k, workers=workers)
+        n = len(self.coords_A)
+        k = min(self._k_single, n)
+        reach = bound + self.max_radius_A + 1e-9
+        dist, j = self.tree.query(pts, k=k, workers=workers, distance_upper_bound=reach)
         dist, j = dist.reshape(len(pts), k), j.reshape(len(pts), k)
-        values = dist - self.radii_A[j]
+        missing = j >= n
+        j = np.where(missing, 0, j)
+        values = np.where(missing, np.inf, dist - self.radii_A[j])
         pick = np.argmin(values, axis=1)
         rows = np.arange(len(pts))
-        best, best_idx = values[rows, pick], j[rows, pick]
+        best = values[rows, pick]
+        best_idx = np.where(missing[rows, pick], -1, j[rows, pick])
         unsure = np.flatnonzero(dist[:, -1] - self.max_radius_A < best)
-        if unsure.size and k < len(self.coords_A):
+        if unsure.size and k < n:
             sub = pts[unsure]
             sub_best = np.full(len(sub), np.inf)
-            sub_idx = np.zeros(len(sub), dtype=np.int64)
+            sub_idx = np.full(len(sub), -1, dtype=np.int64)
             for radius, idx, tree in zip(
                 self.class_radii_A, self._class_index, self._trees, strict=True
             ):
-                d, jj = tree.query(sub, k=1, workers=workers)
-                value = d - radius
+                d, jj = tree.query(
+                    sub, k=1, workers=workers, distance_upper_bound=bound + radius + 1e-9
+                )
+                found = jj < len(idx)
+                value = np.where(found, d - radius, np.inf)
                 better = value < sub_best
                 sub_best[better] = value[better]
                 sub_idx[better] = idx[jj[better]]

@@ -78,20 +78,27 @@ class SideResistanceSplit:
 
     def to_dict(self) -> dict:
         out = dict(self.__dict__)
-        out["conductances_pS"] = dict(zip(("control", "entry_raised", "far_raised"),
-                                          self.conductances_pS, strict=True))
-        out["conductance_sd_pS"] = dict(zip(("control", "entry_raised", "far_raised"),
-                                            self.conductance_sd_pS, strict=True))
-        out["model"] = ("three resistors in series; R_e = (1/G_e - 1/G0)/(f_e - 1), "
-                        "R_f = (1/G_f - 1/G0)/(f_f - 1), R_m = 1/G0 - R_e - R_f; "
-                        "first-order error propagation")
+        out["conductances_pS"] = dict(
+            zip(("control", "entry_raised", "far_raised"), self.conductances_pS, strict=True)
+        )
+        out["conductance_sd_pS"] = dict(
+            zip(("control", "entry_raised", "far_raised"), self.conductance_sd_pS, strict=True)
+        )
+        out["model"] = (
+            "three resistors in series; R_e = (1/G_e - 1/G0)/(f_e - 1), "
+            "R_f = (1/G_f - 1/G0)/(f_f - 1), R_m = 1/G0 - R_e - R_f; "
+            "first-order error propagation"
+        )
         out["segments"] = [
-            {"name": f"{key} side" if key != "middle" else "middle",
-             "resistance_Gohm": self.resistance_Gohm[key],
-             "resistance_sd_Gohm": self.resistance_sd_Gohm[key],
-             "share_percent": self.share_percent[key],
-             "share_sd_percent": self.share_sd_percent[key]}
-            for key in ("entry", "middle", "far")]
+            {
+                "name": f"{key} side" if key != "middle" else "middle",
+                "resistance_Gohm": self.resistance_Gohm[key],
+                "resistance_sd_Gohm": self.resistance_sd_Gohm[key],
+                "share_percent": self.share_percent[key],
+                "share_sd_percent": self.share_sd_percent[key],
+            }
+            for key in ("entry", "middle", "far")
+        ]
         out["conductance_pS"] = self.conductances_pS[0]
         out["conductance_sd_pS"] = self.conductance_sd_pS[0]
         return out
@@ -113,14 +120,21 @@ def _measurement(value, name: str) -> tuple[float, float]:
 def _check_factor(value, name: str) -> float:
     f = check_positive(value, name)
     if abs(f - 1.0) < 1e-9:
-        raise InputError(f"{name} must differ from 1 (no change leaves the split undefined), "
-                         f"got {value!r}")
+        raise InputError(
+            f"{name} must differ from 1 (no change leaves the split undefined), got {value!r}"
+        )
     return f
 
 
-def split_side_resistances(control_pS, entry_raised_pS, far_raised_pS, *,
-                           factor_entry: float, factor_far: float,
-                           estimate: ConductanceEstimate | None = None) -> SideResistanceSplit:
+def split_side_resistances(
+    control_pS,
+    entry_raised_pS,
+    far_raised_pS,
+    *,
+    factor_entry: float,
+    factor_far: float,
+    estimate: ConductanceEstimate | None = None,
+) -> SideResistanceSplit:
     """Solve the three-resistor series model from measured conductances.
 
     Parameters
@@ -153,13 +167,17 @@ def split_side_resistances(control_pS, entry_raised_pS, far_raised_pS, *,
     """
     g = np.empty(3)
     sd = np.empty(3)
-    for i, (value, name) in enumerate(((control_pS, "control conductance"),
-                                       (entry_raised_pS, "entry-raised conductance"),
-                                       (far_raised_pS, "far-raised conductance"))):
+    for i, (value, name) in enumerate(
+        (
+            (control_pS, "control conductance"),
+            (entry_raised_pS, "entry-raised conductance"),
+            (far_raised_pS, "far-raised conductance"),
+        )
+    ):
         g[i], sd[i] = _measurement(value, name)
     fe = _check_factor(factor_entry, "factor_entry")
     ff = _check_factor(factor_far, "factor_far")
-    r = 1e3 / g                               # GOhm
+    r = 1e3 / g  # GOhm
     var_r = (1e3 * sd / g**2) ** 2
     # outputs linear in r: rows entry, middle, far, total
     j_entry = np.array([-1.0, 1.0, 0.0]) / (fe - 1.0)
@@ -177,33 +195,50 @@ def split_side_resistances(control_pS, entry_raised_pS, far_raised_pS, *,
     share_sd = dict(zip(keys[:3], (100 * np.sqrt(np.diag(share_cov))).tolist(), strict=True))
     negative = [k for k in keys[:3] if res[k] < 0]
     if negative:
-        warnings.warn(f"negative resistance recovered for {', '.join(negative)}: the "
-                      "measurements do not fit the three-resistor model within their noise",
-                      QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"negative resistance recovered for {', '.join(negative)}: the "
+            "measurements do not fit the three-resistor model within their noise",
+            QualityWarning,
+            stacklevel=2,
+        )
     ln_e = ratio_free_energy(g[0], g[1], sd1_pS=sd[0], sd2_pS=sd[1])
     ln_f = ratio_free_energy(g[0], g[2], sd1_pS=sd[0], sd2_pS=sd[2])
     prediction = None
     if estimate is not None:
         if not isinstance(estimate, ConductanceEstimate):
-            raise InputError(f"estimate must be a ConductanceEstimate, got "
-                             f"{type(estimate).__name__}")
+            raise InputError(
+                f"estimate must be a ConductanceEstimate, got {type(estimate).__name__}"
+            )
         parts = estimate.by_side_Gohm()
         total = estimate.resistance_Gohm
         prediction = {
-            "resistance_Gohm": {"entry": parts["entry"], "middle": parts["neither"],
-                                "far": parts["far"], "total": total},
-            "share_percent": {"entry": 100 * parts["entry"] / total,
-                              "middle": 100 * parts["neither"] / total,
-                              "far": 100 * parts["far"] / total},
-            "conductances_pS": {"control": estimate.conductance_pS,
-                                "entry_raised": estimate.predicted_conductance_pS(fe, 1.0),
-                                "far_raised": estimate.predicted_conductance_pS(1.0, ff)},
+            "resistance_Gohm": {
+                "entry": parts["entry"],
+                "middle": parts["neither"],
+                "far": parts["far"],
+                "total": total,
+            },
+            "share_percent": {
+                "entry": 100 * parts["entry"] / total,
+                "middle": 100 * parts["neither"] / total,
+                "far": 100 * parts["far"] / total,
+            },
+            "conductances_pS": {
+                "control": estimate.conductance_pS,
+                "entry_raised": estimate.predicted_conductance_pS(fe, 1.0),
+                "far_raised": estimate.predicted_conductance_pS(1.0, ff),
+            },
             "note": "forward model estimate for the structure (not a measurement)",
         }
     return SideResistanceSplit(
-        conductances_pS=tuple(g.tolist()), conductance_sd_pS=tuple(sd.tolist()),
-        factor_entry=fe, factor_far=ff, resistance_Gohm=res, resistance_sd_Gohm=res_sd,
-        share_percent=share, share_sd_percent=share_sd,
+        conductances_pS=tuple(g.tolist()),
+        conductance_sd_pS=tuple(sd.tolist()),
+        factor_entry=fe,
+        factor_far=ff,
+        resistance_Gohm=res,
+        resistance_sd_Gohm=res_sd,
+        share_percent=share,
+        share_sd_percent=share_sd,
         ln_ratio_kT={"entry": ln_e.ln_ratio, "far": ln_f.ln_ratio},
         ln_ratio_sd_kT={"entry": ln_e.ln_ratio_sd, "far": ln_f.ln_ratio_sd},
         prediction=prediction,
@@ -238,8 +273,14 @@ class RatioFreeEnergy:
         return dict(self.__dict__)
 
 
-def ratio_free_energy(g1_pS: float, g2_pS: float, *, sd1_pS: float = 0.0, sd2_pS: float = 0.0,
-                      temperature_K: float = 298.15) -> RatioFreeEnergy:
+def ratio_free_energy(
+    g1_pS: float,
+    g2_pS: float,
+    *,
+    sd1_pS: float = 0.0,
+    sd2_pS: float = 0.0,
+    temperature_K: float = 298.15,
+) -> RatioFreeEnergy:
     """``ln(G1 / G2)`` in kT (and kJ/mol): the energetics aside of the module docstring.
 
     Examples
@@ -253,5 +294,6 @@ def ratio_free_energy(g1_pS: float, g2_pS: float, *, sd1_pS: float = 0.0, sd2_pS
     s2 = check_positive(sd2_pS, "sd2_pS", allow_zero=True)
     t = check_positive(temperature_K, "temperature_K")
     ln = math.log(g1 / g2)
-    return RatioFreeEnergy(g1 / g2, ln, math.hypot(s1 / g1, s2 / g2),
-                           ln * constants.R * t / 1000.0, t)
+    return RatioFreeEnergy(
+        g1 / g2, ln, math.hypot(s1 / g1, s2 / g2), ln * constants.R * t / 1000.0, t
+    )

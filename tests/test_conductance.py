@@ -28,10 +28,21 @@ def analytic_profile(s_A, radius_A, step_A):
     r = np.asarray(radius_A, dtype=float)
     k = int(np.nanargmin(r))
     return RadiusProfile(
-        s_A=s, radius_A=r, center_A=np.zeros((len(s), 3)), axis=Z_AXIS,
-        radius_set="analytic", step_A=step_A, max_radius_A=20.0, min_radius_A=float(r[k]),
-        min_s_A=float(s[k]), min_center_A=np.zeros(3), min_residues=(), contact_tol_A=0.3,
-        nearest_atom=np.full(len(s), -1), source="analytic")
+        s_A=s,
+        radius_A=r,
+        center_A=np.zeros((len(s), 3)),
+        axis=Z_AXIS,
+        radius_set="analytic",
+        step_A=step_A,
+        max_radius_A=20.0,
+        min_radius_A=float(r[k]),
+        min_s_A=float(s[k]),
+        min_center_A=np.zeros(3),
+        min_residues=(),
+        contact_tol_A=0.3,
+        nearest_atom=np.full(len(s), -1),
+        source="analytic",
+    )
 
 
 def open_ended(s_A, radius_A, step_A):
@@ -95,8 +106,7 @@ def test_cylinder_of_atoms_matches_closed_form(ring_radius_A, length_A):
     r_exact = synthetic.expected_radius_A(ring_r, ring_z, fine, BONDI_C_A)
     integral = np.trapezoid(1 / (np.pi * (r_exact * 1e-10) ** 2), fine * 1e-10)
     pore = [seg for seg in est.segments if seg.kind == "pore"]
-    assert sum(seg.resistance_Gohm for seg in pore) * 1e9 == pytest.approx(0.8 * integral,
-                                                                            rel=5e-4)
+    assert sum(seg.resistance_Gohm for seg in pore) * 1e9 == pytest.approx(0.8 * integral, rel=5e-4)
 
 
 def test_cone_closed_form_integral():
@@ -108,11 +118,13 @@ def test_cone_closed_form_integral():
     s[-1] = length
     r = a1 + (a2 - a1) * s / length
     assert pore_integral_per_m(s, r, 0, length) == pytest.approx(
-        length * 1e-10 / (np.pi * a1 * a2 * 1e-20), rel=1e-12)
+        length * 1e-10 / (np.pi * a1 * a2 * 1e-20), rel=1e-12
+    )
     lo, hi = 1.23, 12.34
     r_lo, r_hi = (a1 + (a2 - a1) * x / length for x in (lo, hi))
     assert pore_integral_per_m(s, r, lo, hi) == pytest.approx(
-        (hi - lo) * 1e-10 / (np.pi * r_lo * r_hi * 1e-20), rel=1e-12)
+        (hi - lo) * 1e-10 / (np.pi * r_lo * r_hi * 1e-20), rel=1e-12
+    )
     est = series_resistance(open_ended(s, r, 0.7), resistivity_ohm_m=1.0)
     rho_over_m = 1.0 / 1e-10
     expected_ohm = (length / (np.pi * a1 * a2) + 1 / (4 * a1) + 1 / (4 * a2)) * rho_over_m
@@ -178,11 +190,13 @@ def test_rigid_motion_invariance(ring_hourglass):
     shift = np.array([4.0, -7.5, 12.25])
     moved = atoms.with_coords(rot.apply(np.array(atoms.coords_A)) + shift)
     axis = poreprobe.PoreAxis(shift, rot.apply([0, 0, 1]), "user")
-    est = series_resistance(poreprobe.radius_profile(moved, axis), atoms=moved,
-                            resistivity_ohm_m=0.7)
+    est = series_resistance(
+        poreprobe.radius_profile(moved, axis), atoms=moved, resistivity_ohm_m=0.7
+    )
     assert est.conductance_pS == pytest.approx(ref.conductance_pS, rel=1e-6)
     assert [s.resistance_Gohm for s in est.segments] == pytest.approx(
-        [s.resistance_Gohm for s in ref.segments], rel=1e-6)
+        [s.resistance_Gohm for s in ref.segments], rel=1e-6
+    )
 
 
 # --------------------------------------------------------------------------- segments
@@ -192,8 +206,13 @@ def test_automatic_rule_on_hourglass(ring_hourglass):
     atoms, ring_r, ring_z, prof = ring_hourglass
     est = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0)
     names = [seg.name for seg in est.segments]
-    assert names == ["entry access", "entry-side pore", "constriction", "far-side pore",
-                     "far access"]
+    assert names == [
+        "entry access",
+        "entry-side pore",
+        "constriction",
+        "far-side pore",
+        "far access",
+    ]
     sides = [seg.side for seg in est.segments]
     assert sides == ["entry", "entry", "neither", "far", "far"]
     exact = synthetic.expected_radius_A(ring_r, ring_z, prof.s_A, BONDI_C_A)
@@ -206,16 +225,24 @@ def test_automatic_rule_on_hourglass(ring_hourglass):
 
 def test_five_named_segments_from_ranges_and_a_selection(ring_cylinder):
     atoms, _, ring_z, prof = ring_cylinder
-    segs = pore_segments(prof, atoms=atoms,
-                         segments=[("cavity", -5.0, -1.0), ("filter", "resid 5:7"),
-                                   ("vestibule", 2.0, 5.0)])
+    segs = pore_segments(
+        prof,
+        atoms=atoms,
+        segments=[("cavity", -5.0, -1.0), ("filter", "resid 5:7"), ("vestibule", 2.0, 5.0)],
+    )
     # resid k is the ring at z = -5 + (k - 1): resid 5..7 spans -1..1
     assert [(s.name, s.s_start_A, s.s_end_A) for s in segs] == [
-        ("cavity", -5.0, -1.0), ("filter", -1.0, 1.0),
-        ("pore between filter and vestibule", 1.0, 2.0), ("vestibule", 2.0, 5.0)]
-    est = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0,
-                            segments=[("cavity", -5.0, -1.0), ("filter", "resid 5:7"),
-                                      ("vestibule", 2.0, 5.0)])
+        ("cavity", -5.0, -1.0),
+        ("filter", -1.0, 1.0),
+        ("pore between filter and vestibule", 1.0, 2.0),
+        ("vestibule", 2.0, 5.0),
+    ]
+    est = series_resistance(
+        prof,
+        atoms=atoms,
+        resistivity_ohm_m=1.0,
+        segments=[("cavity", -5.0, -1.0), ("filter", "resid 5:7"), ("vestibule", 2.0, 5.0)],
+    )
     assert len(est.segments) == 6
     assert [s.side for s in est.segments] == ["entry", "entry", "neither", "far", "far", "far"]
 
@@ -237,21 +264,29 @@ def test_cuts_are_additive(cuts):
 def test_side_factors_scale_only_their_side(ring_hourglass):
     atoms, _, _, prof = ring_hourglass
     base = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0)
-    raised = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0, entry_side_factor=2.5,
-                               far_side_factor=0.5)
+    raised = series_resistance(
+        prof, atoms=atoms, resistivity_ohm_m=1.0, entry_side_factor=2.5, far_side_factor=0.5
+    )
     factor = {"entry": 2.5, "far": 0.5, "neither": 1.0}
     for a, b in zip(base.segments, raised.segments, strict=True):
         assert b.resistance_Gohm == pytest.approx(factor[a.side] * a.resistance_Gohm, rel=1e-12)
     assert raised.conductance_pS == pytest.approx(
-        base.predicted_conductance_pS(2.5, 0.5), rel=1e-12)
+        base.predicted_conductance_pS(2.5, 0.5), rel=1e-12
+    )
 
 
 def test_bathed_by_and_mobility_and_mouth_overrides(ring_hourglass):
     atoms, _, _, prof = ring_hourglass
     base = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0)
-    est = series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0, entry_side_factor=3.0,
-                            bathed_by={"constriction": "entry"},
-                            mobility_factor={"constriction": 0.5}, mouth_radii_A=(2.0, 8.0))
+    est = series_resistance(
+        prof,
+        atoms=atoms,
+        resistivity_ohm_m=1.0,
+        entry_side_factor=3.0,
+        bathed_by={"constriction": "entry"},
+        mobility_factor={"constriction": 0.5},
+        mouth_radii_A=(2.0, 8.0),
+    )
     c0, c1 = base.segments[2], est.segments[2]
     assert c1.side == "entry" and c1.mobility_factor == 0.5
     assert c1.resistance_Gohm == pytest.approx(c0.resistance_Gohm * 3.0 / 0.5, rel=1e-12)
@@ -274,33 +309,43 @@ def test_resistivity_sources_agree(ring_cylinder):
     assert "KCl 100 mM" in by_salt.resistivity_source
 
 
-@pytest.mark.parametrize("kwargs", [
-    {"segments": [("a", -5.0, 0.5), ("b", 0.0, 5.0)]},          # overlap
-    {"segments": [("a", -6.0, 0.0)]},                           # out of range
-    {"segments": [("a", 2.0, 1.0)]},                            # reversed
-    {"segments": [("a", -4.0, -2.0), ("a", 0.0, 2.0)]},         # duplicate name
-    {"segments": [("x", "resid 1:3"), ("y", "resid 2:5")]},     # selections overlap
-    {"segments": [("entry access", -4.0, -2.0)]},               # reserved name
-    {"cuts_s_A": [0.0, 7.0]},                                   # cut out of range
-    {"cuts_s_A": [1.0], "segments": [("a", -4.0, -2.0)]},       # both
-    {"entry_side_factor": 0.0},
-    {"far_side_factor": -1.0},
-    {"bathed_by": {"nowhere": "entry"}},
-    {"bathed_by": {"constriction": "left"}},
-    {"mobility_factor": 1.5},
-    {"mobility_factor": 0.0},
-    {"mouth_radii_A": (5.0,)},
-    {"side_names": ("in", "in")},
-])
+@pytest.mark.parametrize(
+    "kwargs",
+    [
+        {"segments": [("a", -5.0, 0.5), ("b", 0.0, 5.0)]},  # overlap
+        {"segments": [("a", -6.0, 0.0)]},  # out of range
+        {"segments": [("a", 2.0, 1.0)]},  # reversed
+        {"segments": [("a", -4.0, -2.0), ("a", 0.0, 2.0)]},  # duplicate name
+        {"segments": [("x", "resid 1:3"), ("y", "resid 2:5")]},  # selections overlap
+        {"segments": [("entry access", -4.0, -2.0)]},  # reserved name
+        {"cuts_s_A": [0.0, 7.0]},  # cut out of range
+        {"cuts_s_A": [1.0], "segments": [("a", -4.0, -2.0)]},  # both
+        {"entry_side_factor": 0.0},
+        {"far_side_factor": -1.0},
+        {"bathed_by": {"nowhere": "entry"}},
+        {"bathed_by": {"constriction": "left"}},
+        {"mobility_factor": 1.5},
+        {"mobility_factor": 0.0},
+        {"mouth_radii_A": (5.0,)},
+        {"side_names": ("in", "in")},
+    ],
+)
 def test_bad_forward_input(ring_cylinder, kwargs):
     atoms, _, _, prof = ring_cylinder
     with pytest.raises(InputError):
         series_resistance(prof, atoms=atoms, resistivity_ohm_m=1.0, **kwargs)
 
 
-@pytest.mark.parametrize("kwargs", [{}, {"resistivity_ohm_m": 1.0, "conductivity_S_per_m": 1.0},
-                                    {"electrolyte": "KCl"}, {"conc_mM": 100},
-                                    {"resistivity_ohm_m": -1.0}])
+@pytest.mark.parametrize(
+    "kwargs",
+    [
+        {},
+        {"resistivity_ohm_m": 1.0, "conductivity_S_per_m": 1.0},
+        {"electrolyte": "KCl"},
+        {"conc_mM": 100},
+        {"resistivity_ohm_m": -1.0},
+    ],
+)
 def test_exactly_one_positive_resistivity_source(ring_cylinder, kwargs):
     _, _, _, prof = ring_cylinder
     with pytest.raises(InputError):
@@ -330,13 +375,21 @@ def test_to_dict_has_the_documented_fields(ring_cylinder):
 # --------------------------------------------------------------------------- inverse analysis
 def simulate(r_entry, r_middle, r_far, fe, ff):
     """Conductances (pS) of the three-resistor model (resistances in GOhm)."""
-    return (1e3 / (r_entry + r_middle + r_far), 1e3 / (fe * r_entry + r_middle + r_far),
-            1e3 / (r_entry + r_middle + ff * r_far))
+    return (
+        1e3 / (r_entry + r_middle + r_far),
+        1e3 / (fe * r_entry + r_middle + r_far),
+        1e3 / (r_entry + r_middle + ff * r_far),
+    )
 
 
 @settings(max_examples=40, deadline=None)
-@given(st.floats(0.01, 10), st.floats(0.01, 10), st.floats(0.01, 10),
-       st.floats(1.1, 5) | st.floats(0.2, 0.9), st.floats(1.1, 5) | st.floats(0.2, 0.9))
+@given(
+    st.floats(0.01, 10),
+    st.floats(0.01, 10),
+    st.floats(0.01, 10),
+    st.floats(1.1, 5) | st.floats(0.2, 0.9),
+    st.floats(1.1, 5) | st.floats(0.2, 0.9),
+)
 def test_inverse_recovers_simulated_resistances_exactly(re, rm, rf, fe, ff):
     g = simulate(re, rm, rf, fe, ff)
     res = split_side_resistances(*g, factor_entry=fe, factor_far=ff)
@@ -352,8 +405,14 @@ def test_inverse_uncertainty_grows_as_factor_approaches_one():
         g = simulate(1.0, 2.0, 0.5, f, f)
         res = split_side_resistances(*[(x, 0.02 * x) for x in g], factor_entry=f, factor_far=f)
         assert res.resistance_Gohm["entry"] == pytest.approx(1.0, rel=1e-9)
-        sds.append((res.resistance_sd_Gohm["entry"], res.resistance_sd_Gohm["middle"],
-                    res.resistance_sd_Gohm["far"], res.share_sd_percent["entry"]))
+        sds.append(
+            (
+                res.resistance_sd_Gohm["entry"],
+                res.resistance_sd_Gohm["middle"],
+                res.resistance_sd_Gohm["far"],
+                res.share_sd_percent["entry"],
+            )
+        )
     sds = np.array(sds)
     assert np.all(np.diff(sds, axis=0) > 0)
     # close to 1 the SD scales as 1/(f - 1): halving (f - 1) nearly doubles it
@@ -382,8 +441,11 @@ def test_inverse_of_forward_prediction_recovers_the_side_split(ring_hourglass):
     # the split equals the forward model's entry / neither / far totals.
     atoms, _, _, prof = ring_hourglass
     est = series_resistance(prof, atoms=atoms, electrolyte="KCl", conc_mM=150)
-    g = (est.conductance_pS, est.predicted_conductance_pS(1.8, 1), est.predicted_conductance_pS(
-        1, 2.4))
+    g = (
+        est.conductance_pS,
+        est.predicted_conductance_pS(1.8, 1),
+        est.predicted_conductance_pS(1, 2.4),
+    )
     res = split_side_resistances(*g, factor_entry=1.8, factor_far=2.4, estimate=est)
     parts = est.by_side_Gohm()
     assert res.resistance_Gohm["entry"] == pytest.approx(parts["entry"], rel=1e-9)
@@ -391,7 +453,8 @@ def test_inverse_of_forward_prediction_recovers_the_side_split(ring_hourglass):
     assert res.resistance_Gohm["far"] == pytest.approx(parts["far"], rel=1e-9)
     assert res.prediction["conductances_pS"]["entry_raised"] == pytest.approx(g[1], rel=1e-12)
     assert res.prediction["share_percent"]["middle"] == pytest.approx(
-        res.share_percent["middle"], rel=1e-9)
+        res.share_percent["middle"], rel=1e-9
+    )
 
 
 def test_inverse_warns_on_negative_resistance():
@@ -399,11 +462,18 @@ def test_inverse_warns_on_negative_resistance():
         split_side_resistances(100, 101, 99, factor_entry=2, factor_far=2)
 
 
-@pytest.mark.parametrize(("g", "fe", "ff"), [
-    ((100, 90, 95), 0.0, 2.0), ((100, 90, 95), 2.0, -1.0), ((100, 90, 95), 1.0, 2.0),
-    ((-100, 90, 95), 2.0, 2.0), ((100, (90, -1), 95), 2.0, 2.0), ((100, 0, 95), 2.0, 2.0),
-    ((100, (90, 1, 2), 95), 2.0, 2.0),
-])
+@pytest.mark.parametrize(
+    ("g", "fe", "ff"),
+    [
+        ((100, 90, 95), 0.0, 2.0),
+        ((100, 90, 95), 2.0, -1.0),
+        ((100, 90, 95), 1.0, 2.0),
+        ((-100, 90, 95), 2.0, 2.0),
+        ((100, (90, -1), 95), 2.0, 2.0),
+        ((100, 0, 95), 2.0, 2.0),
+        ((100, (90, 1, 2), 95), 2.0, 2.0),
+    ],
+)
 def test_bad_inverse_input(g, fe, ff):
     with pytest.raises(InputError):
         split_side_resistances(*g, factor_entry=fe, factor_far=ff)

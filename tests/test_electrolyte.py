@@ -15,10 +15,24 @@ from poreprobe.errors import InputError, QualityWarning
 # CRC Handbook, "Molar conductivity of aqueous electrolyte solutions", 25 °C, c in mol/L,
 # κ in mS/cm, as transcribed in pyEQL's CRC_conductivity.csv (KingsburyLab/pyEQL@5a31421);
 # REFERENCE_VALUES §3 lists the KCl 0.01 and 0.1 mol/L entries.
-CRC_KCL = [(0.0005, 0.07387), (0.001, 0.14688), (0.005, 0.7169), (0.01, 1.412),
-           (0.02, 2.7654), (0.05, 6.665), (0.1, 12.89)]
-CRC_NACL = [(0.0005, 0.06222), (0.001, 0.12368), (0.005, 0.60295), (0.01, 1.1845),
-            (0.02, 2.314), (0.05, 5.5505), (0.1, 10.669)]
+CRC_KCL = [
+    (0.0005, 0.07387),
+    (0.001, 0.14688),
+    (0.005, 0.7169),
+    (0.01, 1.412),
+    (0.02, 2.7654),
+    (0.05, 6.665),
+    (0.1, 12.89),
+]
+CRC_NACL = [
+    (0.0005, 0.06222),
+    (0.001, 0.12368),
+    (0.005, 0.60295),
+    (0.01, 1.1845),
+    (0.02, 2.314),
+    (0.05, 5.5505),
+    (0.1, 10.669),
+]
 
 
 @pytest.mark.parametrize(("name", "points"), [("KCl", CRC_KCL), ("NaCl", CRC_NACL)])
@@ -43,7 +57,8 @@ def test_reproduces_nist_one_molal_standard():
     # 99:241; CRC table "Standard KCl solutions for calibrating conductivity cells").
     conc_mM = kcl_molarity_mol_per_L(1.0) * 1000
     assert bath_conductivity("KCl", conc_mM).conductivity_S_per_m == pytest.approx(
-        10.862, rel=1e-12)
+        10.862, rel=1e-12
+    )
 
 
 @pytest.mark.parametrize(("molality", "kappa_uS_per_cm"), [(0.01, 1408.23), (0.1, 12824.6)])
@@ -86,8 +101,10 @@ def test_nacl_above_tenth_molar_warns_and_says_memory():
         assert not bath_conductivity("KCl", 150).from_memory
 
 
-@pytest.mark.parametrize(("name", "conc"), [("KCl", 0.1), ("KCl", 1500), ("NaCl", -5),
-                                            ("CaCl2", 100), ("KCl", float("nan"))])
+@pytest.mark.parametrize(
+    ("name", "conc"),
+    [("KCl", 0.1), ("KCl", 1500), ("NaCl", -5), ("CaCl2", 100), ("KCl", float("nan"))],
+)
 def test_bad_input_is_refused(name, conc):
     with pytest.raises(InputError):
         bath_conductivity(name, conc)
