@@ -1,7 +1,9 @@
 """Many models at once: one summary row per file, on any backend.
 
 Each file is read, its pore axis found and its radius profile computed exactly
-as ``poreprobe profile`` does for one file (same options for every file). The
+as ``poreprobe profile`` does for one file (same options for every file), and,
+when probe radii are given, the capture radius of each from the probe-size scan
+(:func:`poreprobe.probes.probe_scan`, as ``poreprobe scan`` does). The
 files are mapped one task each onto a backend of :mod:`poreprobe.parallel`
 (serial, a local process pool, or a dask cluster). A file that cannot be read
 or profiled becomes a row with its error; it never stops the batch.
@@ -16,9 +18,9 @@ from dataclasses import dataclass, field
 from functools import partial
 
 from poreprobe import __version__
-from poreprobe._validate import check_int, check_positive
+from poreprobe._validate import check_choice, check_int, check_positive
 from poreprobe.axis import find_pore_axis
-from poreprobe.errors import InputError, PoreprobeError
+from poreprobe.errors import InputError, PoreNotFoundError, PoreprobeError, QualityWarning
 from poreprobe.export import to_csv
 from poreprobe.profile import radius_profile
 from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
@@ -43,6 +45,9 @@ class BatchRow:
         How the axis was found (``""`` on failure).
     min_residues : tuple of str
         Residues lining the narrowest point.
+    capture_radius_A : tuple of float
+        Capture radius (Å, area-equivalent) for each of the summary's
+        ``capture_probe_radii_A``; NaN where the scan failed for this file.
     warnings : tuple of str
         Warnings raised while reading and profiling this file.
     error : str
@@ -55,6 +60,7 @@ class BatchRow:
     min_s_A: float = float("nan")
     axis_method: str = ""
     min_residues: tuple[str, ...] = ()
+    capture_radius_A: tuple[float, ...] = ()
     warnings: tuple[str, ...] = ()
     error: str = ""
 
@@ -66,6 +72,7 @@ class BatchRow:
         return {"path": self.path, "ok": self.ok, "n_atoms": self.n_atoms,
                 "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
                 "axis_method": self.axis_method, "min_residues": list(self.min_residues),
+                "capture_radius_A": list(self.capture_radius_A),
                 "warnings": list(self.warnings), "error": self.error}
 
 
@@ -79,6 +86,8 @@ class BatchSummary:
     radius_set : str
     step_A, margin_A, max_radius_A : float
         Profile options used for every file (Å).
+    capture_probe_radii_A : tuple of float
+        Probe radii (Å) whose capture radius each row gives (empty: none asked for).
     version : str
     """
 
@@ -87,6 +96,7 @@ class BatchSummary:
     step_A: float
     margin_A: float
     max_radius_A: float
+    capture_probe_radii_A: tuple[float, ...] = ()
     version: str = field(default=__version__)
 
     @property
@@ -98,6 +108,7 @@ class BatchSummary:
                 "kind": "radius profiles of many models (model-based estimates)",
                 "radius_set": self.radius_set, "step_A": self.step_A,
                 "margin_A": self.margin_A, "max_radius_A": self.max_radius_A,
+                "capture_probe_radii_A": list(self.capture_probe_radii_A),
                 "n_files": len(self.rows), "n_failed": self.n_failed,
                 "rows": [row.to_dict() for row in self.rows]}
 
@@ -110,6 +121,8 @@ class _FileOptions:
     step_A: float
     margin_A: float
     max_radius_A: float
+    capture_probe_radii_A: tuple[float, ...] = ()
+    scan: dict = field(default_factory=dict)
 
 
 def expand_paths(files) -> list[str]:
@@ -160,13 +173,29 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
             prof = radius_profile(atoms, axis, radii_A=radii_A, step_A=options.step_A,
                                   margin_A=options.margin_A,
                                   max_radius_A=options.max_radius_A)
+            capture = _capture_radii_A(atoms, axis, radii_A, options)
         except Exception as exc:  # a failed file is reported, never fatal to the batch
             return BatchRow(path=path, error=_error_text(exc),
                             warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
     return BatchRow(path=path, n_atoms=len(atoms), min_radius_A=prof.min_radius_A,
                     min_s_A=prof.min_s_A, axis_method=axis.method,
-                    min_residues=prof.min_residues,
+                    min_residues=prof.min_residues, capture_radius_A=capture,
                     warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
+
+
+def _capture_radii_A(atoms, axis, radii_A, options: _FileOptions) -> tuple[float, ...]:
+    """Capture radius per chosen probe (NaN for all when the scan finds no enclosed section)."""
+    if not options.capture_probe_radii_A:
+        return ()
+    from poreprobe.probes import probe_scan
+
+    try:
+        scan = probe_scan(atoms, axis, probe_radii_A=options.capture_probe_radii_A,
+                          radii_A=radii_A, **options.scan)
+    except PoreNotFoundError as exc:
+        warnings.warn(f"capture radius: {exc}", QualityWarning, stacklevel=2)
+        return tuple(float("nan") for _ in options.capture_probe_radii_A)
+    return tuple(float(v) for v in scan.capture_radius_A)
 
 
 def profile_files(files, *, backend="serial", n_workers: int | None = 1,
@@ -178,7 +207,9 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
                   selection: str | None = None, axis_method: str = "auto",
                   axis_point_A=None, axis_direction=None,
                   axis_selections: tuple[str, str] | None = None,
-                  entry: str | None = None) -> BatchSummary:
+                  entry: str | None = None, capture_probe_radii_A=None,
+                  capture_from_end: str = "low", capture_spacing_A: float = 0.5,
+                  capture_pore_radius_A: float = 15.0) -> BatchSummary:
     """Profile many structure files and summarise each in one row.
 
     Parameters
@@ -205,6 +236,11 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
         Reading and cleaning options of :func:`poreprobe.read_structure`.
     axis_method, axis_point_A, axis_direction, axis_selections, entry
         Axis options of :func:`poreprobe.find_pore_axis`.
+    capture_probe_radii_A : sequence of float, optional
+        Probe radii (Å, increasing) whose capture radius to report per file.
+    capture_from_end, capture_spacing_A, capture_pore_radius_A
+        Scan options (``from_end``, ``spacing_A``, ``pore_radius_A`` of
+        :func:`poreprobe.probes.probe_scan`).
 
     Returns
     -------
@@ -226,6 +262,11 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
         step_A=check_positive(step_A, "step_A"),
         margin_A=check_positive(margin_A, "margin_A", allow_zero=True),
         max_radius_A=check_positive(max_radius_A, "max_radius_A"),
+        capture_probe_radii_A=_check_probes(capture_probe_radii_A),
+        scan={"from_end": check_choice(capture_from_end, "capture_from_end", ("low", "high")),
+              "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
+              "pore_radius_A": check_positive(capture_pore_radius_A,
+                                              "capture_pore_radius_A")},
     )
     task = partial(profile_file, options=options)
     if isinstance(backend, BackendBase):
@@ -236,16 +277,32 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
             rows = executor.apply(task, paths)
     return BatchSummary(rows=tuple(rows), radius_set=options.radius_set.name,
                         step_A=options.step_A, margin_A=options.margin_A,
-                        max_radius_A=options.max_radius_A)
+                        max_radius_A=options.max_radius_A,
+                        capture_probe_radii_A=options.capture_probe_radii_A)
+
+
+def _check_probes(probe_radii_A) -> tuple[float, ...]:
+    if probe_radii_A is None:
+        return ()
+    from poreprobe.reach import check_levels
+
+    probes = check_levels(probe_radii_A, "capture_probe_radii_A")
+    if len(probes) == 0 or probes[0] <= 0:
+        raise InputError(f"capture_probe_radii_A must be > 0, got {probe_radii_A!r}")
+    return tuple(float(p) for p in probes)
 
 
 def batch_csv(summary: BatchSummary, path=None) -> str:
-    """CSV with one row per file: narrowest radius, its position, status and error."""
-    header = ("file", "status", "n_atoms", "min_radius_A", "min_s_A", "axis_method",
+    """CSV with one row per file: narrowest radius, its position, capture radii, status, error."""
+    probes = summary.capture_probe_radii_A
+    header = ("file", "status", "n_atoms", "min_radius_A", "min_s_A",
+              *(f"capture_radius_A_p{p:g}" for p in probes), "axis_method",
               "narrowest_lined_by", "warnings", "error")
     rows = ((row.path, "ok" if row.ok else "failed", row.n_atoms, float(row.min_radius_A),
-             float(row.min_s_A), row.axis_method, " ".join(row.min_residues[:8]),
-             len(row.warnings), row.error) for row in summary.rows)
+             float(row.min_s_A),
+             *(row.capture_radius_A if row.ok else (float("nan"),) * len(probes)),
+             row.axis_method, " ".join(row.min_residues[:8]), len(row.warnings), row.error)
+            for row in summary.rows)
     comments = (f"poreprobe {summary.version} batch summary: {len(summary.rows)} files, "
                 f"{summary.n_failed} failed",
                 f"radius set: {summary.radius_set}; model-based estimates; lengths in Å; "

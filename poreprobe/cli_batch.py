@@ -6,6 +6,7 @@ from poreprobe.batch import batch_csv, profile_files
 from poreprobe.cli_common import (
     add_axis_args,
     add_backend_args,
+    add_capture_args,
     add_output_args,
     add_structure_args,
     backend_from_args,
@@ -33,6 +34,7 @@ def register(sub) -> None:
                    help="extension beyond the protein along the axis, Å (default 2)")
     g.add_argument("--max-radius-A", type=float, default=20.0,
                    help="planes wider than this (Å) count as open bulk (default 20)")
+    add_capture_args(p, several=True)
     add_backend_args(p)
     add_output_args(p)
     p.set_defaults(func=run)
@@ -51,7 +53,9 @@ def run(args) -> int:
         ions=args.keep_ions, hetero=args.keep_hetero, selection=args.select,
         axis_method=args.axis_method, axis_point_A=args.axis_point,
         axis_direction=args.axis_direction, axis_selections=args.axis_selections,
-        entry=args.entry,
+        entry=args.entry, capture_probe_radii_A=args.capture_probe_radii_A,
+        capture_from_end=args.capture_from_end, capture_spacing_A=args.capture_spacing_A,
+        capture_pore_radius_A=args.capture_pore_radius_A,
     )
     if args.json:
         to_json(summary, args.json)
@@ -63,8 +67,11 @@ def run(args) -> int:
     width = max(len(row.path) for row in summary.rows)
     for row in summary.rows:
         if row.ok:
+            capture = "".join(f", capture {c:.2f} Å (probe {p:g} Å)" for p, c in
+                              zip(summary.capture_probe_radii_A, row.capture_radius_A,
+                                  strict=True))
             say(args, f"  {row.path:<{width}}  min radius {row.min_radius_A:6.2f} Å at "
-                      f"s = {row.min_s_A:6.1f} Å")
+                      f"s = {row.min_s_A:6.1f} Å{capture}")
         else:
             say(args, f"  {row.path:<{width}}  FAILED: {row.error}")
     return 1 if summary.n_failed else 0

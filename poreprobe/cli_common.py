@@ -191,3 +191,24 @@ def backend_from_args(args: argparse.Namespace) -> tuple[str, int | None]:
 
         raise InputError(f"--workers must be >= 1, got {workers}")
     return backend, workers
+
+
+def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
+    """Capture-radius options of traj (one probe) and batch (several probes)."""
+    g = parser.add_argument_group("capture radius (probe-size scan)")
+    if several:
+        g.add_argument("--capture-probe-radii-A", type=float, nargs="+", metavar="P",
+                       help="also give the capture radius for these probe radii (Å, "
+                            "increasing)")
+    else:
+        g.add_argument("--capture-probe-radius-A", type=float, metavar="P",
+                       help="also give, per frame, the capture radius for a probe of this "
+                            "radius (Å); costs about one more profile per frame")
+    g.add_argument("--capture-from-end", "--from", dest="capture_from_end",
+                   choices=("low", "high"), default="low",
+                   help="end of the axis (in s) where probes enter; default low, which is "
+                        "the --entry end when --entry is given")
+    g.add_argument("--capture-spacing-A", type=float, default=0.5,
+                   help="grid spacing of the scan in Å (default 0.5)")
+    g.add_argument("--capture-pore-radius-A", type=float, default=15.0,
+                   help="radius in Å around the axis the scan searches (default 15)")

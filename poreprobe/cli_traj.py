@@ -7,6 +7,7 @@ import numpy as np
 from poreprobe.cli_common import (
     add_axis_args,
     add_backend_args,
+    add_capture_args,
     add_output_args,
     backend_from_args,
     radius_set_from_args,
@@ -77,13 +78,15 @@ def register(sub) -> None:
     g.add_argument("--percentiles", type=float, nargs="+",
                    default=list(DEFAULT_PERCENTILES), metavar="Q",
                    help="percentile levels, %% (default 5 25 50 75 95)")
+    add_capture_args(p, several=False)
     g = add_backend_args(p)
     g.add_argument("--parts", type=int, default=None, metavar="N",
                    help="blocks of frames for parallel runs (count; default 4 per worker)")
     add_output_args(p)
     p.add_argument_group("per-frame output").add_argument(
         "--frames-csv", metavar="FILE",
-        help="write one row per frame (narrowest radius, its position, closed flag) as CSV")
+        help="write one row per frame (narrowest radius, its position, capture radius, "
+             "closed flag) as CSV")
     p.set_defaults(func=run)
 
 
@@ -100,6 +103,9 @@ def run(args) -> int:
         axis_point_A=args.axis_point, axis_direction=args.axis_direction,
         axis_selections=args.axis_selections, entry=args.entry,
         closed_below_A=args.closed_below_A, percentiles=args.percentiles,
+        capture_probe_radius_A=args.capture_probe_radius_A,
+        capture_from_end=args.capture_from_end, capture_spacing_A=args.capture_spacing_A,
+        capture_pore_radius_A=args.capture_pore_radius_A,
     )
     if args.json:
         to_json(result, args.json)
@@ -134,6 +140,9 @@ def summary_lines(result, backend: str) -> list[str]:
             f"narrowest of all: {mins[k]:.2f} Å at s = {result.min_s_A[k]:.1f} Å in frame "
             f"{int(result.frames[k])}",
         ]
+    if result.capture_radius_A is not None:
+        lines.append(f"capture radius for a {result.capture_probe_radius_A:g} Å probe: mean "
+                     f"{result.capture_mean_A:.2f} Å, SD {result.capture_sd_A:.2f} Å")
     closed = result.closed_frames.tolist()
     shown = ", ".join(map(str, closed[:20])) + (" ..." if len(closed) > 20 else "")
     lines.append(f"closed below {result.closed_below_A:g} Å: {len(closed)} of "

@@ -22,7 +22,10 @@ the run from a reference frame, so rows from different workers line up:
 
 Each frame's profile is exactly :func:`poreprobe.radius_profile` on that frame's
 atoms (after the fit, in fixed mode) with ``s_range_A`` set to the common grid.
-Only per-frame numbers are kept, never the frames' coordinates. Summaries
+With ``capture_probe_radius_A``, each frame also gets the capture radius of
+that probe from the probe-size scan (:func:`poreprobe.probes.probe_scan` on the
+same atoms and axis; see that module for the definitions). Only per-frame
+numbers are kept, never the frames' coordinates. Summaries
 (mean, sample SD and percentiles of the radius at each level, the same for the
 minimum radius, and the frames where the pore closes below a threshold) are
 computed once, after the per-frame results of all workers are merged.
@@ -64,6 +67,7 @@ _AGGREGATORS = {
     "min_radius_A": ResultsGroup.ndarray_hstack,
     "min_s_A": ResultsGroup.ndarray_hstack,
     "fit_rmsd_A": ResultsGroup.ndarray_hstack,
+    "capture_radius_A": ResultsGroup.ndarray_hstack,
     "axis_point_A": ResultsGroup.ndarray_vstack,
     "axis_direction": ResultsGroup.ndarray_vstack,
 }
@@ -104,6 +108,14 @@ class PoreProfileAnalysis(AnalysisBase):
         Default: the crystal radius of K+ (Shannon 1976, CN 6; 1.38 Å).
     percentiles : sequence of float
         Percentile levels (0-100) reported per plane and for the minimum radius.
+    capture_probe_radius_A : float, optional
+        Also compute, per frame, the capture radius for a probe of this radius
+        (Å) with the probe-size scan. Costs about one more profile per frame.
+    capture_from_end : {"low", "high"}
+        End of the axis (in s) where probes enter; ``"low"`` is the ``entry``
+        end when ``entry`` is given.
+    capture_spacing_A, capture_pore_radius_A : float
+        Grid spacing of the scan, and the radius around the axis it searches (Å).
     verbose : bool
         MDAnalysis's own progress bar (serial runs only).
 
@@ -117,6 +129,9 @@ class PoreProfileAnalysis(AnalysisBase):
         Profile radius per frame and plane (Å); NaN where the plane is open.
     results.min_radius_A, results.min_s_A : ndarray of shape (n_frames,)
         Narrowest radius and its position per frame (NaN if every plane is open).
+    results.capture_radius_A : ndarray of shape (n_frames,)
+        Capture radius (Å, area-equivalent variant) for ``capture_probe_radius_A``;
+        NaN when not asked for or when the scan finds no enclosed section.
     results.fit_rmsd_A : ndarray of shape (n_frames,)
         RMSD of the alignment atoms after the fit (fixed mode; NaN otherwise).
     results.axis_point_A, results.axis_direction : ndarray of shape (n_frames, 3)
@@ -128,6 +143,9 @@ class PoreProfileAnalysis(AnalysisBase):
         Frames in which each plane is enclosed (not NaN).
     results.min_radius_mean_A, results.min_radius_sd_A : float
     results.min_radius_percentiles_A : ndarray of shape (n_percentiles,)
+    results.capture_mean_A, results.capture_sd_A : float
+    results.capture_percentiles_A : ndarray of shape (n_percentiles,)
+        Statistics of the capture radius over frames (NaN when not asked for).
     results.closed : ndarray of bool, shape (n_frames,)
         Minimum radius below ``closed_below_A``.
     results.closed_frames : ndarray of int
@@ -163,7 +181,10 @@ class PoreProfileAnalysis(AnalysisBase):
                  axis_point_A=None, axis_direction=None,
                  axis_selections: tuple[str, str] | None = None, entry: str | None = None,
                  closed_below_A: float | None = None,
-                 percentiles=DEFAULT_PERCENTILES, verbose: bool = False):
+                 percentiles=DEFAULT_PERCENTILES,
+                 capture_probe_radius_A: float | None = None,
+                 capture_from_end: str = "low", capture_spacing_A: float = 0.5,
+                 capture_pore_radius_A: float = 15.0, verbose: bool = False):
         if not hasattr(atomgroup, "universe") or not hasattr(atomgroup, "positions"):
             raise InputError("atomgroup must be an MDAnalysis AtomGroup, got "
                              f"{type(atomgroup).__name__}")
@@ -184,6 +205,14 @@ class PoreProfileAnalysis(AnalysisBase):
                                else check_positive(closed_below_A, "closed_below_A",
                                                    allow_zero=True))
         self.percentiles = _check_percentiles(percentiles)
+        self.capture_probe_radius_A = (
+            None if capture_probe_radius_A is None
+            else check_positive(capture_probe_radius_A, "capture_probe_radius_A"))
+        self._capture_options = {
+            "from_end": check_choice(capture_from_end, "capture_from_end", ("low", "high")),
+            "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
+            "pore_radius_A": check_positive(capture_pore_radius_A, "capture_pore_radius_A"),
+        }
         self.radius_set = get_radius_set(radii)
         self._axis_options = {"method": axis_method, "point_A": axis_point_A,
                               "direction": axis_direction, "selections": axis_selections,
@@ -288,7 +317,7 @@ class PoreProfileAnalysis(AnalysisBase):
     def _prepare(self):
         n, p = self.n_frames, len(self.s_A)
         self.results.radius_A = np.full((n, p), np.nan)
-        for key in ("min_radius_A", "min_s_A", "fit_rmsd_A"):
+        for key in ("min_radius_A", "min_s_A", "fit_rmsd_A", "capture_radius_A"):
             self.results[key] = np.full(n, np.nan)
         self.results.axis_point_A = np.full((n, 3), np.nan)
         self.results.axis_direction = np.full((n, 3), np.nan)
@@ -309,8 +338,23 @@ class PoreProfileAnalysis(AnalysisBase):
             self.results.radius_A[i] = prof.radius_A
             self.results.min_radius_A[i] = prof.min_radius_A
             self.results.min_s_A[i] = prof.min_s_A
+        if self.capture_probe_radius_A is not None:
+            self.results.capture_radius_A[i] = self._capture_radius_A(atoms, axis)
         if self._frame_bar is not None:
             self._frame_bar.update(1)
+
+    def _capture_radius_A(self, atoms: Atoms, axis: PoreAxis) -> float:
+        """Capture radius of the chosen probe in this frame (NaN if no enclosed section)."""
+        from poreprobe.probes import capture_radius_at, probe_scan
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # per-frame scan notes would repeat every frame
+            try:
+                scan = probe_scan(atoms, axis, probe_radii_A=[self.capture_probe_radius_A],
+                                  radii_A=self._radii_A, **self._capture_options)
+            except PoreNotFoundError:
+                return float("nan")
+        return float(capture_radius_at(scan, self.capture_probe_radius_A))
 
     def _get_aggregator(self) -> ResultsGroup:
         return ResultsGroup(lookup=dict(_AGGREGATORS))
@@ -329,6 +373,12 @@ class PoreProfileAnalysis(AnalysisBase):
             self.results.min_radius_sd_A = float(_nan_sd(min_r[:, None])[0])
             self.results.min_radius_percentiles_A = _nan_percentiles(
                 min_r[:, None], self.percentiles)[:, 0]
+            capture = self.results.capture_radius_A
+            self.results.capture_mean_A = float(np.nanmean(capture)) if len(capture) else \
+                float("nan")
+            self.results.capture_sd_A = float(_nan_sd(capture[:, None])[0])
+            self.results.capture_percentiles_A = _nan_percentiles(
+                capture[:, None], self.percentiles)[:, 0]
         self.results.n_enclosed = np.isfinite(radius).sum(axis=0)
         self.results.closed = np.isfinite(min_r) & (min_r < self.closed_below_A)
         self.results.closed_frames = np.asarray(self.frames)[self.results.closed]
@@ -350,6 +400,11 @@ class PoreProfileAnalysis(AnalysisBase):
             times_ps=np.asarray(self.times, dtype=np.float64),
             s_A=np.asarray(self.s_A), radius_A=np.asarray(r.radius_A),
             min_radius_A=np.asarray(r.min_radius_A), min_s_A=np.asarray(r.min_s_A),
+            capture_radius_A=(np.asarray(r.capture_radius_A)
+                              if self.capture_probe_radius_A is not None else None),
+            capture_mean_A=r.capture_mean_A, capture_sd_A=r.capture_sd_A,
+            capture_percentiles_A=np.asarray(r.capture_percentiles_A),
+            capture_probe_radius_A=self.capture_probe_radius_A,
             fit_rmsd_A=np.asarray(r.fit_rmsd_A), axis_point_A=np.asarray(r.axis_point_A),
             axis_direction=np.asarray(r.axis_direction),
             mean_radius_A=np.asarray(r.mean_radius_A), sd_radius_A=np.asarray(r.sd_radius_A),
@@ -387,6 +442,11 @@ class TrajectoryProfiles:
     radius_A : ndarray of shape (n_frames, n_planes)
         NaN where a plane is open bulk.
     min_radius_A, min_s_A : ndarray of shape (n_frames,)
+    capture_radius_A : ndarray of shape (n_frames,) or None
+        Capture radius per frame for ``capture_probe_radius_A`` (None if not asked for).
+    capture_mean_A, capture_sd_A : float
+    capture_percentiles_A : ndarray of shape (n_percentiles,)
+    capture_probe_radius_A : float or None
     fit_rmsd_A : ndarray of shape (n_frames,)
         RMSD of the alignment atoms after the fit (NaN in per-frame axis mode).
     axis_point_A, axis_direction : ndarray of shape (n_frames, 3)
@@ -413,6 +473,11 @@ class TrajectoryProfiles:
     radius_A: np.ndarray
     min_radius_A: np.ndarray
     min_s_A: np.ndarray
+    capture_radius_A: np.ndarray | None
+    capture_mean_A: float
+    capture_sd_A: float
+    capture_percentiles_A: np.ndarray
+    capture_probe_radius_A: float | None
     fit_rmsd_A: np.ndarray
     axis_point_A: np.ndarray
     axis_direction: np.ndarray
@@ -480,12 +545,20 @@ class TrajectoryProfiles:
                 **{f"{lab}_A": float(v) for lab, v in
                    zip(levels, self.min_radius_percentiles_A, strict=True)},
             },
+            "capture": ({
+                "probe_radius_A": self.capture_probe_radius_A,
+                "mean_A": self.capture_mean_A,
+                "sd_A": self.capture_sd_A,
+                **{f"{lab}_A": float(v) for lab, v in
+                   zip(levels, self.capture_percentiles_A, strict=True)},
+            } if self.capture_probe_radius_A is not None else None),
             "closed_frames": self.closed_frames,
             "per_frame": {
                 "frame": self.frames,
                 "time_ps": self.times_ps,
                 "min_radius_A": self.min_radius_A,
                 "min_s_A": self.min_s_A,
+                "capture_radius_A": self.capture_radius_A,
                 "fit_rmsd_A": self.fit_rmsd_A,
                 "axis_point_A": self.axis_point_A,
                 "axis_direction": self.axis_direction,
@@ -505,13 +578,19 @@ def planes_csv(result: TrajectoryProfiles, path=None) -> str:
 
 
 def frames_csv(result: TrajectoryProfiles, path=None) -> str:
-    """CSV with one row per frame: minimum radius, its position, fit RMSD, closed flag."""
-    header = ["frame", "time_ps", "min_radius_A", "min_s_A", "fit_rmsd_A", "closed"]
+    """CSV with one row per frame: minimum radius, its position, capture radius (if any),
+    fit RMSD, closed flag."""
+    header = ["frame", "time_ps", "min_radius_A", "min_s_A"]
+    if result.capture_radius_A is not None:
+        header.append(f"capture_radius_A_p{result.capture_probe_radius_A:g}")
+    header += ["fit_rmsd_A", "closed"]
     closed = set(result.closed_frames.tolist())
     rows = []
     for k, frame in enumerate(result.frames):
         row = [int(frame), float(result.times_ps[k]), float(result.min_radius_A[k]),
                float(result.min_s_A[k])]
+        if result.capture_radius_A is not None:
+            row.append(float(result.capture_radius_A[k]))
         row += [float(result.fit_rmsd_A[k]), int(int(frame) in closed)]
         rows.append(row)
     return to_csv(header, rows, path, _comments(result, "per-frame values"))

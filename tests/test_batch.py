@@ -97,3 +97,23 @@ def test_expand_paths(models):
 def test_bad_options(models, kwargs, match):
     with pytest.raises(InputError, match=match):
         profile_files([str(models / "model_0.pdb")], **kwargs)
+
+
+def test_capture_radii_per_file_equal_scan(models, tmp_path):
+    from poreprobe.probes import probe_scan
+
+    files = [str(models / "model_0.pdb"), str(models / "missing.pdb")]
+    summary = profile_files(files, step_A=0.5, capture_probe_radii_A=[0.5, 1.0])
+    assert summary.capture_probe_radii_A == (0.5, 1.0)
+    atoms = read_structure(files[0])
+    radii = atom_radii_A(atoms)
+    scan = probe_scan(atoms, find_pore_axis(atoms, radii_A=radii), probe_radii_A=[0.5, 1.0],
+                      radii_A=radii)
+    assert summary.rows[0].capture_radius_A == tuple(scan.capture_radius_A)
+    # closed form: waist free radius 4 - 1.70 Å (Bondi 1964 r_C) minus the probe; the
+    # 0.01 Å covers the scalloped wall and the PDB's 0.001 Å coordinates
+    np.testing.assert_allclose(summary.rows[0].capture_radius_A, [1.8, 1.3], atol=0.01)
+    header = [ln for ln in batch_csv(summary).splitlines() if not ln.startswith("#")][0]
+    assert "capture_radius_A_p0.5,capture_radius_A_p1" in header
+    with pytest.raises(InputError, match="capture_probe_radii_A"):
+        profile_files(files, capture_probe_radii_A=[1.0, 0.5])

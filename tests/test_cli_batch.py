@@ -57,3 +57,20 @@ def test_batch_bad_input_is_one_line(folder, tmp_path, capsys, extra, message):
     err = capsys.readouterr().err
     assert code == 2 and err.startswith("poreprobe: error: ") and message in err
     assert err.count("\n") == 1 and not out.exists()
+
+
+def test_batch_capture_column(folder, tmp_path, capsys):
+    out = tmp_path / "c.csv"
+    code = main(["batch", str(folder / "model_0.pdb"), "--step-A", "0.5",
+                 "--capture-probe-radii-A", "1.0", "--csv", str(out)])
+    assert code == 0
+    rows = [ln.split(",") for ln in out.read_text().splitlines() if not ln.startswith("#")]
+    column = rows[0].index("capture_radius_A_p1")
+    # waist free radius 4 - 1.70 Å (Bondi 1964 r_C) minus the 1 Å probe (geometry)
+    assert float(rows[1][column]) == pytest.approx(1.3, abs=0.01)
+    assert "capture 1.30 Å (probe 1 Å)" in capsys.readouterr().out
+
+
+def test_batch_bad_capture_probes(folder, capsys):
+    code = main(["batch", str(folder / "model_0.pdb"), "--capture-probe-radii-A", "2", "1"])
+    assert code == 2 and "capture_probe_radii_A" in capsys.readouterr().err

@@ -23,7 +23,8 @@ from poreprobe.trajectory import PoreProfileAnalysis, profile_trajectory
 pytestmark = pytest.mark.filterwarnings("ignore:Reader has no dt information",
                                         "ignore:.*gives no time step")
 
-RESULT_KEYS = ("radius_A", "min_radius_A", "min_s_A", "fit_rmsd_A", "axis_point_A",
+RESULT_KEYS = ("radius_A", "min_radius_A", "min_s_A", "fit_rmsd_A", "capture_radius_A",
+               "axis_point_A",
                "axis_direction", "mean_radius_A", "sd_radius_A", "percentile_radius_A",
                "n_enclosed", "closed_frames")
 
@@ -131,11 +132,14 @@ def test_client_backend_needs_unsupported_flag(client, breathing):
 
 
 def test_profile_trajectory_through_scheduler_address(cluster, breathing):
-    serial = profile_trajectory(*breathing, step_A=0.5, stop=6)
-    remote = profile_trajectory(*breathing, step_A=0.5, stop=6, backend="dask",
-                                scheduler=cluster.scheduler_address, n_workers=None)
+    options = {"step_A": 0.5, "stop": 4, "capture_probe_radius_A": 1.0}
+    serial = profile_trajectory(*breathing, **options)
+    remote = profile_trajectory(*breathing, backend="dask", scheduler=cluster.scheduler_address,
+                                n_workers=None, **options)
     np.testing.assert_array_equal(remote.radius_A, serial.radius_A)
-    np.testing.assert_array_equal(remote.frames, np.arange(6))
+    np.testing.assert_array_equal(remote.capture_radius_A, serial.capture_radius_A)
+    assert np.isfinite(serial.capture_radius_A).all()
+    np.testing.assert_array_equal(remote.frames, np.arange(4))
 
 
 def test_batch_same_on_every_backend(client, tmp_path):

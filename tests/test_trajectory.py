@@ -247,3 +247,42 @@ def test_package_exports_trajectory_names_lazily():
     assert poreprobe.profile_trajectory is profile_trajectory
     with pytest.raises(AttributeError, match="no attribute 'no_such_name'"):
         poreprobe.no_such_name  # noqa: B018
+
+
+def test_capture_radius_per_frame_equals_scan_of_that_frame(breathing):
+    from poreprobe.probes import capture_radius_at, probe_scan
+
+    u = universe(*breathing)
+    ana = PoreProfileAnalysis(u.select_atoms("protein"), step_A=0.5,
+                              capture_probe_radius_A=1.0).run(step=2)
+    assert list(ana.frames) == [0, 2, 4, 6, 8, 10]
+    for row, frame in enumerate(ana.frames):
+        u.trajectory[frame]
+        atoms, axis, _, _ = ana.frame_atoms_and_axis()
+        scan = probe_scan(atoms, axis, probe_radii_A=[1.0], radii_A=atom_radii_A(atoms))
+        assert ana.results.capture_radius_A[row] == capture_radius_at(scan, 1.0)
+    # closed form (geometry): the probe passes the waist, whose free radius is
+    # R(t) - r_C (Bondi 1964, Table I), so c = R(t) - r_C - p; 0.01 Å covers the
+    # scalloped wall of 32 atoms per ring
+    waist_A = ring_radii(ana.frames[:, None])[:, RING_Z_A == 0][:, 0]
+    np.testing.assert_allclose(ana.results.capture_radius_A, waist_A - CARBON_A - 1.0,
+                               rtol=0, atol=0.01)
+    summary = ana.summary()
+    assert summary.capture_mean_A == pytest.approx(np.mean(summary.capture_radius_A))
+    assert frames_csv(summary).splitlines()[3].split(",")[4] == "capture_radius_A_p1"
+
+
+def test_no_capture_unless_asked(breathing_fixed):
+    assert np.isnan(breathing_fixed.results.capture_radius_A).all()
+    summary = breathing_fixed.summary()
+    assert summary.capture_radius_A is None and summary.to_dict()["capture"] is None
+
+
+@pytest.mark.parametrize(("kwargs", "match"), [
+    ({"capture_probe_radius_A": 0}, "capture_probe_radius_A must be > 0"),
+    ({"capture_from_end": "middle"}, "capture_from_end must be one of low, high"),
+    ({"capture_spacing_A": -1}, "capture_spacing_A must be > 0"),
+])
+def test_bad_capture_options(breathing, kwargs, match):
+    with pytest.raises(InputError, match=match):
+        PoreProfileAnalysis(universe(*breathing).atoms, **kwargs)
