@@ -9,6 +9,7 @@ __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
 from poreprobe.batch import BatchRow, BatchSummary, profile_files  # noqa: E402
+from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
     SegmentResistance,
@@ -23,8 +24,10 @@ from poreprobe.errors import (  # noqa: E402
     QualityWarning,
 )
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
+from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
 from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
+from poreprobe.quality import QualityReport, check_model  # noqa: E402
 from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
 from poreprobe.reach import ReachField, reach_field  # noqa: E402
 from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
@@ -41,6 +44,8 @@ from poreprobe.structure import (  # noqa: E402
     read_structure,
     select,
 )
+from poreprobe.superpose import superpose  # noqa: E402
+from poreprobe.symmetry import subunit_deviation  # noqa: E402
 
 __all__ = [
     "__version__",
@@ -54,21 +59,27 @@ __all__ = [
     "BatchRow",
     "BatchSummary",
     "capture_radius_at",
+    "check_model",
     "clearance_A",
+    "compare_models",
     "ConductanceEstimate",
     "find_pore_axis",
     "get_radius_set",
     "InputError",
     "make_atoms",
+    "ModelComparison",
     "pore_extent",
+    "pore_lining",
     "pore_segments",
     "profile_files",
     "PoreAxis",
+    "PoreLining",
     "PoreNotFoundError",
     "PoreprobeError",
     "PoreSegment",
     "probe_scan",
     "ProbeScan",
+    "QualityReport",
     "QualityWarning",
     "radius_profile",
     "RADIUS_SETS",
@@ -83,6 +94,8 @@ __all__ = [
     "series_resistance",
     "SideResistanceSplit",
     "split_side_resistances",
+    "subunit_deviation",
+    "superpose",
 ]
 
 #: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.

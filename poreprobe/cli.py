@@ -22,6 +22,8 @@ COMMAND_MODULES = (
     "poreprobe.cli_profile",
     "poreprobe.cli_resistance",
     "poreprobe.cli_scan",
+    "poreprobe.cli_check",
+    "poreprobe.cli_compare",
     "poreprobe.cli_traj",
     "poreprobe.cli_batch",
 )
@@ -64,6 +66,8 @@ def main(argv=None) -> int:
         parser.print_help()
         return 2
     logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
+    # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
+    logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
     with warnings.catch_warnings():
         warnings.showwarning = _show_warning
         if getattr(args, "quiet", False):
