@@ -3,7 +3,10 @@
 Each file is read, its pore axis found and its radius profile computed exactly
 as ``poreprobe profile`` does for one file (same options for every file), and,
 when probe radii are given, the capture radius of each from the probe-size scan
-(:func:`poreprobe.probes.probe_scan`, as ``poreprobe scan`` does). The
+(:func:`poreprobe.probes.probe_scan`, as ``poreprobe scan`` does), and, with
+``check=True``, the number of findings per severity and the permeation verdict
+of the readiness report (:func:`poreprobe.quality.check_model`, as
+``poreprobe check`` gives them with the same reading options). The
 files are mapped one task each onto a backend of :mod:`poreprobe.parallel`
 (serial, a local process pool, or a dask cluster). A file that cannot be read
 or profiled becomes a row with its error; it never stops the batch.
@@ -48,6 +51,11 @@ class BatchRow:
     capture_radius_A : tuple of float
         Capture radius (Å, area-equivalent) for each of the summary's
         ``capture_probe_radii_A``; NaN where the scan failed for this file.
+    findings : tuple of int
+        With ``check``: findings per severity (high, medium, low, info); empty
+        otherwise or when the check failed for this file.
+    verdict : str
+        With ``check``: ``"hydrated"``, ``"dehydrated"`` or ``"closed"`` for the ion.
     warnings : tuple of str
         Warnings raised while reading and profiling this file.
     error : str
@@ -61,6 +69,8 @@ class BatchRow:
     axis_method: str = ""
     min_residues: tuple[str, ...] = ()
     capture_radius_A: tuple[float, ...] = ()
+    findings: tuple[int, ...] = ()
+    verdict: str = ""
     warnings: tuple[str, ...] = ()
     error: str = ""
 
@@ -73,6 +83,9 @@ class BatchRow:
                 "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
                 "axis_method": self.axis_method, "min_residues": list(self.min_residues),
                 "capture_radius_A": list(self.capture_radius_A),
+                "findings": (dict(zip(_severities(), self.findings, strict=True))
+                             if self.findings else None),
+                "verdict": self.verdict or None,
                 "warnings": list(self.warnings), "error": self.error}
 
 
@@ -88,6 +101,8 @@ class BatchSummary:
         Profile options used for every file (Å).
     capture_probe_radii_A : tuple of float
         Probe radii (Å) whose capture radius each row gives (empty: none asked for).
+    check_ion : str or None
+        Ion of the readiness check's verdict (None: no check).
     version : str
     """
 
@@ -97,6 +112,7 @@ class BatchSummary:
     margin_A: float
     max_radius_A: float
     capture_probe_radii_A: tuple[float, ...] = ()
+    check_ion: str | None = None
     version: str = field(default=__version__)
 
     @property
@@ -109,6 +125,7 @@ class BatchSummary:
                 "radius_set": self.radius_set, "step_A": self.step_A,
                 "margin_A": self.margin_A, "max_radius_A": self.max_radius_A,
                 "capture_probe_radii_A": list(self.capture_probe_radii_A),
+                "check_ion": self.check_ion,
                 "n_files": len(self.rows), "n_failed": self.n_failed,
                 "rows": [row.to_dict() for row in self.rows]}
 
@@ -123,6 +140,7 @@ class _FileOptions:
     max_radius_A: float
     capture_probe_radii_A: tuple[float, ...] = ()
     scan: dict = field(default_factory=dict)
+    check_ion: str | None = None
 
 
 def expand_paths(files) -> list[str]:
@@ -174,12 +192,14 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
                                   margin_A=options.margin_A,
                                   max_radius_A=options.max_radius_A)
             capture = _capture_radii_A(atoms, axis, radii_A, options)
+            findings, verdict = _check(path, axis, options)
         except Exception as exc:  # a failed file is reported, never fatal to the batch
             return BatchRow(path=path, error=_error_text(exc),
                             warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
     return BatchRow(path=path, n_atoms=len(atoms), min_radius_A=prof.min_radius_A,
                     min_s_A=prof.min_s_A, axis_method=axis.method,
                     min_residues=prof.min_residues, capture_radius_A=capture,
+                    findings=findings, verdict=verdict,
                     warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
 
 
@@ -198,6 +218,36 @@ def _capture_radii_A(atoms, axis, radii_A, options: _FileOptions) -> tuple[float
     return tuple(float(v) for v in scan.capture_radius_A)
 
 
+def _check(path: str, axis, options: _FileOptions) -> tuple[tuple[int, ...], str]:
+    """Findings per severity and the verdict, as ``poreprobe check`` reports them."""
+    if options.check_ion is None:
+        return (), ""
+    from poreprobe.quality import check_model
+
+    read = options.read
+    kept = {"hetero": read["hetero"], "ion": read["ions"], "water": read["waters"]}
+    walls = ("polymer",) + tuple(kind for kind, keep in kept.items() if keep)
+    try:
+        everything = read_structure(path, **{**read, "hydrogens": True, "waters": True,
+                                              "ions": True, "hetero": True})
+        report = check_model(everything, axis=axis, ion=options.check_ion,
+                             radii=options.radius_set, walls=walls,
+                             hydrogens=read["hydrogens"], step_A=options.step_A,
+                             margin_A=options.margin_A, max_radius_A=options.max_radius_A,
+                             warn=False)
+    except PoreprobeError as exc:
+        warnings.warn(f"check: {exc}", QualityWarning, stacklevel=2)
+        return (), ""
+    counts = report.counts()
+    return tuple(counts[sev] for sev in _severities()), report.verdict.verdict
+
+
+def _severities() -> tuple[str, ...]:
+    from poreprobe.quality import SEVERITIES
+
+    return SEVERITIES
+
+
 def profile_files(files, *, backend="serial", n_workers: int | None = 1,
                   scheduler: str | None = None, quiet: bool = True,
                   radii: str | RadiusSet = DEFAULT_RADIUS_SET, radii_file=None,
@@ -209,7 +259,8 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
                   axis_selections: tuple[str, str] | None = None,
                   entry: str | None = None, capture_probe_radii_A=None,
                   capture_from_end: str = "low", capture_spacing_A: float = 0.5,
-                  capture_pore_radius_A: float = 15.0) -> BatchSummary:
+                  capture_pore_radius_A: float = 15.0, check: bool = False,
+                  ion: str = "K") -> BatchSummary:
     """Profile many structure files and summarise each in one row.
 
     Parameters
@@ -241,6 +292,11 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
     capture_from_end, capture_spacing_A, capture_pore_radius_A
         Scan options (``from_end``, ``spacing_A``, ``pore_radius_A`` of
         :func:`poreprobe.probes.probe_scan`).
+    check : bool
+        Also run the readiness check of each file (about three more profiles per
+        file) and report its findings per severity and permeation verdict.
+    ion : str
+        Ion of the verdict (``"K"``, ``"Na"``, ``"Cl-"``, ...; :data:`poreprobe.ions.IONS`).
 
     Returns
     -------
@@ -267,6 +323,7 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
               "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
               "pore_radius_A": check_positive(capture_pore_radius_A,
                                               "capture_pore_radius_A")},
+        check_ion=_check_ion(ion) if check else None,
     )
     task = partial(profile_file, options=options)
     if isinstance(backend, BackendBase):
@@ -278,7 +335,15 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
     return BatchSummary(rows=tuple(rows), radius_set=options.radius_set.name,
                         step_A=options.step_A, margin_A=options.margin_A,
                         max_radius_A=options.max_radius_A,
-                        capture_probe_radii_A=options.capture_probe_radii_A)
+                        capture_probe_radii_A=options.capture_probe_radii_A,
+                        check_ion=options.check_ion)
+
+
+def _check_ion(ion: str) -> str:
+    from poreprobe.ions import get_ion
+
+    get_ion(ion)  # unknown ions are refused here, not in every file's row
+    return ion
 
 
 def _check_probes(probe_radii_A) -> tuple[float, ...]:
@@ -293,15 +358,25 @@ def _check_probes(probe_radii_A) -> tuple[float, ...]:
 
 
 def batch_csv(summary: BatchSummary, path=None) -> str:
-    """CSV with one row per file: narrowest radius, its position, capture radii, status, error."""
+    """CSV, one row per file: narrowest radius, its position, capture radii, findings, error."""
     probes = summary.capture_probe_radii_A
+    checked = summary.check_ion is not None
+    check_header = ((*(f"findings_{sev}" for sev in _severities()),
+                     f"verdict_{summary.check_ion}") if checked else ())
     header = ("file", "status", "n_atoms", "min_radius_A", "min_s_A",
-              *(f"capture_radius_A_p{p:g}" for p in probes), "axis_method",
+              *(f"capture_radius_A_p{p:g}" for p in probes), *check_header, "axis_method",
               "narrowest_lined_by", "warnings", "error")
+
+    def check_cells(row):
+        if not checked:
+            return ()
+        return (*(row.findings or ("",) * 4), row.verdict)
+
     rows = ((row.path, "ok" if row.ok else "failed", row.n_atoms, float(row.min_radius_A),
              float(row.min_s_A),
              *(row.capture_radius_A if row.ok else (float("nan"),) * len(probes)),
-             row.axis_method, " ".join(row.min_residues[:8]), len(row.warnings), row.error)
+             *check_cells(row), row.axis_method, " ".join(row.min_residues[:8]),
+             len(row.warnings), row.error)
             for row in summary.rows)
     comments = (f"poreprobe {summary.version} batch summary: {len(summary.rows)} files, "
                 f"{summary.n_failed} failed",

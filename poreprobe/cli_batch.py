@@ -14,6 +14,7 @@ from poreprobe.cli_common import (
 )
 from poreprobe.errors import InputError
 from poreprobe.export import to_json
+from poreprobe.ions import IONS
 
 
 def register(sub) -> None:
@@ -35,6 +36,14 @@ def register(sub) -> None:
     g.add_argument("--max-radius-A", type=float, default=20.0,
                    help="planes wider than this (Å) count as open bulk (default 20)")
     add_capture_args(p, several=True)
+    g = p.add_argument_group("readiness check")
+    g.add_argument("--check", action="store_true",
+                   help="also run the readiness check of each file (as 'poreprobe check'; "
+                        "about three more profiles per file) and give its findings per "
+                        "severity and the permeation verdict")
+    g.add_argument("--ion", default="K",
+                   help=f"ion for the verdict with --check: {', '.join(IONS)} (crystal and "
+                        "hydrated radii in Å from Shannon 1976 and Nightingale 1959; default K)")
     add_backend_args(p)
     add_output_args(p)
     p.set_defaults(func=run)
@@ -55,7 +64,7 @@ def run(args) -> int:
         axis_direction=args.axis_direction, axis_selections=args.axis_selections,
         entry=args.entry, capture_probe_radii_A=args.capture_probe_radii_A,
         capture_from_end=args.capture_from_end, capture_spacing_A=args.capture_spacing_A,
-        capture_pore_radius_A=args.capture_pore_radius_A,
+        capture_pore_radius_A=args.capture_pore_radius_A, check=args.check, ion=args.ion,
     )
     if args.json:
         to_json(summary, args.json)
@@ -70,8 +79,10 @@ def run(args) -> int:
             capture = "".join(f", capture {c:.2f} Å (probe {p:g} Å)" for p, c in
                               zip(summary.capture_probe_radii_A, row.capture_radius_A,
                                   strict=True))
+            checked = (f"; {row.findings[0]} high-severity findings, {row.verdict} for "
+                       f"{summary.check_ion}" if row.findings else "")
             say(args, f"  {row.path:<{width}}  min radius {row.min_radius_A:6.2f} Å at "
-                      f"s = {row.min_s_A:6.1f} Å{capture}")
+                      f"s = {row.min_s_A:6.1f} Å{capture}{checked}")
         else:
             say(args, f"  {row.path:<{width}}  FAILED: {row.error}")
     return 1 if summary.n_failed else 0

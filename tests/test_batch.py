@@ -117,3 +117,27 @@ def test_capture_radii_per_file_equal_scan(models, tmp_path):
     assert "capture_radius_A_p0.5,capture_radius_A_p1" in header
     with pytest.raises(InputError, match="capture_probe_radii_A"):
         profile_files(files, capture_probe_radii_A=[1.0, 0.5])
+
+
+def test_check_counts_equal_readiness_report(gramicidin_pdb, models):
+    from poreprobe.quality import SEVERITIES, check_model
+
+    summary = profile_files([gramicidin_pdb, str(models / "missing.pdb")], step_A=0.5,
+                            check=True, ion="Na")
+    row = summary.rows[0]
+    everything = read_structure(gramicidin_pdb, waters=True, ions=True, hetero=True)
+    report = check_model(everything, ion="Na", step_A=0.5, warn=False)
+    assert row.findings == tuple(report.counts()[sev] for sev in SEVERITIES)
+    assert row.verdict == report.verdict.verdict
+    assert row.min_radius_A == report.profile.min_radius_A
+    assert summary.check_ion == "Na" and summary.rows[1].findings == ()
+    header = [ln for ln in batch_csv(summary).splitlines() if not ln.startswith("#")][0]
+    assert "findings_high,findings_medium,findings_low,findings_info,verdict_Na" in header
+    with pytest.raises(InputError, match="unknown ion"):
+        profile_files([gramicidin_pdb], check=True, ion="Xe")
+
+
+def test_no_check_columns_unless_asked(models):
+    summary = profile_files([str(models / "model_0.pdb")], step_A=0.5)
+    assert summary.rows[0].findings == () and summary.check_ion is None
+    assert "findings_" not in batch_csv(summary)

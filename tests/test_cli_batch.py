@@ -74,3 +74,16 @@ def test_batch_capture_column(folder, tmp_path, capsys):
 def test_batch_bad_capture_probes(folder, capsys):
     code = main(["batch", str(folder / "model_0.pdb"), "--capture-probe-radii-A", "2", "1"])
     assert code == 2 and "capture_probe_radii_A" in capsys.readouterr().err
+
+
+def test_batch_check_columns(folder, tmp_path, capsys):
+    out = tmp_path / "checked.csv"
+    code = main(["batch", str(folder / "model_0.pdb"), "--step-A", "0.5", "--check",
+                 "--ion", "Na", "--csv", str(out)])
+    assert code == 0
+    rows = [ln.split(",") for ln in out.read_text().splitlines() if not ln.startswith("#")]
+    verdict = rows[0].index("verdict_Na")
+    # narrowest radius 4 - 1.70 = 2.30 Å (geometry, Bondi 1964 r_C) is between the Na+
+    # crystal radius 1.02 Å (Shannon 1976) and its hydrated radius 3.58 Å (Nightingale 1959)
+    assert rows[1][verdict] == "dehydrated"
+    assert "dehydrated for Na" in capsys.readouterr().out
