@@ -17,7 +17,7 @@ from __future__ import annotations
 import glob
 import os
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import partial
 
 from poreprobe import __version__
@@ -326,12 +326,15 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
         check_ion=_check_ion(ion) if check else None,
     )
     task = partial(profile_file, options=options)
+    # absolute paths for the tasks (workers may run elsewhere); rows keep the names given
+    tasks = [os.path.abspath(p) for p in paths]
     if isinstance(backend, BackendBase):
-        rows = backend.apply(task, paths)
+        rows = backend.apply(task, tasks)
     else:
         with open_backend(backend, n_workers=n_workers,
                           scheduler=scheduler, quiet=quiet, desc="files") as executor:
-            rows = executor.apply(task, paths)
+            rows = executor.apply(task, tasks)
+    rows = [replace(row, path=given) for row, given in zip(rows, paths, strict=True)]
     return BatchSummary(rows=tuple(rows), radius_set=options.radius_set.name,
                         step_A=options.step_A, margin_A=options.margin_A,
                         max_radius_A=options.max_radius_A,

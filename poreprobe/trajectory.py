@@ -244,22 +244,12 @@ class PoreProfileAnalysis(AnalysisBase):
             ref_atoms = self._template
             self.reference_axis = find_pore_axis(ref_atoms, radii_A=self._radii_A,
                                                  **self._axis_options)
-            if s_range_A is None:
-                s_planes = plane_positions_A(self.reference_axis.s_A(ref_atoms.coords_A),
-                                             self.step_A, self.margin_A)
-                # pass a range a quarter step inside the end planes: the profile's
-                # floor/ceil then rebuild exactly these planes on every frame
-                self._s_range_A = (float(s_planes[0]) + 0.25 * self.step_A,
-                                   float(s_planes[-1]) - 0.25 * self.step_A)
-                if len(s_planes) == 1:
-                    self._s_range_A = (float(s_planes[0]) - 0.25 * self.step_A,
-                                       float(s_planes[0]) + 0.25 * self.step_A)
-            else:
-                self._s_range_A = _check_range(s_range_A)
+            self._s_range_A = (_check_range(s_range_A) if s_range_A is not None else
+                               _grid_range_A(self.reference_axis.s_A(ref_atoms.coords_A),
+                                             self.step_A, self.margin_A))
             # the reference frame's profile checks every option once and fixes the grid
             try:
-                ref_prof = self._profile(ref_atoms, self.reference_axis)
-                self.s_A = ref_prof.s_A
+                self.s_A = self._profile(ref_atoms, self.reference_axis).s_A
             except PoreNotFoundError:
                 lo, hi = self._s_range_A
                 self.s_A = np.arange(np.floor(lo / self.step_A),
@@ -618,6 +608,18 @@ def _check_percentiles(percentiles) -> tuple[float, ...]:
     return tuple(check_range(q, "percentiles", 0.0, 100.0) for q in values)
 
 
+def _grid_range_A(s_atoms_A: np.ndarray, step_A: float, margin_A: float) -> tuple[float, float]:
+    """The (low, high) range that makes the profile rebuild the reference grid exactly.
+
+    The reference planes are multiples of the step covering the atoms plus the
+    margin; the range passed on lies a quarter step inside the end planes, so the
+    profile's floor/ceil of range/step lands on the same multiples every frame.
+    """
+    planes = plane_positions_A(s_atoms_A, step_A, margin_A)
+    return float(planes[0]) + 0.25 * step_A, max(float(planes[-1]) - 0.25 * step_A,
+                                                 float(planes[0]) + 0.5 * step_A)
+
+
 def _check_range(s_range_A) -> tuple[float, float]:
     try:
         lo, hi = (float(v) for v in s_range_A)
@@ -725,6 +727,9 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
         trajectory = os.fspath(trajectory)
         if not os.path.isfile(trajectory):
             raise InputError(f"no such file: {trajectory}")
+    # absolute paths: workers of a cluster may run in another working directory
+    topology = os.path.abspath(topology)
+    trajectory = os.path.abspath(trajectory) if trajectory is not None else None
     if n_workers is not None:
         n_workers = check_int(n_workers, "n_workers", minimum=1)
     universe = open_universe(topology, trajectory)

@@ -286,3 +286,15 @@ def test_no_capture_unless_asked(breathing_fixed):
 def test_bad_capture_options(breathing, kwargs, match):
     with pytest.raises(InputError, match=match):
         PoreProfileAnalysis(universe(*breathing).atoms, **kwargs)
+
+
+@pytest.mark.parametrize("step_A", [0.2, 0.3, 0.7])
+def test_grid_is_the_reference_planes_for_any_step(breathing, step_A):
+    from poreprobe.profile import plane_positions_A
+
+    ag = universe(*breathing).select_atoms("protein")
+    ana = PoreProfileAnalysis(ag, step_A=step_A)
+    s_ref = ana.reference_axis.s_A(ag.positions.astype(np.float64))
+    np.testing.assert_array_equal(ana.s_A, plane_positions_A(s_ref, step_A, 2.0))
+    ana.run(stop=2)  # every frame's profile lands on the same planes
+    assert ana.results.radius_A.shape == (2, len(ana.s_A))
