@@ -96,6 +96,18 @@ def cpu_seconds() -> float:
     return own.ru_utime + own.ru_stime + kids.ru_utime + kids.ru_stime
 
 
+def own_cpu_seconds() -> float:
+    """CPU time of the calling process alone (s); run on dask workers with client.run."""
+    import resource
+
+    own = resource.getrusage(resource.RUSAGE_SELF)
+    return own.ru_utime + own.ru_stime
+
+
+def _warm_up() -> None:
+    import poreprobe.trajectory  # noqa: F401  (MDAnalysis analysis machinery)
+
+
 def timed_run(pdb, dcd, step_A, n_frames, **run_kwargs) -> tuple[float, float]:
     """Wall-clock and CPU seconds (this process + pool workers) of one run."""
     from poreprobe.trajectory import PoreProfileAnalysis
@@ -179,19 +191,22 @@ def main() -> None:
                 Client(cluster.scheduler_address) as client:
             client.wait_for_workers(workers)
             startup = time.perf_counter() - t0
-            dask = timed_run(pdb, dcd, args.step_A, n_frames,
-                             backend=DaskClientBackend(client), unsupported_backend=True,
-                             n_parts=2 * workers)[0], float("nan")
+            client.run(_warm_up)  # imports on the workers, once per cluster, not timed
+            workers_cpu0 = sum(client.run(own_cpu_seconds).values())
+            dask_wall, dask_cpu = timed_run(pdb, dcd, args.step_A, n_frames,
+                                            backend=DaskClientBackend(client),
+                                            unsupported_backend=True, n_parts=2 * workers)
+            dask = dask_wall, dask_cpu + sum(client.run(own_cpu_seconds).values()) - workers_cpu0
         print(f"\n{'run':<34} {'wall s':>7} {'frames/s':>9} {'speed-up':>9} {'CPU s':>7}")
         for label, (seconds, cpu) in (("serial", serial),
                                       (f"multiprocessing, {workers} workers", pool),
                                       (f"dask LocalCluster, {workers} workers", dask)):
-            cpu_text = f"{cpu:>7.1f}" if np.isfinite(cpu) else f"{'n/a':>7}"
+            cpu_text = f"{cpu:>7.1f}"
             print(f"{label:<34} {seconds:>7.2f} {n_frames / seconds:>9.2f} "
                   f"{serial[0] / seconds:>8.2f}x {cpu_text}")
-        print(f"(dask cluster start-up, not included: {startup:.1f} s; {n_frames} frames "
-              f"per run, {2 * workers} blocks; CPU s counts this process and the pool's "
-              f"workers, not dask's; load average now {os.getloadavg()[0]:.1f})")
+        print(f"(not included: dask cluster start-up {startup:.1f} s and the workers' first "
+              f"imports; {n_frames} frames per run, {2 * workers} blocks; CPU s: this process "
+              f"plus its workers; load average now {os.getloadavg()[0]:.1f})")
 
         short, long_ = (measure_memory(pdb, dcd, args.step_A, n) for n in args.memory_frames)
         base = measure_memory(pdb, dcd, args.step_A, 0)
