@@ -9,6 +9,12 @@ __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
 from poreprobe.batch import BatchRow, BatchSummary, profile_files  # noqa: E402
+from poreprobe.capture import (  # noqa: E402
+    CaptureRadiusEstimate,
+    capture_radius_from_current_A,
+    diffusion_limited_current_pA,
+    estimate_capture_radius,
+)
 from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
 from poreprobe.conductance import (  # noqa: E402
     ConductanceEstimate,
@@ -23,8 +29,10 @@ from poreprobe.errors import (  # noqa: E402
     PoreprobeError,
     QualityWarning,
 )
+from poreprobe.ions import IONS, Ion, get_ion  # noqa: E402
 from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
 from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
+from poreprobe.match import CaptureMatch, match_capture_radius, match_scan  # noqa: E402
 from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
 from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
 from poreprobe.quality import QualityReport, check_model  # noqa: E402
@@ -46,6 +54,12 @@ from poreprobe.structure import (  # noqa: E402
 )
 from poreprobe.superpose import superpose  # noqa: E402
 from poreprobe.symmetry import subunit_deviation  # noqa: E402
+from poreprobe.viscosity import (  # noqa: E402
+    VISCOGENS,
+    DiffusionEstimate,
+    diffusion_coefficient,
+    water_viscosity_mPa_s,
+)
 
 __all__ = [
     "__version__",
@@ -59,14 +73,26 @@ __all__ = [
     "BatchRow",
     "BatchSummary",
     "capture_radius_at",
+    "capture_radius_from_current_A",
+    "CaptureMatch",
+    "CaptureRadiusEstimate",
     "check_model",
     "clearance_A",
     "compare_models",
     "ConductanceEstimate",
+    "diffusion_coefficient",
+    "diffusion_limited_current_pA",
+    "DiffusionEstimate",
+    "estimate_capture_radius",
     "find_pore_axis",
+    "get_ion",
     "get_radius_set",
     "InputError",
+    "Ion",
+    "IONS",
     "make_atoms",
+    "match_capture_radius",
+    "match_scan",
     "ModelComparison",
     "pore_extent",
     "pore_lining",
@@ -96,6 +122,8 @@ __all__ = [
     "split_side_resistances",
     "subunit_deviation",
     "superpose",
+    "VISCOGENS",
+    "water_viscosity_mPa_s",
 ]
 
 #: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.

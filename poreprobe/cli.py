@@ -22,6 +22,7 @@ COMMAND_MODULES = (
     "poreprobe.cli_profile",
     "poreprobe.cli_resistance",
     "poreprobe.cli_scan",
+    "poreprobe.cli_match",
     "poreprobe.cli_check",
     "poreprobe.cli_compare",
     "poreprobe.cli_traj",
