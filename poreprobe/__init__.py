@@ -8,6 +8,7 @@ estimates; they depend on the radius set and the model's quality.
 __version__ = "0.1.0"
 
 from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
+from poreprobe.batch import BatchRow, BatchSummary, profile_files  # noqa: E402
 from poreprobe.capture import (  # noqa: E402
     CaptureRadiusEstimate,
     capture_radius_from_current_A,
@@ -81,6 +82,8 @@ __all__ = [
     "AtomSpheres",
     "bath_conductivity",
     "BathConductivity",
+    "BatchRow",
+    "BatchSummary",
     "capture_radius_at",
     "capture_radius_from_current_A",
     "CaptureMatch",
@@ -106,6 +109,7 @@ __all__ = [
     "pore_extent",
     "pore_lining",
     "pore_segments",
+    "profile_files",
     "PoreAxis",
     "PoreLining",
     "PoreNotFoundError",
@@ -144,3 +148,19 @@ __all__ = [
     "write_map",
     "write_mesh",
 ]
+
+#: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.
+_LAZY_EXPORTS = {
+    "PoreProfileAnalysis": "poreprobe.trajectory",
+    "TrajectoryProfiles": "poreprobe.trajectory",
+    "profile_trajectory": "poreprobe.trajectory",
+    "DaskClientBackend": "poreprobe.parallel",
+}
+
+
+def __getattr__(name):
+    if name in _LAZY_EXPORTS:
+        import importlib
+
+        return getattr(importlib.import_module(_LAZY_EXPORTS[name]), name)
+    raise AttributeError(f"module 'poreprobe' has no attribute {name!r}")

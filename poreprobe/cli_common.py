@@ -161,6 +161,59 @@ def say(args: argparse.Namespace, text: str = "") -> None:
         sys.stdout.write(text + "\n")
 
 
+def add_backend_args(parser: argparse.ArgumentParser):
+    """--backend, --workers and --scheduler: where the work runs. Returns the option group."""
+    g = parser.add_argument_group("where it runs")
+    g.add_argument("--backend", default="serial", choices=("serial", "multiprocessing", "dask"),
+                   help="serial (default), a local process pool, or dask (a local cluster, "
+                        "or the scheduler given by --scheduler)")
+    g.add_argument("--workers", type=int, default=None, metavar="N",
+                   help="worker processes for local runs (count; default 2, or all the "
+                        "workers of the --scheduler cluster)")
+    g.add_argument("--scheduler", metavar="ADDRESS",
+                   help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
+                        "(implies --backend dask; files must be readable by every worker)")
+    return g
+
+
+def backend_from_args(args: argparse.Namespace) -> tuple[str, int | None]:
+    """The backend name and worker count (None: all workers of the --scheduler cluster)."""
+    backend = "dask" if args.scheduler else args.backend
+    if args.scheduler and args.backend not in ("serial", "dask"):
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--scheduler needs --backend dask, got --backend {args.backend}")
+    workers = args.workers
+    if workers is None and not args.scheduler:
+        workers = 1 if backend == "serial" else 2
+    if workers is not None and workers < 1:
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--workers must be >= 1, got {workers}")
+    return backend, workers
+
+
+def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
+    """Capture-radius options of traj (one probe) and batch (several probes)."""
+    g = parser.add_argument_group("capture radius (probe-size scan)")
+    if several:
+        g.add_argument("--capture-probe-radii-A", type=float, nargs="+", metavar="P",
+                       help="also give the capture radius for these probe radii (Å, "
+                            "increasing)")
+    else:
+        g.add_argument("--capture-probe-radius-A", type=float, metavar="P",
+                       help="also give, per frame, the capture radius for a probe of this "
+                            "radius (Å); costs about one more profile per frame")
+    g.add_argument("--capture-from-end", "--from", dest="capture_from_end",
+                   choices=("low", "high"), default="low",
+                   help="end of the axis (in s) where probes enter; default low, which is "
+                        "the --entry end when --entry is given")
+    g.add_argument("--capture-spacing-A", type=float, default=0.5,
+                   help="grid spacing of the scan in Å (default 0.5)")
+    g.add_argument("--capture-pore-radius-A", type=float, default=15.0,
+                   help="radius in Å around the axis the scan searches (default 15)")
+
+
 def add_figure_size_args(group) -> None:
     """--dpi, --width-mm and --height-mm (shared by ``plot`` and every --figure)."""
     group.add_argument("--dpi", type=float, default=300,

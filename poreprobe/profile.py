@@ -17,11 +17,10 @@ sphere, i.e. the maximum over the plane of the clearance
 * **Open planes.** Where the sphere grows beyond ``max_radius_A`` the plane is
   open to the bulk: its radius and centre are NaN.
 
-The climb is a compass search on all planes at once (8 fixed directions plus
-the ridge directions of the three nearest atoms, step doubled on success and
-halved on failure until 1e-5 Å). Every trial point is evaluated against all
-atoms with the exact KD-tree kernel, so the radius at the returned centre is
-exact and the centre is within ~1e-5 Å of the local maximum.
+The climb runs on all planes at once: a trust-region sequence of small linear
+programs on the clearance of the nearest atoms (:mod:`poreprobe.planemax`),
+each step checked against all atoms with the exact KD-tree kernel, so the
+radius reported at the returned centre is exact.
 """
 
 from __future__ import annotations
@@ -35,11 +34,9 @@ from poreprobe._validate import check_positive
 from poreprobe.axis import PoreAxis
 from poreprobe.errors import InputError, PoreNotFoundError
 from poreprobe.kernel import AtomSpheres
+from poreprobe.planemax import maximise_in_planes
 from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.structure import Atoms
-
-_TOL_A = 1e-5
-_DIRECTIONS = np.stack([np.cos(np.arange(8) * np.pi / 4), np.sin(np.arange(8) * np.pi / 4)], 1)
 
 
 @dataclass(frozen=True)
@@ -131,70 +128,15 @@ def plane_positions_A(s_atoms_A: np.ndarray, step_A: float, margin_A: float) -> 
 
 
 class _PlaneClimber:
-    """Batched compass-search climber on the exact clearance within planes.
-
-    Every trial point is evaluated with the exact KD-tree kernel, so no atom can be
-    missed however far a centre travels.
-    """
+    """Climbs planes to their local clearance maxima (see :mod:`poreprobe.planemax`)."""
 
     def __init__(self, spheres: AtomSpheres, max_radius_A: float):
         self.spheres = spheres  # atoms in the axis frame (u, v, s)
         self.cap = max_radius_A
 
-    def _ridge_directions(self, c: np.ndarray, s: np.ndarray) -> np.ndarray:
-        """Ridge tangents (both signs) and joint ascent directions of the three nearest atoms.
-
-        Along the ridge where two atoms are equally near, both clearances change alike;
-        from a vertex of three, the way up (if any) runs along one of its three ridges.
-        """
-        pts = np.column_stack([c, s])
-        _, near = self.spheres.nearest(pts, k=3)
-        grads = c[:, None, :] - self.spheres.coords_A[near][:, :, :2]
-        grads /= np.maximum(np.linalg.norm(grads, axis=-1, keepdims=True), 1e-12)
-        out = []
-        for i, j in ((0, 1), (0, 2), (1, 2)):
-            ridge = grads[:, i] - grads[:, j]
-            ridge = np.stack([-ridge[:, 1], ridge[:, 0]], 1)
-            ridge /= np.maximum(np.linalg.norm(ridge, axis=1, keepdims=True), 1e-12)
-            up = grads[:, i] + grads[:, j]
-            up /= np.maximum(np.linalg.norm(up, axis=1, keepdims=True), 1e-12)
-            out += [ridge, -ridge, up]
-        return np.stack(out, axis=1)
-
     def solve(self, s: np.ndarray, start: np.ndarray):
         """Climb from ``start`` (P, 2) in the planes ``s`` (P,); returns centres and radii."""
-        c = np.array(start, dtype=np.float64)
-        val = self.spheres.clearance_A(np.column_stack([c, s]))
-        h = np.full(len(s), 0.5)
-        active = val <= self.cap
-        for _ in range(5000):
-            idx = np.flatnonzero(active)
-            if idx.size == 0:
-                break
-            ci = c[idx]
-            dirs = np.concatenate(
-                [
-                    np.broadcast_to(_DIRECTIONS, (len(idx), len(_DIRECTIONS), 2)),
-                    self._ridge_directions(ci, s[idx]),
-                ],
-                axis=1,
-            )
-            trial = ci[:, None, :] + h[idx, None, None] * dirs
-            n_dir = dirs.shape[1]
-            pts = np.concatenate(
-                [trial, np.broadcast_to(s[idx, None, None], (len(idx), n_dir, 1))], axis=2
-            )
-            tv = self.spheres.clearance_A(pts.reshape(-1, 3)).reshape(len(idx), n_dir)
-            best = np.argmax(tv, axis=1)
-            best_val = tv[np.arange(len(idx)), best]
-            improved = best_val > val[idx] + 1e-12
-            moved = idx[improved]
-            c[moved] = trial[improved, best[improved]]
-            val[moved] = best_val[improved]
-            h[moved] = np.minimum(h[moved] * 2.0, 2.0)
-            h[idx[~improved]] *= 0.5
-            active = (h > _TOL_A) & (val <= self.cap)
-        return c, val
+        return maximise_in_planes(self.spheres, s, start, self.cap)
 
 
 def radius_profile(
