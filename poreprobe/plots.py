@@ -64,13 +64,16 @@ OKABE_ITO = {
 #: Order in which lines take colours (yellow is left out: too faint on white).
 LINE_COLORS = tuple(OKABE_ITO[k] for k in ("blue", "vermillion", "bluish_green",
                                            "reddish_purple", "orange", "sky_blue", "black"))
-#: Order in which reference bands take colours.
-BAND_COLORS = tuple(OKABE_ITO[k] for k in ("sky_blue", "reddish_purple", "orange",
-                                           "bluish_green"))
+#: Greys of the reference bands, from the band nearest 0 (darkest: tightest) outwards;
+#: neutral, so they never compete with the data's colours.
+BAND_GREYS = ("#cfcfcf", "#e0e0e0", "#ececec", "#f5f5f5")
+BAND_EDGE_COLOR = "#7f7f7f"
 LINE_STYLES = ("-", "--", "-.", ":", (0, (5, 1, 1, 1, 1, 1)), (0, (1, 1)), (0, (8, 2)))
 #: Perceptual colour map for radii (figures and coloured surfaces).
 RADIUS_CMAP = "cividis"
 OPEN_COLOR = "#d9d9d9"
+#: Open planes on the profile figure are hatched, so they never read as a radius band.
+OPEN_HATCH_COLOR = "#a6a6a6"
 GRID_COLOR = "#e6e6e6"
 
 FIGURE_KINDS = ("profile", "overlay", "probes", "capture", "resistance", "kymograph")
@@ -392,20 +395,20 @@ def _checked_references(ion_radii) -> list[tuple[str, float]]:
 
 
 def _draw_reference_bands(ax, references):
-    """Stacked horizontal bands up to each reference radius, each edged at its radius.
+    """Stacked grey bands up to each reference radius, each edged by a line at its radius.
 
     The bands are stacked from the smallest radius up (0 to the first, the first
-    to the second, ...) so that each colour appears once and matches its legend
-    entry; colours follow the order the user chose the radii in.
+    to the second, ...), darkest nearest 0, so each shade appears once and matches
+    its legend entry.
     """
     lower = 0.0
-    for k in sorted(range(len(references)), key=lambda i: references[i][1]):
+    order = sorted(range(len(references)), key=lambda i: references[i][1])
+    for rank, k in enumerate(order):
         label, value = references[k]
-        color = BAND_COLORS[k % len(BAND_COLORS)]
         if value > lower:
-            ax.axhspan(lower, value, color=color, alpha=0.3, linewidth=0, zorder=0.5,
-                       label=label)
-        ax.axhline(value, color=color, linewidth=0.6, zorder=0.6)
+            ax.axhspan(lower, value, color=BAND_GREYS[min(rank, len(BAND_GREYS) - 1)],
+                       linewidth=0, zorder=0.5, label=label)
+        ax.axhline(value, color=BAND_EDGE_COLOR, linewidth=0.5, zorder=0.6)
         lower = max(lower, value)
 
 
@@ -450,7 +453,8 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
     for i, j in _runs(~np.isfinite(r)):
         lo = s[i] - (s[1] - s[0]) / 2 if len(s) > 1 else s[i]
         hi = s[j] + (s[1] - s[0]) / 2 if len(s) > 1 else s[j]
-        ax.axvspan(lo, hi, color=OPEN_COLOR, alpha=0.5, linewidth=0, zorder=0.4)
+        ax.axvspan(lo, hi, facecolor="none", edgecolor=OPEN_HATCH_COLOR, hatch="//////",
+                   linewidth=0, zorder=0.7)
     line_label = label or (f"pore radius ({data['radius_set']} radii)" if data["radius_set"]
                            else "pore radius")
     ax.plot(s, r, color=LINE_COLORS[0], zorder=3, label=line_label)
@@ -461,7 +465,8 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
     top = np.nanmax(np.concatenate([r, [v for _, v in refs]]))
     ax.set_xlim(s[0], s[-1])
     if np.isfinite(r).any() and (~np.isfinite(r)).any():
-        ax.fill_between([], [], color=OPEN_COLOR, alpha=0.5, label="open to bulk")
+        ax.fill_between([], [], facecolor="none", edgecolor=OPEN_HATCH_COLOR, hatch="//////",
+                        linewidth=0, label="open to bulk")
     ax.set_ylim(0, top * 1.18)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel(RADIUS_LABEL)
@@ -1003,6 +1008,16 @@ def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
 
 # --------------------------------------------------------------------------- kymograph
 
+def _time_axis(time_ps: np.ndarray) -> tuple[np.ndarray, str]:
+    """Times in the unit that suits their span: ps below 1 ns, ns below 1 µs, else µs."""
+    span = float(np.nanmax(time_ps) - np.nanmin(time_ps)) if len(time_ps) else 0.0
+    if span < 1e3:
+        return time_ps, "Time (ps)"
+    if span < 1e6:
+        return time_ps / 1e3, "Time (ns)"
+    return time_ps / 1e6, "Time (µs)"
+
+
 @_styled
 def plot_kymograph(trajectory, *, ax=None, vmin_A: float | None = None,
                    vmax_A: float | None = None, width_mm: float | None = None,
@@ -1027,7 +1042,7 @@ def plot_kymograph(trajectory, *, ax=None, vmin_A: float | None = None,
     ax = _axes(ax, width_mm, height_mm)
     radius = t["radius_A"]
     if t["time_ps"] is not None and len(t["time_ps"]) == radius.shape[0]:
-        x, xlabel = t["time_ps"] / 1000.0, "Time (ns)"
+        x, xlabel = _time_axis(t["time_ps"])
     elif t["frames"] is not None and len(t["frames"]) == radius.shape[0]:
         x, xlabel = t["frames"], "Frame"
     else:

@@ -96,7 +96,7 @@ def trajectory():
                        + 0.1 * rng.standard_normal(len(s)) for f in range(12)])
     radius[:, :2] = np.nan                                   # open at the low end
     return {"s_A": s.tolist(), "n_frames": 12, "source": "trajectory fixture",
-            "per_frame": {"frame": list(range(12)), "time_ps": (np.arange(12) * 50.0).tolist(),
+            "per_frame": {"frame": list(range(12)), "time_ps": (np.arange(12) * 100.0).tolist(),
                           "radius_A": _nulls(radius)}}
 
 
@@ -146,7 +146,7 @@ def test_each_kind_renders_png_and_svg_from_saved_json(kind, saved, tmp_path):
     assert root.tag.endswith("svg")
     ax = plots.draw_figure(kind, [json.loads(saved[n].read_text()) for n in KIND_INPUTS[kind]])
     labels = [lab for lab in (ax.get_xlabel(), ax.get_ylabel()) if lab]
-    assert labels and all(lab.endswith(("(Å)", "(%)", "(ns)")) for lab in labels)
+    assert labels and all(lab.endswith(("(Å)", "(%)", "(ps)", "(ns)", "(µs)")) for lab in labels)
     text = svg.read_text()
     assert all(lab in text for lab in labels)          # text kept as editable text
 
@@ -520,3 +520,29 @@ def test_match_command_figure_shows_the_measured_band(c4_cylinder_pdb, tmp_path)
     curve = next(ln for ln in ax.lines if ln.get_linestyle() == "-"
                  and len(ln.get_xdata()) == len(data["match"]["curve"]["probe_radius_A"]))
     np.testing.assert_allclose(curve.get_ydata(), data["match"]["curve"]["capture_radius_A"])
+
+
+@pytest.mark.parametrize("kind", ["kymograph", "overlay"])
+def test_traj_command_figures_match_its_json(kind, tmp_path):
+    """The real traj JSON (issue 9 layout) drives the kymograph and the mean ± SD overlay."""
+    from _trajectory_data import N_FRAMES, write_trajectory
+
+    pdb, dcd = write_trajectory(tmp_path)
+    js, fig = tmp_path / "traj.json", tmp_path / f"{kind}.png"
+    assert main(["traj", pdb, dcd, "--json", str(js), "--figure", str(fig), "--figure-kind",
+                 kind, "--dpi", "80", "--quiet"]) == 0
+    assert _png_size(fig)[0] == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
+    data = json.loads(js.read_text())
+    radius = np.array(data["per_frame"]["radius_A"], dtype=float)
+    assert radius.shape[0] == N_FRAMES
+    ax = plots.draw_figure(kind, [data])
+    if kind == "kymograph":
+        mesh = ax.collections[0]
+        np.testing.assert_allclose(np.ma.filled(mesh.get_array(), np.nan).reshape(
+            radius.T.shape), radius.T, equal_nan=True)
+        lo, hi = ax.get_ylim()
+        assert lo <= data["s_A"][0] and hi >= data["s_A"][-1]
+    else:
+        mean = np.array(data["per_plane"]["mean_radius_A"], dtype=float)
+        np.testing.assert_allclose(ax.lines[0].get_ydata(), mean, equal_nan=True)
+        assert ax.lines[0].get_label().endswith(f"mean of {N_FRAMES} frames")
