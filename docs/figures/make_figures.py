@@ -42,6 +42,31 @@ def build(folder: str, name: str, gate_A: float) -> str:
     return path
 
 
+def build_breathing(folder: str, n_frames: int = 40) -> tuple[str, str]:
+    """The invented channel with its gate breathing (ring radius 4.3 +- 1 Å), as PDB + DCD."""
+    import warnings
+
+    import MDAnalysis
+
+    z = np.arange(-15.0, 15.1, 1.0)
+    rng = np.random.default_rng(7)
+    frames = []
+    for t in range(n_frames):
+        gate = 4.3 + 1.0 * np.sin(2 * np.pi * t / 25)
+        atoms = synthetic.ring_stack(ring_radii_A(z, gate), z, atoms_per_ring=28, chains=4)
+        frames.append(atoms.coords_A + rng.normal(scale=0.15, size=atoms.coords_A.shape))
+    pdb, dcd = os.path.join(folder, "breathing.pdb"), os.path.join(folder, "breathing.dcd")
+    write_structure(atoms.with_coords(frames[0]), pdb)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        universe = MDAnalysis.Universe(pdb)
+        with MDAnalysis.Writer(dcd, n_atoms=len(atoms), dt=50.0) as out:   # 50 ps per frame
+            for coords in frames:
+                universe.atoms.positions = coords
+                out.write(universe.atoms)
+    return pdb, dcd
+
+
 def run(argv: list[str]) -> None:
     code = main(argv + ["--quiet"])
     if code:
@@ -73,6 +98,10 @@ def main_script() -> None:
         figure("probes", [js["scan"]])
         figure("capture", [js["scan"], js["match"]])
         figure("resistance", [js["resistance"]])
+        pdb, dcd = build_breathing(tmp)
+        traj = os.path.join(tmp, "traj.json")
+        run(["traj", pdb, dcd, *AXIS, "--step-A", "0.25", "--json", traj])
+        figure("kymograph", [traj])
         mesh = os.path.join(tmp, "pore.ply")
         run(["export", channel, *AXIS, "--mesh", mesh, "--probe-radius-A", "1.0",
              "--radius-range-A", "1.5", "8"])
