@@ -108,6 +108,23 @@ def test_map_puts_pore_voxels_inside_the_pore(hourglass, tmp_path):
     np.testing.assert_allclose(at_atoms, -1.7, atol=SPACING_A * np.sqrt(3))
 
 
+@pytest.mark.parametrize("steps", [(3, -2, 5), (-7, 0, 1)])
+def test_map_moves_with_the_model(steps):
+    """Rigid-motion property: moving the model by whole grid steps moves the box by
+    exactly those steps and leaves every value unchanged."""
+    z = np.arange(-6, 6.1, 1.0)
+    atoms = synthetic.ring_stack(4.0 + 3.0 * (z / 6) ** 2, z, atoms_per_ring=16)
+    shift = np.array(steps) * SPACING_A
+    grids = []
+    for offset in (np.zeros(3), shift):
+        moved = atoms.with_coords(atoms.coords_A + offset)
+        axis = poreprobe.PoreAxis(offset, [0.0, 0.0, 1.0], "user")
+        prof = poreprobe.radius_profile(moved, axis, step_A=0.5, margin_A=1.0)
+        grids.append(ve.clearance_grid(moved, prof, spacing_A=SPACING_A))
+    np.testing.assert_array_equal(grids[1].start - grids[0].start, steps)
+    np.testing.assert_allclose(grids[1].values_A, grids[0].values_A, atol=1e-9)
+
+
 def test_map_file_name_and_grid_size_are_checked(hourglass, tmp_path):
     with pytest.raises(InputError, match="map file must end in"):
         ve.write_map(hourglass.grid, tmp_path / "pore.txt")
