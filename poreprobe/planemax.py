@@ -27,7 +27,7 @@ import numpy as np
 
 from poreprobe.kernel import AtomSpheres
 
-_K = 8  # atoms linearised per step
+_K = 6  # atoms linearised per step
 _TRIPLES = np.array(list(itertools.combinations(range(_K + 4), 3)))
 _GAIN_TOL_A = 1e-9
 _MIN_STEP_A = 1e-7
@@ -59,13 +59,15 @@ def _lp_vertices_step(f: np.ndarray, g: np.ndarray, delta: np.ndarray):
     rows[:, k, 0], rows[:, k + 1, 0], rows[:, k + 2, 1], rows[:, k + 3, 1] = 1, -1, 1, -1
     bound = np.concatenate([f, np.repeat(delta[:, None], 4, axis=1)], axis=1)
     triples = _TRIPLES if k == _K else np.array(list(itertools.combinations(range(k + 4), 3)))
-    mats = rows[:, triples]  # (P, T, 3, 3)
+    a, b, c = (rows[:, triples[:, j]] for j in range(3))  # each (P, T, 3)
     rhs = bound[:, triples]  # (P, T, 3)
-    det = np.linalg.det(mats)
+    bc, ca, ab = np.cross(b, c), np.cross(c, a), np.cross(a, b)
+    det = np.einsum("ptj,ptj->pt", a, bc)
     regular = np.abs(det) > 1e-12
-    mats = np.where(regular[..., None, None], mats, np.eye(3))
-    x = np.linalg.solve(mats, rhs[..., None])[..., 0]
-    lhs = np.einsum("ptj,pcj->ptc", x, rows)
+    safe = np.where(regular, det, 1.0)[..., None]
+    # Cramer's rule: the inverse of the matrix with rows a, b, c has columns bc, ca, ab / det
+    x = (rhs[..., 0:1] * bc + rhs[..., 1:2] * ca + rhs[..., 2:3] * ab) / safe
+    lhs = np.matmul(x, rows.transpose(0, 2, 1))  # (P, T, K + 4)
     feasible = regular & np.all(lhs <= bound[:, None, :] + 1e-9, axis=2)
     t = np.where(feasible, x[..., 2], -np.inf)
     best = np.argmax(t, axis=1)
