@@ -155,6 +155,10 @@ class AtomSpheres:
     def nearest(self, points_A, k: int = 3, *, workers: int | None = None):
         """The ``k`` atoms with the smallest clearance for each point, sorted.
 
+        One query for the ``2k`` atoms nearest by centre distance settles almost every
+        point (radii differ by little); points where an atom farther away could still
+        rank among the ``k`` fall back to one query per radius class.
+
         Returns
         -------
         clearance_A : ndarray of shape (m, k)
@@ -163,10 +167,28 @@ class AtomSpheres:
         """
         pts = np.asarray(points_A, dtype=np.float64).reshape(-1, 3)
         workers = _default_workers(len(pts), workers)
+        n = len(self.coords_A)
+        kk = min(2 * k, n)
+        dist, j = self.tree.query(pts, k=kk, workers=workers)
+        dist, j = dist.reshape(len(pts), kk), j.reshape(len(pts), kk)
+        values = dist - self.radii_A[j]
+        order = np.argsort(values, axis=1)[:, :k]
+        rows = np.arange(len(pts))[:, None]
+        values, indices = values[rows, order], j[rows, order]
+        unsure = np.flatnonzero(dist[:, -1] - self.max_radius_A < values[:, -1])
+        if unsure.size and kk < n:
+            values[unsure], indices[unsure] = self._nearest_by_class(pts[unsure], k, workers)
+        if values.shape[1] < k:
+            pad = k - values.shape[1]
+            values = np.concatenate([values, np.repeat(values[:, -1:], pad, axis=1)], axis=1)
+            indices = np.concatenate([indices, np.repeat(indices[:, -1:], pad, axis=1)], axis=1)
+        return values, indices
+
+    def _nearest_by_class(self, pts: np.ndarray, k: int, workers: int):
+        """Exact k smallest clearances from the k nearest atoms of every radius class."""
         values, indices = [], []
-        for radius, idx, tree in zip(
-            self.class_radii_A, self._class_index, self._trees, strict=True
-        ):
+        for radius, idx, tree in zip(self.class_radii_A, self._class_index, self._trees,
+                                     strict=True):
             kk = min(k, len(idx))
             dist, j = tree.query(pts, k=kk, workers=workers)
             dist, j = dist.reshape(len(pts), kk), j.reshape(len(pts), kk)
@@ -176,12 +198,7 @@ class AtomSpheres:
         indices = np.concatenate(indices, axis=1)
         order = np.argsort(values, axis=1)[:, :k]
         rows = np.arange(len(pts))[:, None]
-        values, indices = values[rows, order], indices[rows, order]
-        if values.shape[1] < k:
-            pad = k - values.shape[1]
-            values = np.concatenate([values, np.repeat(values[:, -1:], pad, axis=1)], axis=1)
-            indices = np.concatenate([indices, np.repeat(indices[:, -1:], pad, axis=1)], axis=1)
-        return values, indices
+        return values[rows, order], indices[rows, order]
 
 
 def clearance_A(points_A, coords_A, radii_A, *, return_index: bool = False):

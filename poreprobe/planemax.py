@@ -27,7 +27,7 @@ import numpy as np
 
 from poreprobe.kernel import AtomSpheres
 
-_K = 8  # atoms linearised per step
+_K = 6  # atoms linearised per step
 _TRIPLES = np.array(list(itertools.combinations(range(_K + 4), 3)))
 _GAIN_TOL_A = 1e-9
 _MIN_STEP_A = 1e-7
@@ -59,13 +59,15 @@ def _lp_vertices_step(f: np.ndarray, g: np.ndarray, delta: np.ndarray):
     rows[:, k, 0], rows[:, k + 1, 0], rows[:, k + 2, 1], rows[:, k + 3, 1] = 1, -1, 1, -1
     bound = np.concatenate([f, np.repeat(delta[:, None], 4, axis=1)], axis=1)
     triples = _TRIPLES if k == _K else np.array(list(itertools.combinations(range(k + 4), 3)))
-    mats = rows[:, triples]  # (P, T, 3, 3)
+    a, b, c = (rows[:, triples[:, j]] for j in range(3))  # each (P, T, 3)
     rhs = bound[:, triples]  # (P, T, 3)
-    det = np.linalg.det(mats)
+    bc, ca, ab = np.cross(b, c), np.cross(c, a), np.cross(a, b)
+    det = np.einsum("ptj,ptj->pt", a, bc)
     regular = np.abs(det) > 1e-12
-    mats = np.where(regular[..., None, None], mats, np.eye(3))
-    x = np.linalg.solve(mats, rhs[..., None])[..., 0]
-    lhs = np.einsum("ptj,pcj->ptc", x, rows)
+    safe = np.where(regular, det, 1.0)[..., None]
+    # Cramer's rule: the inverse of the matrix with rows a, b, c has columns bc, ca, ab / det
+    x = (rhs[..., 0:1] * bc + rhs[..., 1:2] * ca + rhs[..., 2:3] * ab) / safe
+    lhs = np.matmul(x, rows.transpose(0, 2, 1))  # (P, T, K + 4)
     feasible = regular & np.all(lhs <= bound[:, None, :] + 1e-9, axis=2)
     t = np.where(feasible, x[..., 2], -np.inf)
     best = np.argmax(t, axis=1)
@@ -109,6 +111,36 @@ def _escape(spheres: AtomSpheres, c: np.ndarray, s: np.ndarray, g: np.ndarray):
     return moved, new_c, new_delta
 
 
+def _linearise(spheres: AtomSpheres, c: np.ndarray, s: np.ndarray, k: int):
+    """Clearances (exact, sorted) of the k nearest atoms at centres c, and their gradients."""
+    f, near = spheres.nearest(np.column_stack([c, s]), k=k)
+    spread = c[:, None, :] - spheres.coords_A[near][:, :, :2]
+    g = spread / np.maximum((f + spheres.radii_A[near])[..., None], 1e-12)
+    return f, g
+
+
+def _strict_vertex(f: np.ndarray, g: np.ndarray, tol_A: float = 1e-6,
+                   margin: float = 0.02) -> np.ndarray:
+    """Whether each centre is a strict local maximum to first order.
+
+    True where the three smallest clearances are equal (within ``tol_A``) and the origin
+    lies well inside the triangle of their gradients (every barycentric weight above
+    ``margin``): then every direction lowers one of them linearly, and no second-order
+    gain can exist nearby.
+    """
+    if f.shape[1] < 3:
+        return np.zeros(len(f), dtype=bool)
+    tied = f[:, 2] - f[:, 0] < tol_A
+    a, b, c = g[:, 0], g[:, 1], g[:, 2]
+    area = (b[:, 0] - a[:, 0]) * (c[:, 1] - a[:, 1]) - (c[:, 0] - a[:, 0]) * (b[:, 1] - a[:, 1])
+    safe = np.where(np.abs(area) > 1e-12, area, 1.0)
+    w_a = (b[:, 0] * c[:, 1] - c[:, 0] * b[:, 1]) / safe
+    w_b = (c[:, 0] * a[:, 1] - a[:, 0] * c[:, 1]) / safe
+    w_c = 1.0 - w_a - w_b
+    inside = (np.abs(area) > 1e-12) & (np.minimum(np.minimum(w_a, w_b), w_c) > margin)
+    return tied & inside
+
+
 def maximise_in_planes(spheres: AtomSpheres, s_A: np.ndarray, start_A: np.ndarray,
                        cap_A: float, *, delta_A: float = 1.0, max_steps: int = 200):
     """Climb to a local maximum of the clearance in each plane.
@@ -138,22 +170,21 @@ def maximise_in_planes(spheres: AtomSpheres, s_A: np.ndarray, start_A: np.ndarra
     c = np.array(start_A, dtype=np.float64)
     delta = np.full(len(s), float(delta_A))
     k = min(_K, len(spheres.coords_A))
+    f, g = _linearise(spheres, c, s, k)
     active = np.ones(len(s), dtype=bool)
     for _ in range(max_steps):
         idx = np.flatnonzero(active)
         if idx.size == 0:
             break
-        ci, si = c[idx], s[idx]
-        f, near = spheres.nearest(np.column_stack([ci, si]), k=k)
-        current = f[:, 0]
-        spread = ci[:, None, :] - spheres.coords_A[near][:, :, :2]
-        g = spread / np.maximum((f + spheres.radii_A[near])[..., None], 1e-12)
-        step, predicted = _lp_vertices_step(f, g, delta[idx])
+        current = f[idx, 0]
+        step, predicted = _lp_vertices_step(f[idx], g[idx], delta[idx])
         gain = predicted - current
-        trial = ci + step
-        actual = spheres.clearance_A(np.column_stack([trial, si])) - current
+        trial = c[idx] + step
+        f_trial, g_trial = _linearise(spheres, trial, s[idx], k)
+        actual = f_trial[:, 0] - current
         accept = actual > 0
-        c[idx[accept]] = trial[accept]
+        moved = idx[accept]
+        c[moved], f[moved], g[moved] = trial[accept], f_trial[accept], g_trial[accept]
         ratio = np.where(gain > 0, actual / np.maximum(gain, 1e-300), 0.0)
         size = np.abs(step).max(axis=1)
         new_delta = delta[idx].copy()
@@ -162,12 +193,15 @@ def maximise_in_planes(spheres: AtomSpheres, s_A: np.ndarray, start_A: np.ndarra
         grow = (ratio > 0.75) & (size >= 0.99 * delta[idx])
         new_delta[grow] = np.minimum(2.0 * delta[idx][grow], 4.0)
         delta[idx] = new_delta
-        reached = current + np.maximum(actual, 0) > cap_A
+        reached = f[idx, 0] > cap_A
         stalled = ((gain < _GAIN_TOL_A) | (delta[idx] < _MIN_STEP_A)) & ~reached
         if stalled.any():
-            rows = idx[stalled]
-            moved, c[rows], delta[rows] = _escape(spheres, c[rows], s[rows], g[stalled])
-            stalled[stalled] = ~moved
+            doubtful = stalled & ~_strict_vertex(f[idx], g[idx])
+            rows = idx[doubtful]
+            if rows.size:
+                moved, c[rows], delta[rows] = _escape(spheres, c[rows], s[rows], g[rows])
+                f[rows[moved]], g[rows[moved]] = _linearise(spheres, c[rows[moved]],
+                                                            s[rows[moved]], k)
+                stalled[np.flatnonzero(doubtful)[moved]] = False
         active[idx[stalled | reached]] = False
-    value = spheres.clearance_A(np.column_stack([c, s]))
-    return c, value
+    return c, f[:, 0].copy()

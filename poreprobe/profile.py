@@ -9,7 +9,8 @@ sphere, i.e. the maximum over the plane of the clearance
 ``min_i (|x - a_i| - r_i)``, restricted to the pore:
 
 * **Continuity.** The centre is the local maximum of the clearance reached by
-  hill-climbing in the plane from the axis point. If that maximum lies more
+  hill-climbing in the plane from the axis point (every fourth plane) or from the
+  straight line between those planes' centres (the planes in between). If that maximum lies more
   than ``1 Å + step`` from the previous plane's centre (a jump into a side
   pocket), or escapes to the bulk while the previous plane is enclosed, the
   climb is repeated from the previous centre, so the centre follows the pore.
@@ -134,9 +135,30 @@ class _PlaneClimber:
         self.spheres = spheres  # atoms in the axis frame (u, v, s)
         self.cap = max_radius_A
 
-    def solve(self, s: np.ndarray, start: np.ndarray):
+    def solve(self, s: np.ndarray, start: np.ndarray, delta_A: float = 1.0):
         """Climb from ``start`` (P, 2) in the planes ``s`` (P,); returns centres and radii."""
-        return maximise_in_planes(self.spheres, s, start, self.cap)
+        return maximise_in_planes(self.spheres, s, start, self.cap, delta_A=delta_A)
+
+    def solve_all(self, s: np.ndarray, every: int = 4):
+        """Climb every plane: every ``every``-th from the axis point, the others warm-started.
+
+        Planes between two enclosed anchor planes start from the straight line between
+        the anchors' centres (with a smaller first step); the rest from the axis point.
+        """
+        centres = np.zeros((len(s), 2))
+        values = np.empty(len(s))
+        anchors = np.unique(np.r_[np.arange(0, len(s), every), len(s) - 1])
+        centres[anchors], values[anchors] = self.solve(s[anchors], centres[anchors])
+        rest = np.setdiff1d(np.arange(len(s)), anchors)
+        if rest.size:
+            right = np.searchsorted(anchors, rest)
+            lo, hi = anchors[right - 1], anchors[right]
+            weight = ((rest - lo) / (hi - lo))[:, None]
+            start = (1 - weight) * centres[lo] + weight * centres[hi]
+            enclosed = (values[lo] <= self.cap) & (values[hi] <= self.cap)
+            start[~enclosed] = 0.0
+            centres[rest], values[rest] = self.solve(s[rest], start, delta_A=0.25)
+        return centres, values
 
 
 def radius_profile(
@@ -228,7 +250,7 @@ def radius_profile(
         raise InputError(f"{len(s_planes)} planes requested; increase step_A")
     spheres_frame = AtomSpheres(frame, radii_A)
     climber = _PlaneClimber(spheres_frame, max_radius_A)
-    centres, values = climber.solve(s_planes, np.zeros((len(s_planes), 2)))
+    centres, values = climber.solve_all(s_planes)
     centres, values = _enforce_continuity(
         s_planes, centres, values, climber, max_radius_A, jump_A=1.0 + step_A
     )
