@@ -302,8 +302,8 @@ def _same_length(name_a, a, name_b, b):
 def profile_arrays(profile) -> dict:
     """s, radius and narrowest-point fields of a profile result or its JSON."""
     d = as_result_dict(profile, "profile")
-    s = _floats(_lookup(d, ["profile.s_A", "s_A"], "profile"), "profile.s_A")
-    r = _floats(_lookup(d, ["profile.radius_A", "radius_A"], "profile"), "profile.radius_A")
+    s = _floats(_lookup(d, ["profile.s_A"], "profile"), "profile.s_A")
+    r = _floats(_lookup(d, ["profile.radius_A"], "profile"), "profile.radius_A")
     _same_length("profile.s_A", s, "profile.radius_A", r)
     if not np.isfinite(r).any():
         raise InputError("profile.radius_A holds no finite radius (every plane open)")
@@ -552,14 +552,14 @@ def _renderer(fig):
 
 # --------------------------------------------------------------------------- overlay
 
-#: Where a trajectory result keeps each array (the traj command's layout first).
+#: Where a trajectory result (the traj command's JSON) keeps each array.
 _TRAJ_KEYS = {
     "s_A": ["s_A"],
-    "radius_A": ["per_frame.radius_A", "radius_A"],
-    "mean_A": ["per_plane.mean_radius_A", "mean_radius_A"],
-    "sd_A": ["per_plane.sd_radius_A", "sd_radius_A"],
-    "time_ps": ["per_frame.time_ps", "time_ps"],
-    "frames": ["per_frame.frame", "frames"],
+    "radius_A": ["per_frame.radius_A"],
+    "mean_A": ["per_plane.mean_radius_A"],
+    "sd_A": ["per_plane.sd_radius_A"],
+    "time_ps": ["per_frame.time_ps"],
+    "frames": ["per_frame.frame"],
 }
 
 
@@ -567,9 +567,9 @@ def trajectory_arrays(trajectory) -> dict:
     """s grid, per-frame radii, mean and SD of a trajectory result or its JSON.
 
     Reads ``s_A``, ``per_frame.radius_A`` (frames x levels), ``per_plane.mean_radius_A``
-    and ``per_plane.sd_radius_A``, ``per_frame.time_ps`` and ``per_frame.frame`` (or
-    the same names at the top level). Mean and SD are computed from the frames when
-    absent (NaN where fewer than two frames are enclosed).
+    and ``per_plane.sd_radius_A``, ``per_frame.time_ps`` and ``per_frame.frame``. Mean
+    and SD are computed from the frames when absent (NaN where fewer than two frames
+    are enclosed).
     """
     d = as_result_dict(trajectory, "trajectory")
     found = {k: _lookup(d, paths, "trajectory", required=k == "s_A")
@@ -721,23 +721,20 @@ def scan_arrays(scan) -> dict:
     curve a match result carries).
     """
     d = as_result_dict(scan, "scan")
-    p = _floats(_lookup(d, ["capture.probe_radius_A", "probe_radius_A"], "scan"),
-                "capture.probe_radius_A")
-    c = _floats(_lookup(d, ["capture.capture_radius_A", "capture_radius_A"], "scan"),
-                "capture.capture_radius_A")
+    p = _floats(_lookup(d, ["capture.probe_radius_A"], "scan"), "capture.probe_radius_A")
+    c = _floats(_lookup(d, ["capture.capture_radius_A"], "scan"), "capture.capture_radius_A")
     _same_length("capture.probe_radius_A", p, "capture.capture_radius_A", c)
-    stop = _lookup(d, ["capture.stop_s_A", "stop_s_A"], "scan", required=False)
+    stop = _lookup(d, ["capture.stop_s_A"], "scan", required=False)
     stop = np.full(p.shape, np.nan) if stop is None else _floats(stop, "capture.stop_s_A")
     _same_length("capture.probe_radius_A", p, "capture.stop_s_A", stop)
     flags = {}
     for name in ("passes", "enters"):
-        value = _lookup(d, [f"capture.{name}", name], "scan", required=False)
+        value = _lookup(d, [f"capture.{name}"], "scan", required=False)
         flags[name] = None if value is None else np.array(value, dtype=bool).reshape(-1)
         if flags[name] is not None:
             _same_length("capture.probe_radius_A", p, f"capture.{name}", flags[name])
-    s = _lookup(d, ["profiles.s_A", "accessible.s_A", "s_A"], "scan", required=False)
-    acc = _lookup(d, ["profiles.accessible_radius_A", "accessible.accessible_radius_A",
-                      "accessible_radius_A"], "scan", required=False)
+    s = _lookup(d, ["profiles.s_A"], "scan", required=False)
+    acc = _lookup(d, ["profiles.accessible_radius_A"], "scan", required=False)
     if s is not None and acc is not None:
         s, acc = _floats(s, "s_A"), _floats(acc, "accessible_radius_A (probes x levels)", 2)
         _same_length("s_A", s, "accessible_radius_A", acc)
@@ -811,23 +808,18 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
 def match_arrays(match) -> dict:
     """Measured capture radius band and matching probe intervals of a match result."""
     d = as_result_dict(match, "match")
-    c = float(_lookup(d, ["capture_radius_A", "measured.capture_radius_A"], "match"))
-    sd = _lookup(d, ["capture_radius_sd_A", "measured.capture_radius_sd_A"], "match",
-                 required=False)
-    best = _lookup(d, ["probe_radius_A_best", "match.probe_radius_A_best"], "match",
-                   required=False)
-    intervals = _lookup(d, ["probe_radius_A_intervals", "match.probe_radius_A_intervals"],
-                        "match", required=False) or []
+    c = float(_lookup(d, ["capture_radius_A"], "match"))
+    sd = _lookup(d, ["capture_radius_sd_A"], "match", required=False)
+    best = _lookup(d, ["probe_radius_A_best"], "match", required=False)
+    intervals = _lookup(d, ["probe_radius_A_intervals"], "match", required=False) or []
     ivals = []
     for iv in intervals:
-        if isinstance(iv, Mapping):
-            iv = (iv.get("low_A", iv.get("lo_A")), iv.get("high_A", iv.get("hi_A")))
         if len(iv) != 2:
             raise InputError(f"probe_radius_A_intervals entries must be [low, high], got {iv!r}")
         ivals.append((float(iv[0]), float(iv[1])))
-    ion = d.get("ion") or _lookup(d, ["match.ion"], "match", required=False) or ""
+    ion = d.get("ion") or ""
     refs = []
-    for item in _lookup(d, ["match.ion_radii", "ion_radii"], "match", required=False) or []:
+    for item in _lookup(d, ["match.ion_radii"], "match", required=False) or []:
         if isinstance(item, Mapping) and item.get("radius_A") is not None:
             kind = str(item.get("kind", ""))
             kind = "Stokes" if kind.lower() == "stokes" else kind
@@ -945,9 +937,7 @@ def resistance_arrays(resistance) -> dict:
     g = _lookup(d, ["conductance_pS"], "resistance", required=False)
     total = _lookup(d, ["total_resistance_Gohm", "resistance_Gohm"], "resistance",
                     required=False)
-    kinds = ["access" if seg.get("kind") == "access" or (
-        "kind" not in seg and "access" in str(seg["name"]).lower()) else "pore"
-        for seg in segments]
+    kinds = ["access" if seg.get("kind") == "access" else "pore" for seg in segments]
     return {"names": names, "resistance_Gohm": r, "share_percent": share, "kinds": kinds,
             "conductance_pS": _float_or_nan(g),
             "total_Gohm": float(r.sum()) if total is None else float(total)}
@@ -1102,18 +1092,16 @@ def _one(items: list, what: str, kind: str):
 
 
 def _constrictions_from_check(check: Mapping) -> list[dict] | None:
+    """The check command's constrictions (s_A, radius_A, residues, prominence_A)."""
     items = check.get("constrictions")
     if not items:
         return None
-    out = []
-    for c in items:
-        residues = c.get("residues") or c.get("lining") or []
-        residues = [r if isinstance(r, str) else
-                    f"{r.get('chain', '')}:{r.get('resname', '')}{r.get('resid', '')}"
-                    for r in residues]
-        out.append({"s_A": c["s_A"], "radius_A": c["radius_A"], "residues": residues,
-                    "prominence_A": c.get("prominence_A")})
-    return out
+    try:
+        return [{"s_A": float(c["s_A"]), "radius_A": float(c["radius_A"]),
+                 "residues": [str(r) for r in c.get("residues") or ()],
+                 "prominence_A": c.get("prominence_A")} for c in items]
+    except (KeyError, TypeError, ValueError) as exc:
+        raise InputError(f"check JSON: every constriction needs s_A and radius_A ({exc})") from exc
 
 
 def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,

@@ -229,8 +229,7 @@ def test_profile_axes_carry_profile_and_ion_bands(profile_a):
 def test_profile_constrictions_from_a_check_result(profile_a):
     check = {"lining": [], "constrictions": [
         {"s_A": -9.0, "radius_A": 3.1, "residues": ["A:LEU12", "B:LEU12"]},
-        {"s_A": 0.0, "radius_A": 2.3, "residues": [{"chain": "A", "resname": "THR",
-                                                     "resid": 75}]}]}
+        {"s_A": 0.0, "radius_A": 2.3, "residues": ["A:THR75"]}]}
     ax = plots.draw_figure("profile", [profile_a, check])
     texts = [t.get_text() for t in ax.texts]
     assert texts == ["2.30 Å\nTHR75", "3.10 Å\nLEU12 ×2"]          # narrowest first
@@ -375,6 +374,7 @@ def test_residue_summary_and_ion_radii():
 
 @pytest.mark.parametrize("bad, message", [
     ({"profile": {"s_A": [0, 1]}}, "none of the keys profile.radius_A"),
+    ({"s_A": [0, 1], "radius_A": [1.0, 2.0]}, "none of the keys profile.s_A"),
     ({"profile": {"s_A": [0, 1], "radius_A": [1.0]}}, "has 2 values but"),
     ({"profile": {"s_A": [0, 1], "radius_A": [None, None]}}, "no finite radius"),
     (["not", "a", "dict"], "must be a poreprobe result"),
