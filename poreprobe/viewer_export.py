@@ -3,12 +3,14 @@
 Three outputs, all in the input model's Cartesian frame (Å), so they overlay the
 model in any viewer without moving anything:
 
-* **Field map** (CCP4/MRC, written with gemmi): the clearance
-  ``min_i (|x - a_i| - r_i)`` on a cubic grid around the pore. A probe of radius p
-  can hold its centre where the clearance is >= p, so the viewer's isosurface at
-  level p is the surface traced by that probe's centre (inside the pore and, within
-  the box, along the protein's outer surface). Grid points sit at integer multiples
-  of the spacing; the box is placed with the header's start indices (words 5-7),
+* **Field map** (CCP4/MRC, written with gemmi) on a cubic grid around the pore:
+  the clearance ``min_i (|x - a_i| - r_i)`` (:func:`clearance_grid`; a probe of
+  radius p can hold its centre where it is >= p, so the isosurface at level p is
+  everywhere that probe's centre fits, including, within the box, along the
+  protein's outer surface), or the reach of a probe-size scan (:func:`reach_grid`;
+  the isosurface at p bounds where probe p gets from the entry). Grid points sit
+  at integer multiples of the spacing; the box is placed with the header's start
+  indices (words 5-7),
   the sampling equals the box size (words 8-10 = words 1-3) and the MRC origin
   (words 50-52) is zero, so readers that use either convention place it alike.
 * **Pore surface** (PLY or OBJ, triangulated by marching cubes from scikit-image):
