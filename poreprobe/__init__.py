@@ -54,6 +54,18 @@ from poreprobe.structure import (  # noqa: E402
 )
 from poreprobe.superpose import superpose  # noqa: E402
 from poreprobe.symmetry import subunit_deviation  # noqa: E402
+from poreprobe.viewer_export import (  # noqa: E402
+    CenterLine,
+    FieldGrid,
+    PoreSurface,
+    center_line,
+    clearance_grid,
+    pore_surface,
+    reach_grid,
+    write_center_line,
+    write_map,
+    write_mesh,
+)
 from poreprobe.viscosity import (  # noqa: E402
     VISCOGENS,
     DiffusionEstimate,
@@ -124,6 +136,17 @@ __all__ = [
     "superpose",
     "VISCOGENS",
     "water_viscosity_mPa_s",
+    # 3-D exports for molecular viewers (figures: import poreprobe.plots)
+    "CenterLine",
+    "FieldGrid",
+    "PoreSurface",
+    "center_line",
+    "clearance_grid",
+    "pore_surface",
+    "reach_grid",
+    "write_center_line",
+    "write_map",
+    "write_mesh",
 ]
 
 #: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.

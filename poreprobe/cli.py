@@ -27,6 +27,8 @@ COMMAND_MODULES = (
     "poreprobe.cli_compare",
     "poreprobe.cli_traj",
     "poreprobe.cli_batch",
+    "poreprobe.cli_plot",
+    "poreprobe.cli_export",
 )
 
 

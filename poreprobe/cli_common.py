@@ -212,3 +212,84 @@ def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
                    help="grid spacing of the scan in Å (default 0.5)")
     g.add_argument("--capture-pore-radius-A", type=float, default=15.0,
                    help="radius in Å around the axis the scan searches (default 15)")
+
+
+def add_figure_size_args(group) -> None:
+    """--dpi, --width-mm and --height-mm (shared by ``plot`` and every --figure)."""
+    group.add_argument("--dpi", type=float, default=300,
+                       help="resolution of PNG output in dots per inch (default 300)")
+    group.add_argument("--width-mm", type=float, default=None,
+                       help="figure width in mm (default 85, one journal column; 114 and "
+                            "174 mm for 1.5 and 2 columns)")
+    group.add_argument("--height-mm", type=float, default=None,
+                       help="figure height in mm (default 62; 78 for the capture figure)")
+
+
+def add_ion_band_args(group) -> None:
+    """--ion and --ion-radii: reference ion radii drawn on profile and capture figures."""
+    group.add_argument("--ion", action="append", metavar="ION",
+                       help="draw this ion's reference radii (K, Na, Li, Rb, Cs, Cl); "
+                            "repeat for several ions")
+    group.add_argument("--ion-radii", default="crystal,hydrated", metavar="KINDS",
+                       help="which radii of --ion, comma-separated: crystal (Shannon 1976), "
+                            "hydrated (Nightingale 1959), stokes (from D); "
+                            "default crystal,hydrated (Å)")
+
+
+def add_figure_args(parser: argparse.ArgumentParser, *, ion_bands: bool = False,
+                    kinds: tuple[str, ...] = ()) -> None:
+    """--figure FILE plus the figure size options, for commands that can draw their result.
+
+    With several ``kinds``, --figure-kind picks one (default the first).
+    """
+    g = parser.add_argument_group("figure")
+    g.add_argument("--figure", metavar="FILE",
+                   help="also draw this command's figure: PNG, SVG or PDF by the suffix")
+    if kinds:
+        g.add_argument("--figure-kind", choices=kinds, default=kinds[0],
+                       help=f"which figure --figure draws (default {kinds[0]})")
+    add_figure_size_args(g)
+    if ion_bands:
+        add_ion_band_args(g)
+
+
+def check_figure_path(args: argparse.Namespace) -> None:
+    """Reject a bad --figure suffix, size or ion before any long computation."""
+    if getattr(args, "figure", None):
+        from poreprobe.plots import check_figure_options
+
+        check_figure_options(args.figure, width_mm=args.width_mm, height_mm=args.height_mm,
+                             dpi=args.dpi)
+        figure_ion_radii(args)
+
+
+def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
+    """Labelled reference radii named by --ion / --ion-radii (empty without them).
+
+    Only for parsers that took :func:`add_ion_band_args`; a command whose own --ion
+    means something else (``match``) has no --ion-radii and gets no bands here.
+    """
+    if not getattr(args, "ion", None) or not hasattr(args, "ion_radii"):
+        return []
+    from poreprobe.plots import ion_reference_radii
+
+    return ion_reference_radii(args.ion, args.ion_radii)
+
+
+def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> None:
+    """Draw figure ``kind`` from results and write it to --figure (if given).
+
+    The results go through their JSON form, so the figure is the one
+    ``poreprobe plot KIND`` draws later from the saved JSON files.
+    """
+    path = getattr(args, "figure", None)
+    if not path:
+        return
+    from poreprobe import plots
+
+    if "ion_radii" not in options:
+        options["ion_radii"] = figure_ion_radii(args)
+    ax = plots.draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm,
+                           **options)
+    plots.save_figure(ax, path, dpi=args.dpi)
+    say(args, f"figure: {path}")

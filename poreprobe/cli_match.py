@@ -17,14 +17,18 @@ from poreprobe.capture import (
 )
 from poreprobe.cli_common import (
     add_axis_args,
+    add_figure_args,
     add_output_args,
     add_structure_args,
+    check_figure_path,
     load_atoms,
     load_axis,
     radius_set_from_args,
+    save_figure,
     say,
 )
 from poreprobe.cli_scan import DEFAULT_PROBES, parse_probe_range
+from poreprobe.errors import InputError
 from poreprobe.export import to_json
 from poreprobe.ions import IONS, get_ion
 from poreprobe.match import match_scan
@@ -106,6 +110,7 @@ def register(sub) -> None:
     u.add_argument("--seed", type=int, default=DEFAULT_SEED, metavar="N",
                    help=f"Monte Carlo seed, integer (default {DEFAULT_SEED})")
     add_output_args(p, csv=False)
+    add_figure_args(p)
     p.set_defaults(func=run)
 
 
@@ -226,9 +231,14 @@ def summary_lines(out: dict) -> list[str]:
 
 
 def run(args) -> int:
+    if args.figure and not args.structure:
+        raise InputError("--figure draws the match against a structure's capture curve: "
+                         "give a STRUCTURE")
+    check_figure_path(args)
     out = compute(args)
     if args.json:
         to_json(out, args.json)
     for line in summary_lines(out):
         say(args, line)
+    save_figure(args, "capture", out)
     return 0

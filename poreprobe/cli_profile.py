@@ -4,11 +4,14 @@ from __future__ import annotations
 
 from poreprobe.cli_common import (
     add_axis_args,
+    add_figure_args,
     add_output_args,
     add_structure_args,
+    check_figure_path,
     load_atoms,
     load_axis,
     radius_set_from_args,
+    save_figure,
     say,
 )
 from poreprobe.export import profile_csv, to_json
@@ -25,7 +28,15 @@ def register(sub) -> None:
     )
     add_structure_args(p)
     add_axis_args(p)
-    g = p.add_argument_group("profile")
+    add_profile_args(p)
+    add_output_args(p)
+    add_figure_args(p, ion_bands=True)
+    p.set_defaults(func=run)
+
+
+def add_profile_args(parser) -> None:
+    """--step-A, --margin-A and --max-radius-A (shared with commands that profile first)."""
+    g = parser.add_argument_group("profile")
     g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
     g.add_argument(
         "--margin-A",
@@ -39,8 +50,6 @@ def register(sub) -> None:
         default=20.0,
         help="planes wider than this (Å) count as open bulk (default 20)",
     )
-    add_output_args(p)
-    p.set_defaults(func=run)
 
 
 def compute(args):
@@ -91,6 +100,7 @@ def _fmt(vec, digits=2):
 
 
 def run(args) -> int:
+    check_figure_path(args)
     atoms, _, prof = compute(args)
     if args.json:
         to_json(prof, args.json)
@@ -98,4 +108,5 @@ def run(args) -> int:
         profile_csv(prof, args.csv)
     for line in summary_lines(atoms, prof):
         say(args, line)
+    save_figure(args, "profile", prof)
     return 0

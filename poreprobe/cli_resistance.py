@@ -12,7 +12,15 @@ import argparse
 import warnings
 
 from poreprobe._validate import check_positive
-from poreprobe.cli_common import add_axis_args, add_output_args, add_structure_args, say
+from poreprobe.cli_common import (
+    add_axis_args,
+    add_figure_args,
+    add_output_args,
+    add_structure_args,
+    check_figure_path,
+    save_figure,
+    say,
+)
 from poreprobe.conductance import ConductanceEstimate, series_resistance
 from poreprobe.electrolyte import CONDUCTIVITY_TABLES
 from poreprobe.errors import InputError, QualityWarning
@@ -166,6 +174,7 @@ def register(sub) -> None:
         help="resistivity factor applied on the far side (dimensionless)",
     )
     add_output_args(p, csv=False)
+    add_figure_args(p)
     p.set_defaults(func=run)
 
 
@@ -290,6 +299,9 @@ def run(args) -> int:
         raise InputError(
             "give a STRUCTURE (forward model) and/or --from-conductances (inverse analysis)"
         )
+    if args.figure and args.structure is None:
+        raise InputError("--figure draws the forward model's breakdown: give a STRUCTURE")
+    check_figure_path(args)
     measured = (
         parse_conductances(args.from_conductances) if args.from_conductances is not None else None
     )
@@ -323,6 +335,8 @@ def run(args) -> int:
     if split is not None:
         for line in inverse_lines(split):
             say(args, line)
+    if est is not None:
+        save_figure(args, "resistance", out)
     return 0
 
 

@@ -9,11 +9,14 @@ import numpy as np
 
 from poreprobe.cli_common import (
     add_axis_args,
+    add_figure_args,
     add_output_args,
     add_structure_args,
+    check_figure_path,
     load_atoms,
     load_axis,
     radius_set_from_args,
+    save_figure,
     say,
 )
 from poreprobe.errors import InputError
@@ -95,6 +98,7 @@ def register(sub) -> None:
         metavar="FILE",
         help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
     )
+    add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
     p.set_defaults(func=run)
 
 
@@ -144,6 +148,7 @@ def _num(value: float, width: int) -> str:
 def run(args) -> int:
     probes = parse_probe_range(args.probes)
     _check_outputs(args.json, args.csv, args.profiles_csv)
+    check_figure_path(args)
     atoms = load_atoms(args)
     rset = radius_set_from_args(args)
     radii_A = atom_radii_A(atoms, rset)
@@ -170,4 +175,5 @@ def run(args) -> int:
         write_atomic(path, text)
     for line in summary_lines(atoms, scan):
         say(args, line)
+    save_figure(args, args.figure_kind, scan)
     return 0

@@ -8,9 +8,12 @@ from poreprobe.cli_common import (
     add_axis_args,
     add_backend_args,
     add_capture_args,
+    add_figure_args,
     add_output_args,
     backend_from_args,
+    check_figure_path,
     radius_set_from_args,
+    save_figure,
     say,
 )
 from poreprobe.export import to_json
@@ -87,11 +90,13 @@ def register(sub) -> None:
         "--frames-csv", metavar="FILE",
         help="write one row per frame (narrowest radius, its position, capture radius, "
              "closed flag) as CSV")
+    add_figure_args(p, ion_bands=True, kinds=("kymograph", "overlay"))
     p.set_defaults(func=run)
 
 
 def run(args) -> int:
     backend, workers = backend_from_args(args)
+    check_figure_path(args)
     result = profile_trajectory(
         args.topology, args.trajectory, select=args.select, start=args.start, stop=args.stop,
         step=args.step, backend=backend, n_workers=workers, scheduler=args.scheduler,
@@ -115,6 +120,7 @@ def run(args) -> int:
         frames_csv(result, args.frames_csv)
     for line in summary_lines(result, backend):
         say(args, line)
+    save_figure(args, args.figure_kind, result)
     return 0
 
 
