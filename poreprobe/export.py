@@ -35,6 +35,12 @@ def _jsonable(obj):
     return obj
 
 
+def _current_umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def write_atomic(path, text: str | bytes) -> None:
     """Write ``text`` to ``path`` through a temporary file and a rename."""
     path = os.fspath(path)
@@ -43,6 +49,7 @@ def write_atomic(path, text: str | bytes) -> None:
         raise InputError(f"cannot write {path}: folder {folder} does not exist")
     mode = "wb" if isinstance(text, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".poreprobe-", dir=folder)
+    os.chmod(tmp, 0o666 & ~_current_umask())  # mkstemp makes 0600; give the usual mode
     try:
         with os.fdopen(
             fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})

@@ -87,3 +87,11 @@ def test_missing_output_folder(c4_cylinder_pdb, tmp_path, capsys):
 def test_help_lists_commands(capsys):
     assert main(["--help"]) == 0
     assert "profile" in capsys.readouterr().out
+
+
+def test_outputs_get_the_usual_file_mode(c4_cylinder_pdb, tmp_path):
+    out = tmp_path / "p.json"
+    assert main(["profile", c4_cylinder_pdb, "--json", str(out), "--quiet"]) == 0
+    mask = os.umask(0)
+    os.umask(mask)
+    assert (out.stat().st_mode & 0o777) == (0o666 & ~mask)
