@@ -8,6 +8,7 @@ from poreprobe.cli_common import (
     add_backend_args,
     add_capture_args,
     add_output_args,
+    add_profile_args,
     add_structure_args,
     backend_from_args,
     say,
@@ -29,12 +30,7 @@ def register(sub) -> None:
                    help="structure files or quoted glob patterns, e.g. 'models/*.cif'")
     add_structure_args(p, positional=False)
     add_axis_args(p)
-    g = p.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument("--margin-A", type=float, default=2.0,
-                   help="extension beyond the protein along the axis, Å (default 2)")
-    g.add_argument("--max-radius-A", type=float, default=20.0,
-                   help="planes wider than this (Å) count as open bulk (default 20)")
+    add_profile_args(p)
     add_capture_args(p, several=True)
     g = p.add_argument_group("readiness check")
     g.add_argument("--check", action="store_true",

@@ -8,6 +8,7 @@ from poreprobe.clashes import CLASH_FRACTION
 from poreprobe.cli_common import (
     add_axis_args,
     add_output_args,
+    add_profile_args,
     add_structure_args,
     load_axis,
     radius_set_from_args,
@@ -26,14 +27,9 @@ from poreprobe.radii import atom_radii_A
 from poreprobe.structure import read_structure
 
 
-def add_profile_args(parser) -> None:
-    """--step-A, --margin-A, --max-radius-A (shared with ``compare``)."""
-    g = parser.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument("--margin-A", type=float, default=2.0,
-                   help="extension beyond the protein along the axis, Å (default 2)")
-    g.add_argument("--max-radius-A", type=float, default=20.0,
-                   help="planes wider than this (Å) count as open bulk (default 20)")
+def add_lining_profile_args(parser) -> None:
+    """The shared profile options plus --constriction-radius-A (also used by ``compare``)."""
+    g = add_profile_args(parser)
     g.add_argument("--constriction-radius-A", type=float, default=CONSTRICTION_RADIUS_A,
                    help="local minima of the radius at or below this (Å) are constrictions "
                         f"(default {CONSTRICTION_RADIUS_A:g})")
@@ -50,7 +46,7 @@ def register(sub) -> None:
                     "Model-based estimates, not measurements.")
     add_structure_args(p)
     add_axis_args(p)
-    add_profile_args(p)
+    add_lining_profile_args(p)
     g = p.add_argument_group("checks")
     g.add_argument("--ion", default="K",
                    help=f"ion for the permeation verdict: {', '.join(IONS)} (crystal and "

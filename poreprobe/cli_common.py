@@ -108,6 +108,18 @@ def add_axis_args(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def add_profile_args(parser: argparse.ArgumentParser, *, step_A: float = 0.2):
+    """--step-A, --margin-A and --max-radius-A; returns the argument group for more."""
+    g = parser.add_argument_group("profile")
+    g.add_argument("--step-A", type=float, default=step_A,
+                   help=f"plane spacing in Å (default {step_A:g})")
+    g.add_argument("--margin-A", type=float, default=2.0,
+                   help="extension beyond the protein along the axis, Å (default 2)")
+    g.add_argument("--max-radius-A", type=float, default=20.0,
+                   help="planes wider than this (Å) count as open bulk (default 20)")
+    return g
+
+
 def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> None:
     """--json, --csv and --quiet."""
     g = parser.add_argument_group("output")

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from poreprobe.cli_check import add_profile_args
+from poreprobe.cli_check import add_lining_profile_args
 from poreprobe.cli_common import (
     add_axis_args,
     add_output_args,
@@ -32,7 +32,7 @@ def register(sub) -> None:
                         "first is the reference")
     add_structure_args(p, positional=False)
     add_axis_args(p)
-    add_profile_args(p)
+    add_lining_profile_args(p)
     g = p.add_argument_group("comparison")
     g.add_argument("--reference", metavar="SEL",
                    help="MDAnalysis selection of the atoms to superpose on (e.g. a part that "

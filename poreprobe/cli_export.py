@@ -5,8 +5,13 @@ from __future__ import annotations
 from dataclasses import replace
 
 from poreprobe._validate import check_positive, check_range
-from poreprobe.cli_common import add_axis_args, add_structure_args, radius_set_from_args, say
-from poreprobe.cli_profile import add_profile_args
+from poreprobe.cli_common import (
+    add_axis_args,
+    add_profile_args,
+    add_structure_args,
+    radius_set_from_args,
+    say,
+)
 from poreprobe.cli_profile import compute as compute_profile
 from poreprobe.errors import InputError
 from poreprobe.radii import atom_radii_A

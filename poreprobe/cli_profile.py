@@ -6,6 +6,7 @@ from poreprobe.cli_common import (
     add_axis_args,
     add_figure_args,
     add_output_args,
+    add_profile_args,
     add_structure_args,
     check_figure_path,
     load_atoms,
@@ -32,24 +33,6 @@ def register(sub) -> None:
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
     p.set_defaults(func=run)
-
-
-def add_profile_args(parser) -> None:
-    """--step-A, --margin-A and --max-radius-A (shared with commands that profile first)."""
-    g = parser.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument(
-        "--margin-A",
-        type=float,
-        default=2.0,
-        help="extension beyond the protein along the axis, Å (default 2)",
-    )
-    g.add_argument(
-        "--max-radius-A",
-        type=float,
-        default=20.0,
-        help="planes wider than this (Å) count as open bulk (default 20)",
-    )
 
 
 def compute(args):

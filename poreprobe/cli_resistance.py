@@ -16,6 +16,7 @@ from poreprobe.cli_common import (
     add_axis_args,
     add_figure_args,
     add_output_args,
+    add_profile_args,
     add_structure_args,
     check_figure_path,
     save_figure,
@@ -49,20 +50,7 @@ def register(sub) -> None:
     )
     add_structure_args(p, positional=False)
     add_axis_args(p)
-    g = p.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument(
-        "--margin-A",
-        type=float,
-        default=2.0,
-        help="extension beyond the protein along the axis, Å (default 2)",
-    )
-    g.add_argument(
-        "--max-radius-A",
-        type=float,
-        default=20.0,
-        help="planes wider than this (Å) count as open bulk (default 20)",
-    )
+    add_profile_args(p)
     g = p.add_argument_group("segments")
     g.add_argument(
         "--segments",

@@ -70,6 +70,19 @@ _PLANAR[:, :, 1] = ndimage.generate_binary_structure(2, 1)
 _CROSS2 = ndimage.generate_binary_structure(2, 1)
 
 
+#: The per-probe columns of a scan (fields of ProbeScan, columns of its CSV).
+_PER_PROBE = (
+    "probe_radius_A",
+    "capture_radius_A",
+    "capture_radius_inscribed_A",
+    "open_radius_A",
+    "open_radius_inscribed_A",
+    "stop_s_A",
+    "passes",
+    "enters",
+)
+
+
 @dataclass(frozen=True)
 class ProbeScan:
     """Result of a probe-size scan.
@@ -131,19 +144,7 @@ class ProbeScan:
     source: str = ""
     version: str = field(default=__version__)
 
-    _ARRAYS = (
-        "probe_radius_A",
-        "capture_radius_A",
-        "capture_radius_inscribed_A",
-        "open_radius_A",
-        "open_radius_inscribed_A",
-        "stop_s_A",
-        "passes",
-        "enters",
-        "s_A",
-        "accessible_radius_A",
-        "accessible_radius_inscribed_A",
-    )
+    _ARRAYS = (*_PER_PROBE, "s_A", "accessible_radius_A", "accessible_radius_inscribed_A")
 
     def __post_init__(self):
         for name in self._ARRAYS:
@@ -394,16 +395,7 @@ def scan_csv(scan: ProbeScan, path=None) -> str:
         f"capture radius = R_open - probe radius ({scan.capture_definition} default)",
         f"entry: {scan.entry} end of the axis; grid spacing {scan.spacing_A:g} Å",
     )
-    header = (
-        "probe_radius_A",
-        "capture_radius_A",
-        "capture_radius_inscribed_A",
-        "open_radius_A",
-        "open_radius_inscribed_A",
-        "stop_s_A",
-        "passes",
-        "enters",
-    )
+    header = _PER_PROBE
     return to_csv(header, rows, path, comments)
 
 

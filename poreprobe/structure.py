@@ -472,16 +472,20 @@ def select(atoms: Atoms, selection: str) -> Atoms:
 
 def select_indices(atoms: Atoms, selection: str) -> np.ndarray:
     """Indices of the atoms matched by an MDAnalysis selection string."""
+    return np.asarray(select_in_universe(_as_universe(atoms), selection).indices)
+
+
+def select_in_universe(universe, selection: str):
+    """``universe.select_atoms(selection)``, with one clear error for bad or empty selections."""
     if not isinstance(selection, str) or not selection.strip():
         raise InputError(f"selection must be a non-empty string, got {selection!r}")
-    universe = _as_universe(atoms)
     try:
         group = universe.select_atoms(selection)
     except Exception as exc:  # MDAnalysis raises SelectionError, ValueError, ...
         raise InputError(f"bad selection {selection!r}: {exc}") from exc
     if len(group) == 0:
         raise InputError(f"selection {selection!r} matches no atoms")
-    return np.asarray(group.indices)
+    return group
 
 
 def _as_universe(atoms: Atoms):

@@ -50,7 +50,7 @@ from poreprobe.export import to_csv
 from poreprobe.ions import get_ion
 from poreprobe.profile import plane_positions_A, radius_profile
 from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
-from poreprobe.structure import Atoms, atoms_from_atomgroup
+from poreprobe.structure import Atoms, atoms_from_atomgroup, select_in_universe
 
 AXIS_MODES = ("fixed", "per-frame")
 DEFAULT_PERCENTILES = (5.0, 25.0, 50.0, 75.0, 95.0)
@@ -235,7 +235,7 @@ class PoreProfileAnalysis(AnalysisBase):
             self._align = None
             if self.axis_mode == "fixed":
                 self._align = (atomgroup if align_selection is None
-                               else _select(atomgroup.universe, align_selection))
+                               else select_in_universe(atomgroup.universe, align_selection))
                 if len(self._align) < 3:
                     raise InputError("align_selection must match at least 3 atoms, got "
                                      f"{len(self._align)}")
@@ -649,18 +649,6 @@ def _nan_percentiles(values: np.ndarray, levels) -> np.ndarray:
         return np.nanpercentile(values, levels, axis=0).reshape(len(levels), values.shape[1])
 
 
-def _select(universe, selection: str):
-    if not isinstance(selection, str) or not selection.strip():
-        raise InputError(f"selection must be a non-empty string, got {selection!r}")
-    try:
-        group = universe.select_atoms(selection)
-    except Exception as exc:  # MDAnalysis raises SelectionError, ValueError, ...
-        raise InputError(f"bad selection {selection!r}: {exc}") from exc
-    if len(group) == 0:
-        raise InputError(f"selection {selection!r} matches no atoms")
-    return group
-
-
 _NO_DT_MESSAGE = "Reader has no dt information"
 
 
@@ -750,7 +738,7 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
     if len(frames) == 0:
         raise InputError(f"no frames selected (start={start}, stop={stop}, step={step}, "
                          f"{len(traj)} frames in the trajectory)")
-    atomgroup = _select(universe, select)
+    atomgroup = select_in_universe(universe, select)
     analysis = PoreProfileAnalysis(atomgroup, **options)
     if isinstance(backend, BackendBase):
         context = contextlib.nullcontext(backend)
