@@ -19,16 +19,17 @@ from poreprobe.errors import PoreprobeError
 
 #: Command modules, in the order ``poreprobe --help`` lists them.
 COMMAND_MODULES = (
+    "poreprobe.cli_demo",
     "poreprobe.cli_profile",
-    "poreprobe.cli_resistance",
     "poreprobe.cli_scan",
     "poreprobe.cli_match",
+    "poreprobe.cli_resistance",
     "poreprobe.cli_check",
     "poreprobe.cli_compare",
-    "poreprobe.cli_traj",
-    "poreprobe.cli_batch",
     "poreprobe.cli_plot",
     "poreprobe.cli_export",
+    "poreprobe.cli_traj",
+    "poreprobe.cli_batch",
 )
 
 
