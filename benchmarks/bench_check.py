@@ -42,7 +42,9 @@ def with_waters(atoms, n_waters, seed=0):
         resid=np.r_[atoms.resid, np.arange(n_waters) + 1000],
         chain=np.r_[atoms.chain, ["W"] * n_waters],
         b_factor=np.r_[atoms.b_factor, np.full(n_waters, 30.0)],
-        kind=np.r_[atoms.kind, ["water"] * n_waters], source=f"{n} + {n_waters} waters")
+        kind=np.r_[atoms.kind, ["water"] * n_waters],
+        source=f"{n} + {n_waters} waters",
+    )
 
 
 def slab(spacing_A=2.6, r_in_A=6.0, r_out_A=40.0, half_A=30.0):
@@ -62,20 +64,28 @@ def slab(spacing_A=2.6, r_in_A=6.0, r_out_A=40.0, half_A=30.0):
     xyz = np.vstack(rows)
     order = np.lexsort((np.arange(len(xyz)), np.array(resid), np.array(chain)))
     elem = np.array(["N" if x == "N" else "O" if x == "O" else "C" for x in names])
-    return make_atoms(xyz[order], element=elem[order], name=np.array(names)[order],
-                      resname=["GLY"] * len(xyz), resid=np.array(resid)[order],
-                      chain=np.array(chain)[order], b_factor=np.full(len(xyz), 30.0),
-                      source="lattice slab")
+    return make_atoms(
+        xyz[order],
+        element=elem[order],
+        name=np.array(names)[order],
+        resname=["GLY"] * len(xyz),
+        resid=np.array(resid)[order],
+        chain=np.array(chain)[order],
+        b_factor=np.full(len(xyz), 30.0),
+        source="lattice slab",
+    )
 
 
 def main():
     tetramer = build_channel()
     with_h = build_channel(hydrogens=True)
     big = slab()
-    cases = [("helix tetramer, heavy atoms", tetramer),
-             ("helix tetramer, with hydrogens", with_h),
-             ("helix tetramer + 30000 waters", with_waters(tetramer, 30000)),
-             ("lattice slab, 4 chains", big)]
+    cases = [
+        ("helix tetramer, heavy atoms", tetramer),
+        ("helix tetramer, with hydrogens", with_h),
+        ("helix tetramer + 30000 waters", with_waters(tetramer, 30000)),
+        ("lattice slab, 4 chains", big),
+    ]
     print("check_model (profile x 5 incl. sensitivity, lining, all checks):")
     for label, atoms in cases:
         seconds = best_of(lambda a=atoms: check_model(a, warn=False))

@@ -79,8 +79,9 @@ def frame_costs(pdb, dcd, step_A, repeat=3):
         universe.trajectory[frame + 1]
         atoms, axis, _, _ = ana.frame_atoms_and_axis()
         t1 = time.perf_counter()
-        radius_profile(atoms, axis, radii_A=ana._radii_A, step_A=step_A,
-                       s_range_A=(ana.s_A[0], ana.s_A[-1]))
+        radius_profile(
+            atoms, axis, radii_A=ana._radii_A, step_A=step_A, s_range_A=(ana.s_A[0], ana.s_A[-1])
+        )
         t2 = time.perf_counter()
         read_fit.append(t1 - t0)
         prof.append(t2 - t1)
@@ -142,8 +143,21 @@ def memory_child(pdb: str, dcd: str, step_A: float, n_frames: int) -> None:
 
 def measure_memory(pdb, dcd, step_A, n_frames) -> dict:
     out = subprocess.run(
-        [sys.executable, __file__, "--memory-child", str(n_frames), "--step-A", str(step_A),
-         "--files", pdb, dcd], check=True, capture_output=True, text=True)
+        [
+            sys.executable,
+            __file__,
+            "--memory-child",
+            str(n_frames),
+            "--step-A",
+            str(step_A),
+            "--files",
+            pdb,
+            dcd,
+        ],
+        check=True,
+        capture_output=True,
+        text=True,
+    )
     return json.loads(out.stdout.strip().splitlines()[-1])
 
 
@@ -152,8 +166,13 @@ def main() -> None:
     parser.add_argument("--frames", type=int, default=24, help="frames per timed run")
     parser.add_argument("--workers", type=int, default=2, help="workers of parallel runs")
     parser.add_argument("--step-A", type=float, default=0.25, help="plane spacing (Å)")
-    parser.add_argument("--memory-frames", type=int, nargs=2, default=(8, 40),
-                        help="lengths of the two memory runs (frames)")
+    parser.add_argument(
+        "--memory-frames",
+        type=int,
+        nargs=2,
+        default=(8, 40),
+        help="lengths of the two memory runs (frames)",
+    )
     parser.add_argument("--memory-child", type=int, default=None, help=argparse.SUPPRESS)
     parser.add_argument("--files", nargs=2, default=None, help=argparse.SUPPRESS)
     args = parser.parse_args()
@@ -166,63 +185,103 @@ def main() -> None:
 
     n_frames, workers = args.frames, args.workers
     load = os.getloadavg()[0]
-    print(f"poreprobe {poreprobe.__version__}; {os.cpu_count()} cores; load average "
-          f"{load:.1f} at start (shared machine: timings are noisy)")
+    print(
+        f"poreprobe {poreprobe.__version__}; {os.cpu_count()} cores; load average "
+        f"{load:.1f} at start (shared machine: timings are noisy)"
+    )
     with tempfile.TemporaryDirectory() as tmp:
         t0 = time.perf_counter()
         pdb, dcd = write_trajectory(tmp, max(n_frames, *args.memory_frames) + 4)
-        print(f"invented pore region: {N_ATOMS} atoms, {LENGTH_A:g} Å long; trajectory "
-              f"written in {time.perf_counter() - t0:.1f} s")
+        print(
+            f"invented pore region: {N_ATOMS} atoms, {LENGTH_A:g} Å long; trajectory "
+            f"written in {time.perf_counter() - t0:.1f} s"
+        )
 
         read_fit, prof, n_planes = frame_costs(pdb, dcd, args.step_A)
-        print(f"\none frame at {args.step_A:g} Å ({n_planes} planes): read + fit "
-              f"{1e3 * read_fit:.1f} ms, radius profile {1e3 * prof:.0f} ms "
-              f"-> at most {1 / (read_fit + prof):.1f} frames/s serial")
+        print(
+            f"\none frame at {args.step_A:g} Å ({n_planes} planes): read + fit "
+            f"{1e3 * read_fit:.1f} ms, radius profile {1e3 * prof:.0f} ms "
+            f"-> at most {1 / (read_fit + prof):.1f} frames/s serial"
+        )
 
         serial = timed_run(pdb, dcd, args.step_A, n_frames)
-        pool = timed_run(pdb, dcd, args.step_A, n_frames, backend="multiprocessing",
-                         n_workers=workers, n_parts=2 * workers)
+        pool = timed_run(
+            pdb,
+            dcd,
+            args.step_A,
+            n_frames,
+            backend="multiprocessing",
+            n_workers=workers,
+            n_parts=2 * workers,
+        )
         from distributed import Client, LocalCluster
 
         t0 = time.perf_counter()
-        with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
-                          dashboard_address=None, scheduler_kwargs={"dashboard": False},
-                          silence_logs=logging.ERROR) as cluster, \
-                Client(cluster.scheduler_address) as client:
+        with (
+            LocalCluster(
+                n_workers=workers,
+                threads_per_worker=1,
+                processes=True,
+                dashboard_address=None,
+                scheduler_kwargs={"dashboard": False},
+                silence_logs=logging.ERROR,
+            ) as cluster,
+            Client(cluster.scheduler_address) as client,
+        ):
             client.wait_for_workers(workers)
             startup = time.perf_counter() - t0
             client.run(_warm_up)  # imports on the workers, once per cluster, not timed
             workers_cpu0 = sum(client.run(own_cpu_seconds).values())
-            dask_wall, dask_cpu = timed_run(pdb, dcd, args.step_A, n_frames,
-                                            backend=DaskClientBackend(client),
-                                            unsupported_backend=True, n_parts=2 * workers)
+            dask_wall, dask_cpu = timed_run(
+                pdb,
+                dcd,
+                args.step_A,
+                n_frames,
+                backend=DaskClientBackend(client),
+                unsupported_backend=True,
+                n_parts=2 * workers,
+            )
             dask = dask_wall, dask_cpu + sum(client.run(own_cpu_seconds).values()) - workers_cpu0
         print(f"\n{'run':<34} {'wall s':>7} {'frames/s':>9} {'speed-up':>9} {'CPU s':>7}")
-        for label, (seconds, cpu) in (("serial", serial),
-                                      (f"multiprocessing, {workers} workers", pool),
-                                      (f"dask LocalCluster, {workers} workers", dask)):
+        for label, (seconds, cpu) in (
+            ("serial", serial),
+            (f"multiprocessing, {workers} workers", pool),
+            (f"dask LocalCluster, {workers} workers", dask),
+        ):
             cpu_text = f"{cpu:>7.1f}"
-            print(f"{label:<34} {seconds:>7.2f} {n_frames / seconds:>9.2f} "
-                  f"{serial[0] / seconds:>8.2f}x {cpu_text}")
-        print(f"(not included: dask cluster start-up {startup:.1f} s and the workers' first "
-              f"imports; {n_frames} frames per run, {2 * workers} blocks; CPU s: this process "
-              f"plus its workers; load average now {os.getloadavg()[0]:.1f})")
+            print(
+                f"{label:<34} {seconds:>7.2f} {n_frames / seconds:>9.2f} "
+                f"{serial[0] / seconds:>8.2f}x {cpu_text}"
+            )
+        print(
+            f"(not included: dask cluster start-up {startup:.1f} s and the workers' first "
+            f"imports; {n_frames} frames per run, {2 * workers} blocks; CPU s: this process "
+            f"plus its workers; load average now {os.getloadavg()[0]:.1f})"
+        )
 
         short, long_ = (measure_memory(pdb, dcd, args.step_A, n) for n in args.memory_frames)
         base = measure_memory(pdb, dcd, args.step_A, 0)
-        per_frame_kib = 1024 * (long_["peak_mib"] - short["peak_mib"]) / (
-            long_["frames"] - short["frames"])
+        per_frame_kib = (
+            1024 * (long_["peak_mib"] - short["peak_mib"]) / (long_["frames"] - short["frames"])
+        )
         results_kib = (short["planes"] + 10) * 8 / 1024  # radius row + 10 per-frame numbers
         # the merge of a parallel run holds the blocks and the stacked copy: twice this
-        extrapolated = long_["peak_mib"] + max(per_frame_kib, results_kib) * (
-            10_000 - long_["frames"]) / 1024
-        print(f"\npeak RSS, serial, fresh process: set-up only {base['peak_mib']:.0f} MiB; "
-              f"{short['frames']} frames {short['peak_mib']:.0f} MiB; "
-              f"{long_['frames']} frames {long_['peak_mib']:.0f} MiB")
-        print(f"growth {per_frame_kib:.1f} KiB/frame measured; per-frame results are "
-              f"{results_kib:.1f} KiB/frame")
-        print(f"10,000 frames (extrapolated from these runs, not measured): about "
-              f"{extrapolated:.0f} MiB peak")
+        extrapolated = (
+            long_["peak_mib"] + max(per_frame_kib, results_kib) * (10_000 - long_["frames"]) / 1024
+        )
+        print(
+            f"\npeak RSS, serial, fresh process: set-up only {base['peak_mib']:.0f} MiB; "
+            f"{short['frames']} frames {short['peak_mib']:.0f} MiB; "
+            f"{long_['frames']} frames {long_['peak_mib']:.0f} MiB"
+        )
+        print(
+            f"growth {per_frame_kib:.1f} KiB/frame measured; per-frame results are "
+            f"{results_kib:.1f} KiB/frame"
+        )
+        print(
+            f"10,000 frames (extrapolated from these runs, not measured): about "
+            f"{extrapolated:.0f} MiB peak"
+        )
 
 
 if __name__ == "__main__":

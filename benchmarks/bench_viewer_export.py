@@ -37,21 +37,29 @@ def main() -> None:
     parser.add_argument("--repeat", type=int, default=2, help="timing repeats (best is shown)")
     args = parser.parse_args()
     print(f"poreprobe {pp.__version__}; {os.cpu_count()} cores; best of {args.repeat}")
-    print(f"{'atoms':>7} {'spacing':>8} {'grid points':>12} {'grid s':>7} {'mesh s':>7} "
-          f"{'vertices':>9} {'map MB':>7} {'write s':>8} {'ply MB':>7} {'centre s':>8}")
+    print(
+        f"{'atoms':>7} {'spacing':>8} {'grid points':>12} {'grid s':>7} {'mesh s':>7} "
+        f"{'vertices':>9} {'map MB':>7} {'write s':>8} {'ply MB':>7} {'centre s':>8}"
+    )
     axis = pp.PoreAxis([0, 0, 0], [0, 0, 1], "user")
     with tempfile.TemporaryDirectory() as tmp:
         for n_atoms in (10_000, 40_000):
             atoms = synthetic.shell_channel(n_atoms)
             radii = pp.atom_radii_A(atoms)
             prof = pp.radius_profile(atoms, axis, radii_A=radii, step_A=0.2)
-            t_line, line = best_of(args.repeat, lambda a=atoms, p=prof, r=radii:
-                                   pp.center_line(a, p, radii_A=r))
+            t_line, line = best_of(
+                args.repeat, lambda a=atoms, p=prof, r=radii: pp.center_line(a, p, radii_A=r)
+            )
             for spacing in (1.0, 0.5, 0.25):
-                t_grid, grid = best_of(args.repeat, lambda a=atoms, p=prof, r=radii, h=spacing:
-                                       pp.clearance_grid(a, p, radii_A=r, spacing_A=h))
-                t_mesh, surf = best_of(args.repeat, lambda g=grid, p=prof:
-                                       pp.pore_surface(g, p, probe_radius_A=1.0))
+                t_grid, grid = best_of(
+                    args.repeat,
+                    lambda a=atoms, p=prof, r=radii, h=spacing: pp.clearance_grid(
+                        a, p, radii_A=r, spacing_A=h
+                    ),
+                )
+                t_mesh, surf = best_of(
+                    args.repeat, lambda g=grid, p=prof: pp.pore_surface(g, p, probe_radius_A=1.0)
+                )
                 map_path = os.path.join(tmp, "pore.ccp4")
                 ply_path = os.path.join(tmp, "pore.ply")
                 t0 = time.perf_counter()
@@ -59,10 +67,12 @@ def main() -> None:
                 pp.write_mesh(surf, ply_path)
                 pp.write_center_line(line, os.path.join(tmp, "centre.cif"))
                 t_write = time.perf_counter() - t0
-                print(f"{n_atoms:>7} {spacing:>8.2f} {int(np.prod(grid.shape)):>12,} "
-                      f"{t_grid:>7.2f} {t_mesh:>7.2f} {len(surf.vertices_A):>9,} "
-                      f"{os.path.getsize(map_path) / 1e6:>7.1f} {t_write:>8.2f} "
-                      f"{os.path.getsize(ply_path) / 1e6:>7.1f} {t_line:>8.3f}")
+                print(
+                    f"{n_atoms:>7} {spacing:>8.2f} {int(np.prod(grid.shape)):>12,} "
+                    f"{t_grid:>7.2f} {t_mesh:>7.2f} {len(surf.vertices_A):>9,} "
+                    f"{os.path.getsize(map_path) / 1e6:>7.1f} {t_write:>8.2f} "
+                    f"{os.path.getsize(ply_path) / 1e6:>7.1f} {t_line:>8.3f}"
+                )
 
 
 if __name__ == "__main__":

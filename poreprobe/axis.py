@@ -128,11 +128,15 @@ SEQUENCE_MATCH = 0.9
 def chain_residues(atoms: Atoms, chain: str) -> tuple[list[tuple[int, str]], list[str]]:
     """(resid, icode) keys and names of a chain's polymer residues that have a CA, in order."""
     mask = (atoms.kind == "polymer") & (atoms.chain == chain) & (atoms.name == "CA")
-    keys = list(dict.fromkeys(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(),
-                                  strict=True)))
+    keys = list(
+        dict.fromkeys(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True))
+    )
     first = {}
-    for key, name in zip(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(),
-                             strict=True), atoms.resname[mask].tolist(), strict=True):
+    for key, name in zip(
+        zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True),
+        atoms.resname[mask].tolist(),
+        strict=True,
+    ):
         first.setdefault(key, name)
     return keys, [first[k] for k in keys]
 
@@ -209,16 +213,26 @@ def equivalent_chains(atoms: Atoms) -> tuple[list[str], np.ndarray]:
     coords_per_chain = []
     for ch in group:
         mask = poly & (atoms.chain == ch) & np.isin(atoms.name, BACKBONE)
-        coords_per_chain.append({(r, i, n): xyz for r, i, n, xyz in zip(
-            atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), atoms.name[mask].tolist(),
-            atoms.coords_A[mask], strict=True)})
+        coords_per_chain.append(
+            {
+                (r, i, n): xyz
+                for r, i, n, xyz in zip(
+                    atoms.resid[mask].tolist(),
+                    atoms.icode[mask].tolist(),
+                    atoms.name[mask].tolist(),
+                    atoms.coords_A[mask],
+                    strict=True,
+                )
+            }
+        )
     matched_rows = []
     for j in range(len(columns[0])):
         for name in BACKBONE:
             keys = [(*columns[k][j], name) for k in range(len(group))]
             if all(key in kc for key, kc in zip(keys, coords_per_chain, strict=True)):
-                matched_rows.append([kc[key] for key, kc in zip(keys, coords_per_chain,
-                                                                strict=True)])
+                matched_rows.append(
+                    [kc[key] for key, kc in zip(keys, coords_per_chain, strict=True)]
+                )
     if len(matched_rows) < 3:
         return [], np.empty((0, 0, 3))
     return group, np.array(matched_rows).transpose(1, 0, 2)

@@ -79,14 +79,22 @@ class BatchRow:
         return not self.error
 
     def to_dict(self) -> dict:
-        return {"path": self.path, "ok": self.ok, "n_atoms": self.n_atoms,
-                "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
-                "axis_method": self.axis_method, "min_residues": list(self.min_residues),
-                "capture_radius_A": list(self.capture_radius_A),
-                "findings": (dict(zip(_severities(), self.findings, strict=True))
-                             if self.findings else None),
-                "verdict": self.verdict or None,
-                "warnings": list(self.warnings), "error": self.error}
+        return {
+            "path": self.path,
+            "ok": self.ok,
+            "n_atoms": self.n_atoms,
+            "min_radius_A": self.min_radius_A,
+            "min_s_A": self.min_s_A,
+            "axis_method": self.axis_method,
+            "min_residues": list(self.min_residues),
+            "capture_radius_A": list(self.capture_radius_A),
+            "findings": (
+                dict(zip(_severities(), self.findings, strict=True)) if self.findings else None
+            ),
+            "verdict": self.verdict or None,
+            "warnings": list(self.warnings),
+            "error": self.error,
+        }
 
 
 @dataclass(frozen=True)
@@ -120,14 +128,19 @@ class BatchSummary:
         return sum(not row.ok for row in self.rows)
 
     def to_dict(self) -> dict:
-        return {"version": self.version,
-                "kind": "radius profiles of many models (model-based estimates)",
-                "radius_set": self.radius_set, "step_A": self.step_A,
-                "margin_A": self.margin_A, "max_radius_A": self.max_radius_A,
-                "capture_probe_radii_A": list(self.capture_probe_radii_A),
-                "check_ion": self.check_ion,
-                "n_files": len(self.rows), "n_failed": self.n_failed,
-                "rows": [row.to_dict() for row in self.rows]}
+        return {
+            "version": self.version,
+            "kind": "radius profiles of many models (model-based estimates)",
+            "radius_set": self.radius_set,
+            "step_A": self.step_A,
+            "margin_A": self.margin_A,
+            "max_radius_A": self.max_radius_A,
+            "capture_probe_radii_A": list(self.capture_probe_radii_A),
+            "check_ion": self.check_ion,
+            "n_files": len(self.rows),
+            "n_failed": self.n_failed,
+            "rows": [row.to_dict() for row in self.rows],
+        }
 
 
 @dataclass(frozen=True)
@@ -188,19 +201,34 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
             atoms = read_structure(path, **options.read)
             radii_A = atom_radii_A(atoms, options.radius_set)
             axis = find_pore_axis(atoms, radii_A=radii_A, **options.axis)
-            prof = radius_profile(atoms, axis, radii_A=radii_A, step_A=options.step_A,
-                                  margin_A=options.margin_A,
-                                  max_radius_A=options.max_radius_A)
+            prof = radius_profile(
+                atoms,
+                axis,
+                radii_A=radii_A,
+                step_A=options.step_A,
+                margin_A=options.margin_A,
+                max_radius_A=options.max_radius_A,
+            )
             capture = _capture_radii_A(atoms, axis, radii_A, options)
             findings, verdict = _check(path, axis, options)
         except Exception as exc:  # a failed file is reported, never fatal to the batch
-            return BatchRow(path=path, error=_error_text(exc),
-                            warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
-    return BatchRow(path=path, n_atoms=len(atoms), min_radius_A=prof.min_radius_A,
-                    min_s_A=prof.min_s_A, axis_method=axis.method,
-                    min_residues=prof.min_residues, capture_radius_A=capture,
-                    findings=findings, verdict=verdict,
-                    warnings=tuple(dict.fromkeys(str(w.message) for w in caught)))
+            return BatchRow(
+                path=path,
+                error=_error_text(exc),
+                warnings=tuple(dict.fromkeys(str(w.message) for w in caught)),
+            )
+    return BatchRow(
+        path=path,
+        n_atoms=len(atoms),
+        min_radius_A=prof.min_radius_A,
+        min_s_A=prof.min_s_A,
+        axis_method=axis.method,
+        min_residues=prof.min_residues,
+        capture_radius_A=capture,
+        findings=findings,
+        verdict=verdict,
+        warnings=tuple(dict.fromkeys(str(w.message) for w in caught)),
+    )
 
 
 def _capture_radii_A(atoms, axis, radii_A, options: _FileOptions) -> tuple[float, ...]:
@@ -210,8 +238,13 @@ def _capture_radii_A(atoms, axis, radii_A, options: _FileOptions) -> tuple[float
     from poreprobe.probes import probe_scan
 
     try:
-        scan = probe_scan(atoms, axis, probe_radii_A=options.capture_probe_radii_A,
-                          radii_A=radii_A, **options.scan)
+        scan = probe_scan(
+            atoms,
+            axis,
+            probe_radii_A=options.capture_probe_radii_A,
+            radii_A=radii_A,
+            **options.scan,
+        )
     except PoreNotFoundError as exc:
         warnings.warn(f"capture radius: {exc}", QualityWarning, stacklevel=2)
         return tuple(float("nan") for _ in options.capture_probe_radii_A)
@@ -228,13 +261,21 @@ def _check(path: str, axis, options: _FileOptions) -> tuple[tuple[int, ...], str
     kept = {"hetero": read["hetero"], "ion": read["ions"], "water": read["waters"]}
     walls = ("polymer",) + tuple(kind for kind, keep in kept.items() if keep)
     try:
-        everything = read_structure(path, **{**read, "hydrogens": True, "waters": True,
-                                              "ions": True, "hetero": True})
-        report = check_model(everything, axis=axis, ion=options.check_ion,
-                             radii=options.radius_set, walls=walls,
-                             hydrogens=read["hydrogens"], step_A=options.step_A,
-                             margin_A=options.margin_A, max_radius_A=options.max_radius_A,
-                             warn=False)
+        everything = read_structure(
+            path, **{**read, "hydrogens": True, "waters": True, "ions": True, "hetero": True}
+        )
+        report = check_model(
+            everything,
+            axis=axis,
+            ion=options.check_ion,
+            radii=options.radius_set,
+            walls=walls,
+            hydrogens=read["hydrogens"],
+            step_A=options.step_A,
+            margin_A=options.margin_A,
+            max_radius_A=options.max_radius_A,
+            warn=False,
+        )
     except PoreprobeError as exc:
         warnings.warn(f"check: {exc}", QualityWarning, stacklevel=2)
         return (), ""
@@ -248,19 +289,37 @@ def _severities() -> tuple[str, ...]:
     return SEVERITIES
 
 
-def profile_files(files, *, backend="serial", n_workers: int | None = 1,
-                  scheduler: str | None = None, quiet: bool = True,
-                  radii: str | RadiusSet = DEFAULT_RADIUS_SET, radii_file=None,
-                  step_A: float = 0.2, margin_A: float = 2.0, max_radius_A: float = 20.0,
-                  model: int = 0, altloc: str = "occupancy", hydrogens: bool = True,
-                  waters: bool = False, ions: bool = False, hetero: bool = False,
-                  selection: str | None = None, axis_method: str = "auto",
-                  axis_point_A=None, axis_direction=None,
-                  axis_selections: tuple[str, str] | None = None,
-                  entry: str | None = None, capture_probe_radii_A=None,
-                  capture_from_end: str = "low", capture_spacing_A: float = 0.5,
-                  capture_pore_radius_A: float = 15.0, check: bool = False,
-                  ion: str = "K") -> BatchSummary:
+def profile_files(
+    files,
+    *,
+    backend="serial",
+    n_workers: int | None = 1,
+    scheduler: str | None = None,
+    quiet: bool = True,
+    radii: str | RadiusSet = DEFAULT_RADIUS_SET,
+    radii_file=None,
+    step_A: float = 0.2,
+    margin_A: float = 2.0,
+    max_radius_A: float = 20.0,
+    model: int = 0,
+    altloc: str = "occupancy",
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
+    selection: str | None = None,
+    axis_method: str = "auto",
+    axis_point_A=None,
+    axis_direction=None,
+    axis_selections: tuple[str, str] | None = None,
+    entry: str | None = None,
+    capture_probe_radii_A=None,
+    capture_from_end: str = "low",
+    capture_spacing_A: float = 0.5,
+    capture_pore_radius_A: float = 15.0,
+    check: bool = False,
+    ion: str = "K",
+) -> BatchSummary:
     """Profile many structure files and summarise each in one row.
 
     Parameters
@@ -309,20 +368,32 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
 
     paths = expand_paths(files)
     options = _FileOptions(
-        read={"model": check_int(model, "model", minimum=0), "altloc": altloc,
-              "hydrogens": hydrogens, "waters": waters, "ions": ions, "hetero": hetero,
-              "selection": selection},
-        axis={"method": axis_method, "point_A": axis_point_A, "direction": axis_direction,
-              "selections": axis_selections, "entry": entry},
+        read={
+            "model": check_int(model, "model", minimum=0),
+            "altloc": altloc,
+            "hydrogens": hydrogens,
+            "waters": waters,
+            "ions": ions,
+            "hetero": hetero,
+            "selection": selection,
+        },
+        axis={
+            "method": axis_method,
+            "point_A": axis_point_A,
+            "direction": axis_direction,
+            "selections": axis_selections,
+            "entry": entry,
+        },
         radius_set=get_radius_set(radii, radii_file),
         step_A=check_positive(step_A, "step_A"),
         margin_A=check_positive(margin_A, "margin_A", allow_zero=True),
         max_radius_A=check_positive(max_radius_A, "max_radius_A"),
         capture_probe_radii_A=_check_probes(capture_probe_radii_A),
-        scan={"from_end": check_choice(capture_from_end, "capture_from_end", ("low", "high")),
-              "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
-              "pore_radius_A": check_positive(capture_pore_radius_A,
-                                              "capture_pore_radius_A")},
+        scan={
+            "from_end": check_choice(capture_from_end, "capture_from_end", ("low", "high")),
+            "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
+            "pore_radius_A": check_positive(capture_pore_radius_A, "capture_pore_radius_A"),
+        },
         check_ion=_check_ion(ion) if check else None,
     )
     task = partial(profile_file, options=options)
@@ -331,15 +402,20 @@ def profile_files(files, *, backend="serial", n_workers: int | None = 1,
     if isinstance(backend, BackendBase):
         rows = backend.apply(task, tasks)
     else:
-        with open_backend(backend, n_workers=n_workers,
-                          scheduler=scheduler, quiet=quiet, desc="files") as executor:
+        with open_backend(
+            backend, n_workers=n_workers, scheduler=scheduler, quiet=quiet, desc="files"
+        ) as executor:
             rows = executor.apply(task, tasks)
     rows = [replace(row, path=given) for row, given in zip(rows, paths, strict=True)]
-    return BatchSummary(rows=tuple(rows), radius_set=options.radius_set.name,
-                        step_A=options.step_A, margin_A=options.margin_A,
-                        max_radius_A=options.max_radius_A,
-                        capture_probe_radii_A=options.capture_probe_radii_A,
-                        check_ion=options.check_ion)
+    return BatchSummary(
+        rows=tuple(rows),
+        radius_set=options.radius_set.name,
+        step_A=options.step_A,
+        margin_A=options.margin_A,
+        max_radius_A=options.max_radius_A,
+        capture_probe_radii_A=options.capture_probe_radii_A,
+        check_ion=options.check_ion,
+    )
 
 
 def _check_ion(ion: str) -> str:
@@ -364,25 +440,50 @@ def batch_csv(summary: BatchSummary, path=None) -> str:
     """CSV, one row per file: narrowest radius, its position, capture radii, findings, error."""
     probes = summary.capture_probe_radii_A
     checked = summary.check_ion is not None
-    check_header = ((*(f"findings_{sev}" for sev in _severities()),
-                     f"verdict_{summary.check_ion}") if checked else ())
-    header = ("file", "status", "n_atoms", "min_radius_A", "min_s_A",
-              *(f"capture_radius_A_p{p:g}" for p in probes), *check_header, "axis_method",
-              "narrowest_lined_by", "warnings", "error")
+    check_header = (
+        (*(f"findings_{sev}" for sev in _severities()), f"verdict_{summary.check_ion}")
+        if checked
+        else ()
+    )
+    header = (
+        "file",
+        "status",
+        "n_atoms",
+        "min_radius_A",
+        "min_s_A",
+        *(f"capture_radius_A_p{p:g}" for p in probes),
+        *check_header,
+        "axis_method",
+        "narrowest_lined_by",
+        "warnings",
+        "error",
+    )
 
     def check_cells(row):
         if not checked:
             return ()
         return (*(row.findings or ("",) * 4), row.verdict)
 
-    rows = ((row.path, "ok" if row.ok else "failed", row.n_atoms, float(row.min_radius_A),
-             float(row.min_s_A),
-             *(row.capture_radius_A if row.ok else (float("nan"),) * len(probes)),
-             *check_cells(row), row.axis_method, " ".join(row.min_residues[:8]),
-             len(row.warnings), row.error)
-            for row in summary.rows)
-    comments = (f"poreprobe {summary.version} batch summary: {len(summary.rows)} files, "
-                f"{summary.n_failed} failed",
-                f"radius set: {summary.radius_set}; model-based estimates; lengths in Å; "
-                f"plane step {summary.step_A:g} Å")
+    rows = (
+        (
+            row.path,
+            "ok" if row.ok else "failed",
+            row.n_atoms,
+            float(row.min_radius_A),
+            float(row.min_s_A),
+            *(row.capture_radius_A if row.ok else (float("nan"),) * len(probes)),
+            *check_cells(row),
+            row.axis_method,
+            " ".join(row.min_residues[:8]),
+            len(row.warnings),
+            row.error,
+        )
+        for row in summary.rows
+    )
+    comments = (
+        f"poreprobe {summary.version} batch summary: {len(summary.rows)} files, "
+        f"{summary.n_failed} failed",
+        f"radius set: {summary.radius_set}; model-based estimates; lengths in Å; "
+        f"plane step {summary.step_A:g} Å",
+    )
     return to_csv(header, rows, path, comments)

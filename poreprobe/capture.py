@@ -56,6 +56,7 @@ FARADAY_C_PER_MOL = constants.physical_constants["Faraday constant"][0]
 
 # --- units -----------------------------------------------------------------------------
 
+
 def pA_to_A(current_pA):
     """Picoampere to ampere."""
     return np.asarray(current_pA, dtype=float) * constants.pico
@@ -88,6 +89,7 @@ def m_to_angstrom(length_m):
 
 # --- the formula -----------------------------------------------------------------------
 
+
 def geometry_factor(geometry: str = DEFAULT_GEOMETRY) -> float:
     """g for ``"hemisphere"`` (2π) or ``"disk"`` (4)."""
     return GEOMETRY_FACTORS[check_choice(geometry, "geometry", GEOMETRY_FACTORS)]
@@ -100,8 +102,14 @@ def _check_charge(charge) -> int:
     return z
 
 
-def diffusion_limited_current_pA(radius_A: float, diffusion_m2_per_s: float, conc_mM: float, *,
-                                 charge: int = 1, geometry: str = DEFAULT_GEOMETRY) -> float:
+def diffusion_limited_current_pA(
+    radius_A: float,
+    diffusion_m2_per_s: float,
+    conc_mM: float,
+    *,
+    charge: int = 1,
+    geometry: str = DEFAULT_GEOMETRY,
+) -> float:
     """Current (pA) carried by diffusion-limited capture at an absorber of radius ``radius_A``.
 
     ``I = g |z| F D a c``; the inverse of :func:`capture_radius_from_current_A`.
@@ -110,14 +118,25 @@ def diffusion_limited_current_pA(radius_A: float, diffusion_m2_per_s: float, con
     d = check_positive(diffusion_m2_per_s, "diffusion_m2_per_s")
     c = check_positive(conc_mM, "conc_mM")
     z = _check_charge(charge)
-    current_A = (geometry_factor(geometry) * abs(z) * FARADAY_C_PER_MOL * d
-                 * angstrom_to_m(a) * mM_to_mol_per_m3(c))
+    current_A = (
+        geometry_factor(geometry)
+        * abs(z)
+        * FARADAY_C_PER_MOL
+        * d
+        * angstrom_to_m(a)
+        * mM_to_mol_per_m3(c)
+    )
     return float(A_to_pA(current_A))
 
 
-def capture_radius_from_current_A(current_pA: float, diffusion_m2_per_s: float, conc_mM: float,
-                                  *, charge: int = 1,
-                                  geometry: str = DEFAULT_GEOMETRY) -> float:
+def capture_radius_from_current_A(
+    current_pA: float,
+    diffusion_m2_per_s: float,
+    conc_mM: float,
+    *,
+    charge: int = 1,
+    geometry: str = DEFAULT_GEOMETRY,
+) -> float:
     """Capture radius (Å) implied by a diffusion-limited current: ``I / (g |z| F D c)``.
 
     Parameters
@@ -137,12 +156,14 @@ def capture_radius_from_current_A(current_pA: float, diffusion_m2_per_s: float, 
     d = check_positive(diffusion_m2_per_s, "diffusion_m2_per_s")
     c = check_positive(conc_mM, "conc_mM")
     z = _check_charge(charge)
-    radius_m = pA_to_A(i) / (geometry_factor(geometry) * abs(z) * FARADAY_C_PER_MOL * d
-                             * mM_to_mol_per_m3(c))
+    radius_m = pA_to_A(i) / (
+        geometry_factor(geometry) * abs(z) * FARADAY_C_PER_MOL * d * mM_to_mol_per_m3(c)
+    )
     return float(m_to_angstrom(radius_m))
 
 
 # --- with uncertainties ----------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class CaptureRadiusEstimate:
@@ -239,12 +260,20 @@ class CaptureRadiusEstimate:
         }
 
 
-def estimate_capture_radius(current_pA: float, conc_mM: float, diffusion_m2_per_s: float, *,
-                            current_sd_pA: float = 0.0, conc_sd_mM: float = 0.0,
-                            diffusion_sd_m2_per_s: float = 0.0, charge: int = 1,
-                            geometry: str = DEFAULT_GEOMETRY, current_uncertainty: str = "sd",
-                            mc_samples: int = DEFAULT_MC_SAMPLES,
-                            seed: int = DEFAULT_SEED) -> CaptureRadiusEstimate:
+def estimate_capture_radius(
+    current_pA: float,
+    conc_mM: float,
+    diffusion_m2_per_s: float,
+    *,
+    current_sd_pA: float = 0.0,
+    conc_sd_mM: float = 0.0,
+    diffusion_sd_m2_per_s: float = 0.0,
+    charge: int = 1,
+    geometry: str = DEFAULT_GEOMETRY,
+    current_uncertainty: str = "sd",
+    mc_samples: int = DEFAULT_MC_SAMPLES,
+    seed: int = DEFAULT_SEED,
+) -> CaptureRadiusEstimate:
     """Capture radius implied by a diffusion-limited current, with its uncertainty.
 
     Parameters
@@ -276,16 +305,20 @@ def estimate_capture_radius(current_pA: float, conc_mM: float, diffusion_m2_per_
         When more than 0.1 % of draws had a non-positive input, or the first-order
         and Monte Carlo SDs differ by more than 10 % (large relative uncertainties).
     """
-    r = capture_radius_from_current_A(current_pA, diffusion_m2_per_s, conc_mM, charge=charge,
-                                      geometry=geometry)
+    r = capture_radius_from_current_A(
+        current_pA, diffusion_m2_per_s, conc_mM, charge=charge, geometry=geometry
+    )
     z = _check_charge(charge)
     geometry = check_choice(geometry, "geometry", GEOMETRY_FACTORS)
     kind = check_choice(current_uncertainty, "current_uncertainty", ("sd", "sem"))
     means = np.array([float(current_pA), float(conc_mM), float(diffusion_m2_per_s)])
-    sds = np.array([check_positive(current_sd_pA, "current_sd_pA", allow_zero=True),
-                    check_positive(conc_sd_mM, "conc_sd_mM", allow_zero=True),
-                    check_positive(diffusion_sd_m2_per_s, "diffusion_sd_m2_per_s",
-                                   allow_zero=True)])
+    sds = np.array(
+        [
+            check_positive(current_sd_pA, "current_sd_pA", allow_zero=True),
+            check_positive(conc_sd_mM, "conc_sd_mM", allow_zero=True),
+            check_positive(diffusion_sd_m2_per_s, "diffusion_sd_m2_per_s", allow_zero=True),
+        ]
+    )
     n = check_int(mc_samples, "mc_samples", minimum=1000)
     if n > 10_000_000:
         raise InputError(f"mc_samples must be <= 10000000, got {n}")
@@ -301,35 +334,56 @@ def estimate_capture_radius(current_pA: float, conc_mM: float, diffusion_m2_per_
     ok = (draws > 0).all(axis=1)
     rejected = int(n - ok.sum())
     # r scales as I / (D c): reuse the central value instead of recomputing constants.
-    r_draws = r * (draws[ok, 0] / means[0]) * (means[1] / draws[ok, 1]) * (
-        means[2] / draws[ok, 2])
+    r_draws = r * (draws[ok, 0] / means[0]) * (means[1] / draws[ok, 1]) * (means[2] / draws[ok, 2])
     if r_draws.size < 2:
-        raise InputError("the input uncertainties are so large that almost every Monte Carlo "
-                         "draw has a non-positive current, concentration or D")
+        raise InputError(
+            "the input uncertainties are so large that almost every Monte Carlo "
+            "draw has a non-positive current, concentration or D"
+        )
     # Identical draws (no uncertainty given) have exactly zero spread.
     mc_sd = float(r_draws.std(ddof=1)) if np.ptp(r_draws) > 0 else 0.0
     lo, p16, p84, hi = np.percentile(r_draws, [2.5, 16.0, 84.0, 97.5])
     result = CaptureRadiusEstimate(
-        capture_radius_A=r, capture_radius_sd_A=sd_first,
-        capture_radius_mc_mean_A=float(r_draws.mean()), capture_radius_mc_sd_A=mc_sd,
+        capture_radius_A=r,
+        capture_radius_sd_A=sd_first,
+        capture_radius_mc_mean_A=float(r_draws.mean()),
+        capture_radius_mc_sd_A=mc_sd,
         capture_radius_mc_interval_A=(float(lo), float(hi)),
         capture_radius_mc_halfwidth68_A=float(p84 - p16) / 2 if mc_sd > 0 else 0.0,
         capture_rate_per_s=float(pA_to_A(means[0]) / (abs(z) * constants.e)),
-        variance_shares={"current": float(shares[0]), "concentration": float(shares[1]),
-                         "diffusion": float(shares[2])},
-        current_pA=float(means[0]), current_sd_pA=float(sds[0]), current_uncertainty=kind,
-        conc_mM=float(means[1]), conc_sd_mM=float(sds[1]),
-        diffusion_m2_per_s=float(means[2]), diffusion_sd_m2_per_s=float(sds[2]),
-        charge=z, geometry=geometry, geometry_factor=geometry_factor(geometry),
-        mc_samples=n, mc_rejected=rejected, seed=seed,
+        variance_shares={
+            "current": float(shares[0]),
+            "concentration": float(shares[1]),
+            "diffusion": float(shares[2]),
+        },
+        current_pA=float(means[0]),
+        current_sd_pA=float(sds[0]),
+        current_uncertainty=kind,
+        conc_mM=float(means[1]),
+        conc_sd_mM=float(sds[1]),
+        diffusion_m2_per_s=float(means[2]),
+        diffusion_sd_m2_per_s=float(sds[2]),
+        charge=z,
+        geometry=geometry,
+        geometry_factor=geometry_factor(geometry),
+        mc_samples=n,
+        mc_rejected=rejected,
+        seed=seed,
     )
     if rejected > 0.001 * n:
-        warnings.warn(f"{rejected} of {n} Monte Carlo draws had a non-positive current, "
-                      "concentration or D and were rejected: the input uncertainties are large",
-                      QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"{rejected} of {n} Monte Carlo draws had a non-positive current, "
+            "concentration or D and were rejected: the input uncertainties are large",
+            QualityWarning,
+            stacklevel=2,
+        )
     if sd_first > 0 and abs(result.sd_relative_difference) > SD_DISAGREEMENT_WARN:
-        warnings.warn(f"first-order SD {sd_first:.3g} Å and Monte Carlo SD {mc_sd:.3g} Å differ "
-                      f"by {100 * result.sd_relative_difference:+.0f} %: the relative "
-                      "uncertainties are too large for the linear approximation; prefer the "
-                      "Monte Carlo interval", QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"first-order SD {sd_first:.3g} Å and Monte Carlo SD {mc_sd:.3g} Å differ "
+            f"by {100 * result.sd_relative_difference:+.0f} %: the relative "
+            "uncertainties are too large for the linear approximation; prefer the "
+            "Monte Carlo interval",
+            QualityWarning,
+            stacklevel=2,
+        )
     return result

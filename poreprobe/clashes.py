@@ -55,8 +55,9 @@ def covalent_radii_A(elements) -> np.ndarray:  # noqa: N802 (unit suffix)
 
 
 def _residue_index(atoms: Atoms) -> np.ndarray:
-    key = np.char.add(np.char.add(atoms.chain, "|"),
-                      np.char.add(atoms.resid.astype(str), atoms.icode))
+    key = np.char.add(
+        np.char.add(atoms.chain, "|"), np.char.add(atoms.resid.astype(str), atoms.icode)
+    )
     change = np.r_[True, key[1:] != key[:-1]]
     return np.cumsum(change) - 1
 
@@ -110,12 +111,17 @@ class Clash:
         return self.distance_A / self.radius_sum_A
 
     def to_dict(self) -> dict:
-        return {"atoms": list(self.labels), "distance_A": self.distance_A,
-                "radius_sum_A": self.radius_sum_A, "fraction": self.fraction}
+        return {
+            "atoms": list(self.labels),
+            "distance_A": self.distance_A,
+            "radius_sum_A": self.radius_sum_A,
+            "fraction": self.fraction,
+        }
 
 
-def find_clashes(atoms: Atoms, radii_A: np.ndarray, *, clash_fraction: float = CLASH_FRACTION,
-                 only=None) -> list[Clash]:
+def find_clashes(
+    atoms: Atoms, radii_A: np.ndarray, *, clash_fraction: float = CLASH_FRACTION, only=None
+) -> list[Clash]:
     """Heavy-atom pairs closer than ``clash_fraction`` x (sum of radii), bonded pairs excluded.
 
     Parameters
@@ -162,7 +168,10 @@ def find_clashes(atoms: Atoms, radii_A: np.ndarray, *, clash_fraction: float = C
     within = one + two + two @ bonds
     near = np.asarray(within[row_of, j]).reshape(-1) > 0
     labels = np.char.add(np.char.add(atoms.residue_labels(), ":"), atoms.name)
-    out = [Clash(int(a), int(b), (str(labels[a]), str(labels[b])), float(d), float(s))
-           for a, b, d, s, skip in zip(i, j, dist, rsum, near, strict=True) if not skip]
+    out = [
+        Clash(int(a), int(b), (str(labels[a]), str(labels[b])), float(d), float(s))
+        for a, b, d, s, skip in zip(i, j, dist, rsum, near, strict=True)
+        if not skip
+    ]
     out.sort(key=lambda c: c.fraction)
     return out

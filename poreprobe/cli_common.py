@@ -111,12 +111,21 @@ def add_axis_args(parser: argparse.ArgumentParser) -> None:
 def add_profile_args(parser: argparse.ArgumentParser, *, step_A: float = 0.2):
     """--step-A, --margin-A and --max-radius-A; returns the argument group for more."""
     g = parser.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=step_A,
-                   help=f"plane spacing in Å (default {step_A:g})")
-    g.add_argument("--margin-A", type=float, default=2.0,
-                   help="extension beyond the protein along the axis, Å (default 2)")
-    g.add_argument("--max-radius-A", type=float, default=20.0,
-                   help="planes wider than this (Å) count as open bulk (default 20)")
+    g.add_argument(
+        "--step-A", type=float, default=step_A, help=f"plane spacing in Å (default {step_A:g})"
+    )
+    g.add_argument(
+        "--margin-A",
+        type=float,
+        default=2.0,
+        help="extension beyond the protein along the axis, Å (default 2)",
+    )
+    g.add_argument(
+        "--max-radius-A",
+        type=float,
+        default=20.0,
+        help="planes wider than this (Å) count as open bulk (default 20)",
+    )
     return g
 
 
@@ -176,15 +185,27 @@ def say(args: argparse.Namespace, text: str = "") -> None:
 def add_backend_args(parser: argparse.ArgumentParser):
     """--backend, --workers and --scheduler: where the work runs. Returns the option group."""
     g = parser.add_argument_group("where it runs")
-    g.add_argument("--backend", default="serial", choices=("serial", "multiprocessing", "dask"),
-                   help="serial (default), a local process pool, or dask (a local cluster, "
-                        "or the scheduler given by --scheduler)")
-    g.add_argument("--workers", type=int, default=None, metavar="N",
-                   help="worker processes for local runs (count; default 2, or all the "
-                        "workers of the --scheduler cluster)")
-    g.add_argument("--scheduler", metavar="ADDRESS",
-                   help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
-                        "(implies --backend dask; files must be readable by every worker)")
+    g.add_argument(
+        "--backend",
+        default="serial",
+        choices=("serial", "multiprocessing", "dask"),
+        help="serial (default), a local process pool, or dask (a local cluster, "
+        "or the scheduler given by --scheduler)",
+    )
+    g.add_argument(
+        "--workers",
+        type=int,
+        default=None,
+        metavar="N",
+        help="worker processes for local runs (count; default 2, or all the "
+        "workers of the --scheduler cluster)",
+    )
+    g.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
+        "(implies --backend dask; files must be readable by every worker)",
+    )
     return g
 
 
@@ -209,57 +230,105 @@ def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
     """Capture-radius options of traj (one probe) and batch (several probes)."""
     g = parser.add_argument_group("capture radius (probe-size scan)")
     if several:
-        g.add_argument("--capture-probe-radii-A", type=float, nargs="+", metavar="P",
-                       help="also give the capture radius for these probe radii (Å, "
-                            "increasing)")
+        g.add_argument(
+            "--capture-probe-radii-A",
+            type=float,
+            nargs="+",
+            metavar="P",
+            help="also give the capture radius for these probe radii (Å, increasing)",
+        )
     else:
-        g.add_argument("--capture-probe-radius-A", type=float, metavar="P",
-                       help="also give, per frame, the capture radius for a probe of this "
-                            "radius (Å); costs about one more profile per frame")
-    g.add_argument("--capture-from-end", "--from", dest="capture_from_end",
-                   choices=("low", "high"), default="low",
-                   help="end of the axis (in s) where probes enter; default low, which is "
-                        "the --entry end when --entry is given")
-    g.add_argument("--capture-spacing-A", type=float, default=0.5,
-                   help="grid spacing of the scan in Å (default 0.5)")
-    g.add_argument("--capture-pore-radius-A", type=float, default=15.0,
-                   help="radius in Å around the axis the scan searches (default 15)")
+        g.add_argument(
+            "--capture-probe-radius-A",
+            type=float,
+            metavar="P",
+            help="also give, per frame, the capture radius for a probe of this "
+            "radius (Å); costs about one more profile per frame",
+        )
+    g.add_argument(
+        "--capture-from-end",
+        "--from",
+        dest="capture_from_end",
+        choices=("low", "high"),
+        default="low",
+        help="end of the axis (in s) where probes enter; default low, which is "
+        "the --entry end when --entry is given",
+    )
+    g.add_argument(
+        "--capture-spacing-A",
+        type=float,
+        default=0.5,
+        help="grid spacing of the scan in Å (default 0.5)",
+    )
+    g.add_argument(
+        "--capture-pore-radius-A",
+        type=float,
+        default=15.0,
+        help="radius in Å around the axis the scan searches (default 15)",
+    )
 
 
 def add_figure_size_args(group) -> None:
     """--dpi, --width-mm and --height-mm (shared by ``plot`` and every --figure)."""
-    group.add_argument("--dpi", type=float, default=300,
-                       help="resolution of PNG output in dots per inch (default 300)")
-    group.add_argument("--width-mm", type=float, default=None,
-                       help="figure width in mm (default 85, one journal column; 114 and "
-                            "174 mm for 1.5 and 2 columns)")
-    group.add_argument("--height-mm", type=float, default=None,
-                       help="figure height in mm (default 62; 78 for the capture figure)")
+    group.add_argument(
+        "--dpi",
+        type=float,
+        default=300,
+        help="resolution of PNG output in dots per inch (default 300)",
+    )
+    group.add_argument(
+        "--width-mm",
+        type=float,
+        default=None,
+        help="figure width in mm (default 85, one journal column; 114 and "
+        "174 mm for 1.5 and 2 columns)",
+    )
+    group.add_argument(
+        "--height-mm",
+        type=float,
+        default=None,
+        help="figure height in mm (default 62; 78 for the capture figure)",
+    )
 
 
 def add_ion_band_args(group) -> None:
     """--ion and --ion-radii: reference ion radii drawn on profile and capture figures."""
-    group.add_argument("--ion", action="append", metavar="ION",
-                       help="draw this ion's reference radii (K, Na, Li, Rb, Cs, Cl); "
-                            "repeat for several ions")
-    group.add_argument("--ion-radii", default="crystal,hydrated", metavar="KINDS",
-                       help="which radii of --ion, comma-separated: crystal (Shannon 1976), "
-                            "hydrated (Nightingale 1959), stokes (from D); "
-                            "default crystal,hydrated (Å)")
+    group.add_argument(
+        "--ion",
+        action="append",
+        metavar="ION",
+        help="draw this ion's reference radii (K, Na, Li, Rb, Cs, Cl); repeat for several ions",
+    )
+    group.add_argument(
+        "--ion-radii",
+        default="crystal,hydrated",
+        metavar="KINDS",
+        help="which radii of --ion, comma-separated: crystal (Shannon 1976), "
+        "hydrated (Nightingale 1959), stokes (from D); "
+        "default crystal,hydrated (Å)",
+    )
 
 
-def add_figure_args(parser: argparse.ArgumentParser, *, ion_bands: bool = False,
-                    kinds: tuple[str, ...] = ()) -> None:
+def add_figure_args(
+    parser: argparse.ArgumentParser, *, ion_bands: bool = False, kinds: tuple[str, ...] = ()
+) -> None:
     """--figure FILE plus the figure size options, for commands that can draw their result.
 
     With several ``kinds``, --figure-kind picks one (default the first).
     """
     g = parser.add_argument_group("figure")
-    g.add_argument("--figure", metavar="FILE",
-                   help="also draw this command's figure: PNG, SVG or PDF by the suffix")
+    g.add_argument(
+        "--figure",
+        metavar="FILE",
+        help="also draw this command's figure: PNG, SVG or PDF by the suffix",
+    )
     if kinds:
-        g.add_argument("--figure-kind", choices=kinds, default=kinds[0],
-                       help=f"which figure --figure draws (default {kinds[0]})")
+        g.add_argument(
+            "--figure-kind",
+            choices=kinds,
+            default=kinds[0],
+            help=f"which figure --figure draws (default {kinds[0]})",
+        )
     add_figure_size_args(g)
     if ion_bands:
         add_ion_band_args(g)
@@ -270,8 +339,9 @@ def check_figure_path(args: argparse.Namespace) -> None:
     if getattr(args, "figure", None):
         from poreprobe.plots import check_figure_options
 
-        check_figure_options(args.figure, width_mm=args.width_mm, height_mm=args.height_mm,
-                             dpi=args.dpi)
+        check_figure_options(
+            args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
+        )
         figure_ion_radii(args)
 
 
@@ -301,7 +371,8 @@ def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> Non
 
     if "ion_radii" not in options:
         options["ion_radii"] = figure_ion_radii(args)
-    ax = plots.draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm,
-                           **options)
+    ax = plots.draw_figure(
+        kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options
+    )
     plots.save_figure(ax, path, dpi=args.dpi)
     say(args, f"figure: {path}")

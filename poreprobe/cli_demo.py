@@ -9,15 +9,24 @@ from poreprobe.cli_common import say
 
 def register(sub) -> None:
     p = sub.add_parser(
-        "demo", help="run the main job on the bundled invented demo channels",
+        "demo",
+        help="run the main job on the bundled invented demo channels",
         description="Profile, probe-size scan, capture match (invented bench numbers), "
-                    "resistance breakdown, readiness check, comparison and trajectory "
-                    "statistics on the bundled invented FK1 channels. Writes JSON, CSV and "
-                    "figures. Model-based estimates on invented models, not measurements.")
-    p.add_argument("--out", default="poreprobe-demo-output", metavar="FOLDER",
-                   help="folder for the results (created; default poreprobe-demo-output)")
-    p.add_argument("--no-trajectory", action="store_true",
-                   help="skip the 25-frame breathing trajectory (saves a few seconds)")
+        "resistance breakdown, readiness check, comparison and trajectory "
+        "statistics on the bundled invented FK1 channels. Writes JSON, CSV and "
+        "figures. Model-based estimates on invented models, not measurements.",
+    )
+    p.add_argument(
+        "--out",
+        default="poreprobe-demo-output",
+        metavar="FOLDER",
+        help="folder for the results (created; default poreprobe-demo-output)",
+    )
+    p.add_argument(
+        "--no-trajectory",
+        action="store_true",
+        help="skip the 25-frame breathing trajectory (saves a few seconds)",
+    )
     p.add_argument("--quiet", action="store_true", help="no summary or progress on the terminal")
     p.set_defaults(func=run)
 
@@ -26,8 +35,11 @@ def run(args) -> int:
     from poreprobe.demo import DEMO_CONC_MM, DEMO_CURRENT_PA, DEMO_CURRENT_SD_PA, run_demo
 
     start = time.perf_counter()
-    say(args, "poreprobe demo: invented FK1 channels (see README 'The demo scenario'); "
-              "all numbers are model-based estimates")
+    say(
+        args,
+        "poreprobe demo: invented FK1 channels (see README 'The demo scenario'); "
+        "all numbers are model-based estimates",
+    )
     out = run_demo(args.out, quiet=args.quiet, trajectory=not args.no_trajectory)
     cap = out["capture_radius_at_middle_probe_A"]
     lines = [
@@ -43,10 +55,13 @@ def run(args) -> int:
         f"{out['closed_verdict']}",
     ]
     if "trajectory_min_radius_mean_A" in out:
-        lines.append(f"trajectory: mean narrowest radius {out['trajectory_min_radius_mean_A']:.2f}"
-                     " Å over the breathing frames")
-    lines.append(f"wrote {len(out['files'])} files to {args.out}/ in "
-                 f"{time.perf_counter() - start:.0f} s")
+        lines.append(
+            f"trajectory: mean narrowest radius {out['trajectory_min_radius_mean_A']:.2f}"
+            " Å over the breathing frames"
+        )
+    lines.append(
+        f"wrote {len(out['files'])} files to {args.out}/ in {time.perf_counter() - start:.0f} s"
+    )
     for line in lines:
         say(args, line)
     return 0

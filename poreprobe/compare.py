@@ -83,12 +83,16 @@ class AlignedModel:
     min_s_A: float
 
     def to_dict(self) -> dict:
-        return {"label": self.label, "fit_rmsd_A": self.transform.rmsd_A,
-                "n_fit_atoms": self.transform.n_points,
-                "own_axis_angle_deg": self.own_axis_angle_deg,
-                "own_axis_offset_A": self.own_axis_offset_A,
-                "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
-                "transform": self.transform.to_dict()}
+        return {
+            "label": self.label,
+            "fit_rmsd_A": self.transform.rmsd_A,
+            "n_fit_atoms": self.transform.n_points,
+            "own_axis_angle_deg": self.own_axis_angle_deg,
+            "own_axis_offset_A": self.own_axis_offset_A,
+            "min_radius_A": self.min_radius_A,
+            "min_s_A": self.min_s_A,
+            "transform": self.transform.to_dict(),
+        }
 
 
 @dataclass(frozen=True)
@@ -178,28 +182,41 @@ class ModelComparison:
             return [None if not np.isfinite(v) else float(v) for v in arr]
 
         return {
-            "version": self.version, "caveat": "model-based estimates, not measurements",
-            "reference": self.models[0].label, "reference_selection": self.reference_selection,
-            "radius_set": self.radius_set, "step_A": self.step_A, "axis": self.axis.to_dict(),
+            "version": self.version,
+            "caveat": "model-based estimates, not measurements",
+            "reference": self.models[0].label,
+            "reference_selection": self.reference_selection,
+            "radius_set": self.radius_set,
+            "step_A": self.step_A,
+            "axis": self.axis.to_dict(),
             "models": [m.to_dict() for m in self.models],
-            "profile": {"s_A": clean(self.s_A),
-                        "radius_A": {m.label: clean(r) for m, r in zip(self.models,
-                                                                       self.radius_A,
-                                                                       strict=True)},
-                        "difference_A": {m.label: clean(d) for m, d in zip(self.models,
-                                                                           self.difference_A,
-                                                                           strict=True)}},
+            "profile": {
+                "s_A": clean(self.s_A),
+                "radius_A": {
+                    m.label: clean(r) for m, r in zip(self.models, self.radius_A, strict=True)
+                },
+                "difference_A": {
+                    m.label: clean(d) for m, d in zip(self.models, self.difference_A, strict=True)
+                },
+            },
             "constriction_shifts": [s.to_dict() for s in self.shifts],
         }
 
     def to_csv(self, path=None) -> str:
         """CSV: s, each model's radius, each model's difference from the reference (Å)."""
-        header = ["s_A"] + [f"radius_A[{m}]" for m in self.labels] + [
-            f"difference_A[{m}]" for m in self.labels[1:]]
-        rows = ([float(s), *map(float, self.radius_A[:, k]),
-                 *map(float, self.difference_A[1:, k])] for k, s in enumerate(self.s_A))
-        comments = (f"poreprobe {self.version} comparison; reference {self.labels[0]}; "
-                    f"radius set {self.radius_set}; model-based estimates; lengths in Å",)
+        header = (
+            ["s_A"]
+            + [f"radius_A[{m}]" for m in self.labels]
+            + [f"difference_A[{m}]" for m in self.labels[1:]]
+        )
+        rows = (
+            [float(s), *map(float, self.radius_A[:, k]), *map(float, self.difference_A[1:, k])]
+            for k, s in enumerate(self.s_A)
+        )
+        comments = (
+            f"poreprobe {self.version} comparison; reference {self.labels[0]}; "
+            f"radius set {self.radius_set}; model-based estimates; lengths in Å",
+        )
         return to_csv(header, rows, path, comments)
 
 
@@ -223,16 +240,22 @@ def _fit_keys(atoms: Atoms, selection: str | None) -> dict[tuple, int]:
         idx = np.flatnonzero((atoms.kind == "polymer") & (atoms.name == "CA"))
     else:
         idx = select_indices(atoms, selection)
-    keys = zip(atoms.chain[idx].tolist(), atoms.resid[idx].tolist(), atoms.icode[idx].tolist(),
-               atoms.name[idx].tolist(), strict=True)
+    keys = zip(
+        atoms.chain[idx].tolist(),
+        atoms.resid[idx].tolist(),
+        atoms.icode[idx].tolist(),
+        atoms.name[idx].tolist(),
+        strict=True,
+    )
     out: dict[tuple, int] = {}
     for key, i in zip(keys, idx.tolist(), strict=True):
         out.setdefault(key, i)
     return out
 
 
-def align_model(model: Atoms, reference: Atoms, selection: str | None = None
-                ) -> tuple[Atoms, RigidTransform]:
+def align_model(
+    model: Atoms, reference: Atoms, selection: str | None = None
+) -> tuple[Atoms, RigidTransform]:
     """Superpose ``model`` onto ``reference`` on matched atoms (see module docstring).
 
     Returns
@@ -250,11 +273,15 @@ def align_model(model: Atoms, reference: Atoms, selection: str | None = None
     common = [k for k in ref_keys if k in mod_keys]
     what = f"selection {selection!r}" if selection else "polymer CA atoms"
     if len(common) < 3:
-        raise InputError(f"{model.source or 'model'} and {reference.source or 'reference'} "
-                         f"share {len(common)} atoms of the {what} (matched by chain, residue "
-                         "number and atom name); at least 3 are needed to align them")
-    fit = superpose(model.coords_A[[mod_keys[k] for k in common]],
-                    reference.coords_A[[ref_keys[k] for k in common]])
+        raise InputError(
+            f"{model.source or 'model'} and {reference.source or 'reference'} "
+            f"share {len(common)} atoms of the {what} (matched by chain, residue "
+            "number and atom name); at least 3 are needed to align them"
+        )
+    fit = superpose(
+        model.coords_A[[mod_keys[k] for k in common]],
+        reference.coords_A[[ref_keys[k] for k in common]],
+    )
     return model.with_coords(fit.apply(model.coords_A)), fit
 
 
@@ -262,25 +289,37 @@ def _match_shift(label, ref_prof, prof, k_ref, lined_by, window, prominence):
     s_ref, r_ref = float(ref_prof.s_A[k_ref]), float(ref_prof.radius_A[k_ref])
     level = prof.radius_A[k_ref]
     at_level = float(level - r_ref) if np.isfinite(level) else None
-    minima = find_constrictions(prof, constriction_radius_A=prof.max_radius_A,
-                                min_prominence_A=prominence)
-    near = [(abs(float(prof.s_A[k]) - s_ref), k) for k, _ in minima
-            if abs(float(prof.s_A[k]) - s_ref) <= window]
+    minima = find_constrictions(
+        prof, constriction_radius_A=prof.max_radius_A, min_prominence_A=prominence
+    )
+    near = [
+        (abs(float(prof.s_A[k]) - s_ref), k)
+        for k, _ in minima
+        if abs(float(prof.s_A[k]) - s_ref) <= window
+    ]
     if not near:
-        return ConstrictionShift(label, s_ref, r_ref, lined_by, None, None, None, None,
-                                 at_level)
+        return ConstrictionShift(label, s_ref, r_ref, lined_by, None, None, None, None, at_level)
     k = min(near)[1]
     s_k, r_k = float(prof.s_A[k]), float(prof.radius_A[k])
-    return ConstrictionShift(label, s_ref, r_ref, lined_by, s_k, r_k, s_k - s_ref, r_k - r_ref,
-                             at_level)
+    return ConstrictionShift(
+        label, s_ref, r_ref, lined_by, s_k, r_k, s_k - s_ref, r_k - r_ref, at_level
+    )
 
 
-def compare_models(models: Sequence[Atoms], *, reference_selection: str | None = None,
-                   axis: PoreAxis | None = None, radii: str | RadiusSet = "bondi",
-                   step_A: float = 0.2, margin_A: float = 2.0, max_radius_A: float = 20.0,
-                   constriction_radius_A: float = CONSTRICTION_RADIUS_A,
-                   min_prominence_A: float = MIN_PROMINENCE_A,
-                   match_window_A: float = MATCH_WINDOW_A, labels=None) -> ModelComparison:
+def compare_models(
+    models: Sequence[Atoms],
+    *,
+    reference_selection: str | None = None,
+    axis: PoreAxis | None = None,
+    radii: str | RadiusSet = "bondi",
+    step_A: float = 0.2,
+    margin_A: float = 2.0,
+    max_radius_A: float = 20.0,
+    constriction_radius_A: float = CONSTRICTION_RADIUS_A,
+    min_prominence_A: float = MIN_PROMINENCE_A,
+    match_window_A: float = MATCH_WINDOW_A,
+    labels=None,
+) -> ModelComparison:
     """Profile two or more models on one axial frame and report their differences.
 
     Parameters
@@ -326,7 +365,7 @@ def compare_models(models: Sequence[Atoms], *, reference_selection: str | None =
     names = _unique_labels(models, labels)
     reference = models[0]
     aligned = [reference]
-    fits = [RigidTransform(np.eye(3), np.zeros(3), 0.0, 0)]      # the reference stays put
+    fits = [RigidTransform(np.eye(3), np.zeros(3), 0.0, 0)]  # the reference stays put
     for m in models[1:]:
         moved, fit = align_model(m, reference, reference_selection)
         aligned.append(moved)
@@ -338,15 +377,17 @@ def compare_models(models: Sequence[Atoms], *, reference_selection: str | None =
     s_hi = max(float(axis.s_A(m.coords_A).max()) for m in aligned) + margin_A
     profiles: list[RadiusProfile] = []
     for m, r in zip(aligned, radii_per_model, strict=True):
-        prof = radius_profile(m, axis, radii_A=r, step_A=step_A, max_radius_A=max_radius_A,
-                              s_range_A=(s_lo, s_hi))
+        prof = radius_profile(
+            m, axis, radii_A=r, step_A=step_A, max_radius_A=max_radius_A, s_range_A=(s_lo, s_hi)
+        )
         profiles.append(replace(prof, radius_set=rset.name))
     radius = np.array([p.radius_A for p in profiles])
     difference = radius - radius[0]
 
     info = []
-    for k, (m, r, prof, fit) in enumerate(zip(aligned, radii_per_model, profiles, fits,
-                                              strict=True)):
+    for k, (m, r, prof, fit) in enumerate(
+        zip(aligned, radii_per_model, profiles, fits, strict=True)
+    ):
         if k == 0:
             angle, offset = 0.0, 0.0
         else:
@@ -355,23 +396,44 @@ def compare_models(models: Sequence[Atoms], *, reference_selection: str | None =
             rel = own.point_A - axis.point_A
             offset = float(np.linalg.norm(rel - (rel @ axis.direction) * axis.direction))
             if angle > AXIS_ANGLE_WARN_DEG or offset > AXIS_OFFSET_WARN_A:
-                warnings.warn(f"{names[k]}: its own pore axis is {angle:.1f} degrees and "
-                              f"{offset:.1f} Å away from the common axis after alignment; "
-                              "check the reference selection", QualityWarning, stacklevel=2)
-        info.append(AlignedModel(names[k], fit, angle, offset, float(prof.min_radius_A),
-                                 float(prof.min_s_A)))
+                warnings.warn(
+                    f"{names[k]}: its own pore axis is {angle:.1f} degrees and "
+                    f"{offset:.1f} Å away from the common axis after alignment; "
+                    "check the reference selection",
+                    QualityWarning,
+                    stacklevel=2,
+                )
+        info.append(
+            AlignedModel(
+                names[k], fit, angle, offset, float(prof.min_radius_A), float(prof.min_s_A)
+            )
+        )
 
-    lining = pore_lining(aligned[0], profiles[0], radii_A=radii_per_model[0],
-                         constriction_radius_A=constriction_radius_A,
-                         min_prominence_A=min_prominence_A)
+    lining = pore_lining(
+        aligned[0],
+        profiles[0],
+        radii_A=radii_per_model[0],
+        constriction_radius_A=constriction_radius_A,
+        min_prominence_A=min_prominence_A,
+    )
     shifts = []
     for con in lining.constrictions:
         k_ref = int(np.argmin(np.abs(profiles[0].s_A - con.s_A)))
         lined_by = "; ".join(g.text for g in con.groups)
         for k in range(1, len(aligned)):
-            shifts.append(_match_shift(names[k], profiles[0], profiles[k], k_ref, lined_by,
-                                       window, min_prominence_A))
+            shifts.append(
+                _match_shift(
+                    names[k], profiles[0], profiles[k], k_ref, lined_by, window, min_prominence_A
+                )
+            )
     return ModelComparison(
-        s_A=profiles[0].s_A.copy(), radius_A=radius, difference_A=difference, axis=axis,
-        models=tuple(info), shifts=tuple(shifts), reference_selection=reference_selection,
-        radius_set=rset.name, step_A=step_A)
+        s_A=profiles[0].s_A.copy(),
+        radius_A=radius,
+        difference_A=difference,
+        axis=axis,
+        models=tuple(info),
+        shifts=tuple(shifts),
+        reference_selection=reference_selection,
+        radius_set=rset.name,
+        step_A=step_A,
+    )

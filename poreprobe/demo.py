@@ -27,14 +27,17 @@ MIDDLE_PROBE_A = 2.5
 def demo_path(name: str = "demo_channel", suffix: str = "cif") -> str:
     """Path of a bundled demo file, e.g. ``demo_path("demo_closed", "pdb")``."""
     if name not in DEMO_FILES or suffix not in ("cif", "pdb"):
-        raise InputError(f"demo files are {', '.join(DEMO_FILES)} (.cif or .pdb; the "
-                         f"trajectory only .pdb); got {name}.{suffix}")
+        raise InputError(
+            f"demo files are {', '.join(DEMO_FILES)} (.cif or .pdb; the "
+            f"trajectory only .pdb); got {name}.{suffix}"
+        )
     file_name = f"{name}.{suffix}"
     try:  # installed: the files ship as package data
         path = importlib.resources.files("poreprobe.demo_structures") / file_name
     except ModuleNotFoundError:  # running from a source checkout
-        path = os.path.join(os.path.dirname(os.path.dirname(__file__)), "structures_demo",
-                            file_name)
+        path = os.path.join(
+            os.path.dirname(os.path.dirname(__file__)), "structures_demo", file_name
+        )
     if not os.path.isfile(path):
         raise InputError(f"demo file {file_name} is not installed")
     return os.fspath(path)
@@ -82,8 +85,10 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         plots.save_figure(ax, out(name))
         plt.close(ax.figure)
 
-    summary: dict = {"note": "model-based estimates on invented channels; invented bench "
-                             "numbers; not measurements"}
+    summary: dict = {
+        "note": "model-based estimates on invented channels; invented bench "
+        "numbers; not measurements"
+    }
     atoms, axis = _load("demo_channel")
     prof = radius_profile(atoms, axis)
     to_json(prof, out("profile.json"))
@@ -97,9 +102,12 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     to_json(report, out("check.json"))
     summary["verdict"] = report.verdict.verdict
     bands = plots.ion_reference_radii("K", ("crystal", "hydrated"))
-    figure(plots.plot_profile(prof, ion_radii=bands,
-                              constrictions=report.to_dict().get("constrictions")),
-           "profile.png")
+    figure(
+        plots.plot_profile(
+            prof, ion_radii=bands, constrictions=report.to_dict().get("constrictions")
+        ),
+        "profile.png",
+    )
 
     scans = {}
     for name in ("demo_channel", "demo_widened"):
@@ -109,17 +117,22 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     figure(plots.plot_probes(scans["demo_channel"]), "probes.png")
     summary["capture_radius_at_middle_probe_A"] = {
         name.removeprefix("demo_"): float(capture_radius_at(scan, MIDDLE_PROBE_A))
-        for name, scan in scans.items()}
+        for name, scan in scans.items()
+    }
     summary["middle_probe_radius_A"] = MIDDLE_PROBE_A
 
     diffusion = diffusion_coefficient("K")
-    bench = estimate_capture_radius(DEMO_CURRENT_PA, DEMO_CONC_MM,
-                                    diffusion.diffusion_m2_per_s,
-                                    current_sd_pA=DEMO_CURRENT_SD_PA)
+    bench = estimate_capture_radius(
+        DEMO_CURRENT_PA,
+        DEMO_CONC_MM,
+        diffusion.diffusion_m2_per_s,
+        current_sd_pA=DEMO_CURRENT_SD_PA,
+    )
     with warnings.catch_warnings():  # several crossings: the smallest is reported as best
         warnings.simplefilter("ignore")
-        match = match_scan(scans["demo_channel"], bench.capture_radius_A,
-                           bench.capture_radius_sd_A, ion="K")
+        match = match_scan(
+            scans["demo_channel"], bench.capture_radius_A, bench.capture_radius_sd_A, ion="K"
+        )
     match_json = {  # the layout of `poreprobe match --json`
         "note": "invented bench numbers (a demo, not a measurement); model estimates",
         "capture_radius_A": bench.capture_radius_A,
@@ -127,7 +140,9 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         "diffusion_m2_s": diffusion.diffusion_m2_per_s,
         "probe_radius_A_best": match.best_probe_radius_A,
         "probe_radius_A_intervals": [list(iv) for iv in match.intervals_A],
-        "capture": bench.to_dict(), "diffusion": diffusion.to_dict(), "match": match.to_dict(),
+        "capture": bench.to_dict(),
+        "diffusion": diffusion.to_dict(),
+        "match": match.to_dict(),
     }
     to_json(match_json, out("match.json"))
     figure(plots.plot_capture(scans["demo_channel"], match=match_json), "capture.png")
@@ -151,8 +166,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     labels = ("channel", "widened F5A", "closed")
     comparison = compare_models([atoms, widened, closed], labels=labels)
     to_json(comparison, out("compare.json"))
-    overlay = [{"profile": {"s_A": comparison.s_A, "radius_A": row}}
-               for row in comparison.radius_A]
+    overlay = [{"profile": {"s_A": comparison.s_A, "radius_A": row}} for row in comparison.radius_A]
     figure(plots.plot_overlay(overlay, labels=labels, ion_radii=bands), "overlay.png")
 
     if trajectory:
@@ -160,8 +174,9 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
 
         with warnings.catch_warnings():  # a multi-model PDB has no time step
             warnings.simplefilter("ignore")
-            traj = profile_trajectory(demo_path("demo_breathing", "pdb"), step=2,
-                                      quiet=quiet, entry=ENTRY)
+            traj = profile_trajectory(
+                demo_path("demo_breathing", "pdb"), step=2, quiet=quiet, entry=ENTRY
+            )
         to_json(traj, out("trajectory.json"))
         figure(plots.plot_kymograph(traj), "kymograph.png")
         summary["trajectory_min_radius_mean_A"] = traj.min_radius_mean_A

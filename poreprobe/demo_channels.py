@@ -32,9 +32,33 @@ from scipy.optimize import least_squares
 
 from poreprobe.structure import Atoms, make_atoms
 
-INNER_SEQUENCE = ("SER", "GLU", "ALA", "ILE", "PHE", "LYS", "LEU", "TRP", "ALA", "ILE",
-                  "MET", "ALA", "LEU", "ARG", "VAL", "GLY", "ASN", "LEU", "ALA", "ILE",
-                  "TYR", "SER", "THR", "HIS", "ASP")
+INNER_SEQUENCE = (
+    "SER",
+    "GLU",
+    "ALA",
+    "ILE",
+    "PHE",
+    "LYS",
+    "LEU",
+    "TRP",
+    "ALA",
+    "ILE",
+    "MET",
+    "ALA",
+    "LEU",
+    "ARG",
+    "VAL",
+    "GLY",
+    "ASN",
+    "LEU",
+    "ALA",
+    "ILE",
+    "TYR",
+    "SER",
+    "THR",
+    "HIS",
+    "ASP",
+)
 INNER_FACING = 5
 INNER_OFFSET_A = 9.5
 CLOSED_SQUEEZE = 0.19
@@ -42,17 +66,52 @@ GATE_RESID = 5
 FILTER_LENGTH = 5
 FILTER_O_RADIUS_A = 2.95
 FILTER_RISE_A = 3.4
-TURRET_SEQUENCE = ("SER", "PRO", "GLU", "ALA", "LEU", "LYS", "ALA", "ALA", "GLU", "SER",
-                   "ALA", "LYS")
+TURRET_SEQUENCE = (
+    "SER",
+    "PRO",
+    "GLU",
+    "ALA",
+    "LEU",
+    "LYS",
+    "ALA",
+    "ALA",
+    "GLU",
+    "SER",
+    "ALA",
+    "LYS",
+)
 TURRET_FACING = 7
 TURRET_OFFSET_A = 15.0
-OUTER_SEQUENCE = ("MET", "ALA", "LEU", "ILE", "GLY", "ALA", "VAL", "LEU", "ALA", "PHE",
-                  "ILE", "ALA", "GLY", "LEU", "VAL", "ALA", "ILE", "LEU", "GLY", "ALA",
-                  "VAL", "PHE", "LEU", "ALA", "LYS")
+OUTER_SEQUENCE = (
+    "MET",
+    "ALA",
+    "LEU",
+    "ILE",
+    "GLY",
+    "ALA",
+    "VAL",
+    "LEU",
+    "ALA",
+    "PHE",
+    "ILE",
+    "ALA",
+    "GLY",
+    "LEU",
+    "VAL",
+    "ALA",
+    "ILE",
+    "LEU",
+    "GLY",
+    "ALA",
+    "VAL",
+    "PHE",
+    "LEU",
+    "ALA",
+    "LYS",
+)
 OUTER_FACING = 13
 OUTER_OFFSET_A = 17.0
-POREHELIX_SEQUENCE = ("ALA", "ALA", "GLY", "ALA", "SER", "ALA", "ALA", "GLY", "ALA",
-                      "SER")
+POREHELIX_SEQUENCE = ("ALA", "ALA", "GLY", "ALA", "SER", "ALA", "ALA", "GLY", "ALA", "SER")
 POREHELIX_FACING = 6
 POREHELIX_OFFSET_A = 11.5
 MODEL_NAMES = ("channel", "widened", "closed")
@@ -81,23 +140,31 @@ def _filter_residue_geometry() -> tuple[np.ndarray, np.ndarray]:
 
     def residuals(x):
         n, ca = x[:3], x[3:]
-        return np.array([
-            np.linalg.norm(n - c_prev) - _C_N, np.linalg.norm(ca - n) - _N_CA,
-            np.linalg.norm(c_next - ca) - _CA_C,
-            (angle(c_prev, n, ca) - _ANGLES_DEG["C-N-CA"]) / 20,
-            (angle(n, ca, c_next) - _ANGLES_DEG["N-CA-C"]) / 20,
-            (angle(o_prev, c_prev, n) - (360 - _ANGLES_DEG["CA-C-O"] - _ANGLES_DEG["CA-C-N"]))
-            / 20,
-            (angle(o_next, c_next, ca) - _ANGLES_DEG["CA-C-O"]) / 20,
-        ])
+        return np.array(
+            [
+                np.linalg.norm(n - c_prev) - _C_N,
+                np.linalg.norm(ca - n) - _N_CA,
+                np.linalg.norm(c_next - ca) - _CA_C,
+                (angle(c_prev, n, ca) - _ANGLES_DEG["C-N-CA"]) / 20,
+                (angle(n, ca, c_next) - _ANGLES_DEG["N-CA-C"]) / 20,
+                (angle(o_prev, c_prev, n) - (360 - _ANGLES_DEG["CA-C-O"] - _ANGLES_DEG["CA-C-N"]))
+                / 20,
+                (angle(o_next, c_next, ca) - _ANGLES_DEG["CA-C-O"]) / 20,
+            ]
+        )
 
     start = np.array([0.7, 0.5, 1.1, 0.8, -0.4, 2.1])
     fit = least_squares(residuals, start, xtol=1e-12, ftol=1e-12)
     return fit.x[:3], fit.x[3:]
 
 
-def filter_ring(*, chains=("E", "F", "G", "H"), z_start_A: float = 20.0,
-                o_radius_A: float = FILTER_O_RADIUS_A, first_resid: int = 1) -> Atoms:
+def filter_ring(
+    *,
+    chains=("E", "F", "G", "H"),
+    z_start_A: float = 20.0,
+    o_radius_A: float = FILTER_O_RADIUS_A,
+    first_resid: int = 1,
+) -> Atoms:
     """Glycine strands whose carbonyl oxygens form stacked rings around the z axis."""
     n_local, ca_local = _filter_residue_geometry()
     rows, names, resids = [], [], []
@@ -115,15 +182,22 @@ def filter_ring(*, chains=("E", "F", "G", "H"), z_start_A: float = 20.0,
     coords, chain_ids = [], []
     for k, ch in enumerate(chains):
         angle = 2 * np.pi * k / len(chains) + np.pi / len(chains)
-        rot = np.array([[np.cos(angle), -np.sin(angle), 0], [np.sin(angle), np.cos(angle), 0],
-                        [0, 0, 1]])
+        rot = np.array(
+            [[np.cos(angle), -np.sin(angle), 0], [np.sin(angle), np.cos(angle), 0], [0, 0, 1]]
+        )
         coords.append(local @ rot.T)
         chain_ids += [ch] * len(local)
     n = len(chain_ids)
-    return make_atoms(np.vstack(coords), element=[nm[0] for nm in names] * len(chains),
-                      name=names * len(chains), resname=["GLY"] * n,
-                      resid=resids * len(chains), chain=chain_ids,
-                      b_factor=np.full(n, 25.0), source="invented filter ring")
+    return make_atoms(
+        np.vstack(coords),
+        element=[nm[0] for nm in names] * len(chains),
+        name=names * len(chains),
+        resname=["GLY"] * n,
+        resid=resids * len(chains),
+        chain=chain_ids,
+        b_factor=np.full(n, 25.0),
+        source="invented filter ring",
+    )
 
 
 def _merge(parts: list[Atoms], source: str) -> Atoms:
@@ -149,23 +223,40 @@ def build_model(variant: str = "channel") -> Atoms:
 
     if variant not in MODEL_NAMES:
         raise ValueError(f"variant must be one of {', '.join(MODEL_NAMES)}, got {variant!r}")
-    inner = helix_bundle(INNER_SEQUENCE, facing=INNER_FACING, offset_A=INNER_OFFSET_A,
-                         chains=("A", "B", "C", "D"))
+    inner = helix_bundle(
+        INNER_SEQUENCE, facing=INNER_FACING, offset_A=INNER_OFFSET_A, chains=("A", "B", "C", "D")
+    )
     if variant == "closed":
         inner = _squeezed(inner, CLOSED_SQUEEZE)
     if variant == "widened":
         inner = _mutate_to_alanine(inner, GATE_RESID, ("A", "B", "C", "D"))
     top = inner.coords_A[:, 2].max()
     filt = filter_ring(z_start_A=top + 2.5, first_resid=101)
-    turret = helix_bundle(TURRET_SEQUENCE, facing=TURRET_FACING, offset_A=TURRET_OFFSET_A,
-                          chains=("I", "J", "K", "L"), first_resid=201)
+    turret = helix_bundle(
+        TURRET_SEQUENCE,
+        facing=TURRET_FACING,
+        offset_A=TURRET_OFFSET_A,
+        chains=("I", "J", "K", "L"),
+        first_resid=201,
+    )
     shift = filt.coords_A[:, 2].max() + 3.0 - turret.coords_A[:, 2].min()
     turret = turret.with_coords(turret.coords_A + [0.0, 0.0, shift])
-    outer = _turned(helix_bundle(OUTER_SEQUENCE, facing=OUTER_FACING, offset_A=OUTER_OFFSET_A,
-                                 chains=("M", "N", "O", "P"), first_resid=301))
-    pore = helix_bundle(POREHELIX_SEQUENCE, facing=POREHELIX_FACING,
-                        offset_A=POREHELIX_OFFSET_A, chains=("Q", "R", "S", "T"),
-                        first_resid=401)
+    outer = _turned(
+        helix_bundle(
+            OUTER_SEQUENCE,
+            facing=OUTER_FACING,
+            offset_A=OUTER_OFFSET_A,
+            chains=("M", "N", "O", "P"),
+            first_resid=301,
+        )
+    )
+    pore = helix_bundle(
+        POREHELIX_SEQUENCE,
+        facing=POREHELIX_FACING,
+        offset_A=POREHELIX_OFFSET_A,
+        chains=("Q", "R", "S", "T"),
+        first_resid=401,
+    )
     # the filter strands sit at 45 degrees from the inner helices; the pore helices fill
     # the gaps between the strands, in line with the inner helices
     pore = pore.with_coords(pore.coords_A + [0.0, 0.0, filt.coords_A[:, 2].mean() + 1.0])
@@ -188,8 +279,9 @@ def _turned(atoms: Atoms, angle_deg: float = 45.0) -> Atoms:
     return atoms.with_coords(atoms.coords_A @ rot.T)
 
 
-def breathing_coordinates(atoms: Atoms, n_frames: int = 50, *, amplitude: float = 0.06,
-                          period_frames: int = 25) -> np.ndarray:
+def breathing_coordinates(
+    atoms: Atoms, n_frames: int = 50, *, amplitude: float = 0.06, period_frames: int = 25
+) -> np.ndarray:
     """Frames of an invented breathing motion, shape (n_frames, n_atoms, 3).
 
     The inner helices (chains A-D) move away from and towards the axis: their x and y

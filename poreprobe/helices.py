@@ -24,23 +24,59 @@ from poreprobe.structure import Atoms, make_atoms
 from poreprobe.superpose import rotate_about, superpose
 
 #: The test tetramer: 25 residues; SER 1, THR 5, LEU 12, PHE 19 and ALA 23 face the pore.
-SEQUENCE = ("SER", "GLU", "ALA", "ILE", "THR", "LYS", "PHE", "ALA", "GLY", "TRP", "MET", "LEU",
-            "ALA", "ARG", "ALA", "GLN", "ASN", "CYS", "VAL", "ALA", "TYR", "SER", "ALA", "HIS",
-            "ASP")
+SEQUENCE = (
+    "SER",
+    "GLU",
+    "ALA",
+    "ILE",
+    "THR",
+    "LYS",
+    "PHE",
+    "ALA",
+    "GLY",
+    "TRP",
+    "MET",
+    "LEU",
+    "ALA",
+    "ARG",
+    "ALA",
+    "GLN",
+    "ASN",
+    "CYS",
+    "VAL",
+    "ALA",
+    "TYR",
+    "SER",
+    "ALA",
+    "HIS",
+    "ASP",
+)
 FACING = 12
 
 _BOND = {"N-CA": 1.458, "CA-C": 1.525, "C-N": 1.329, "C-O": 1.231}
 _ANGLE = {"N-CA-C": 111.2, "CA-C-N": 116.2, "C-N-CA": 121.7, "CA-C-O": 120.5}
 _PHI, _PSI, _OMEGA = -57.8, -47.0, 180.0
 _CHI_ATOMS = {
-    1: {"default": ("N", "CA", "CB", "CG"), "ILE": ("N", "CA", "CB", "CG1"),
-        "VAL": ("N", "CA", "CB", "CG1"), "THR": ("N", "CA", "CB", "OG1"),
-        "SER": ("N", "CA", "CB", "OG"), "CYS": ("N", "CA", "CB", "SG")},
-    2: {"default": ("CA", "CB", "CG", "CD"), "ILE": ("CA", "CB", "CG1", "CD1"),
-        "LEU": ("CA", "CB", "CG", "CD1"), "PHE": ("CA", "CB", "CG", "CD1"),
-        "TYR": ("CA", "CB", "CG", "CD1"), "TRP": ("CA", "CB", "CG", "CD1"),
-        "HIS": ("CA", "CB", "CG", "ND1"), "MET": ("CA", "CB", "CG", "SD"),
-        "ASN": ("CA", "CB", "CG", "OD1"), "ASP": ("CA", "CB", "CG", "OD1")},
+    1: {
+        "default": ("N", "CA", "CB", "CG"),
+        "ILE": ("N", "CA", "CB", "CG1"),
+        "VAL": ("N", "CA", "CB", "CG1"),
+        "THR": ("N", "CA", "CB", "OG1"),
+        "SER": ("N", "CA", "CB", "OG"),
+        "CYS": ("N", "CA", "CB", "SG"),
+    },
+    2: {
+        "default": ("CA", "CB", "CG", "CD"),
+        "ILE": ("CA", "CB", "CG1", "CD1"),
+        "LEU": ("CA", "CB", "CG", "CD1"),
+        "PHE": ("CA", "CB", "CG", "CD1"),
+        "TYR": ("CA", "CB", "CG", "CD1"),
+        "TRP": ("CA", "CB", "CG", "CD1"),
+        "HIS": ("CA", "CB", "CG", "ND1"),
+        "MET": ("CA", "CB", "CG", "SD"),
+        "ASN": ("CA", "CB", "CG", "OD1"),
+        "ASP": ("CA", "CB", "CG", "OD1"),
+    },
 }
 
 
@@ -51,8 +87,9 @@ def _place(a, b, c, bond, angle_deg, torsion_deg):
     n = np.cross(b - a, bc)
     n /= np.linalg.norm(n)
     m = np.cross(n, bc)
-    d2 = bond * np.array([-np.cos(angle), np.sin(angle) * np.cos(torsion),
-                          np.sin(angle) * np.sin(torsion)])
+    d2 = bond * np.array(
+        [-np.cos(angle), np.sin(angle) * np.cos(torsion), np.sin(angle) * np.sin(torsion)]
+    )
     return c + d2[0] * bc + d2[1] * m + d2[2] * n
 
 
@@ -63,17 +100,25 @@ def _backbone(n_res: int) -> dict[str, np.ndarray]:
     c = ca + _BOND["CA-C"] * np.array([-np.cos(ang), np.sin(ang), 0])
     rows = {"N": [n_at], "CA": [ca], "C": [c]}
     for _ in range(1, n_res):
-        n_new = _place(rows["N"][-1], rows["CA"][-1], rows["C"][-1], _BOND["C-N"],
-                       _ANGLE["CA-C-N"], _PSI)
-        ca_new = _place(rows["CA"][-1], rows["C"][-1], n_new, _BOND["N-CA"], _ANGLE["C-N-CA"],
-                        _OMEGA)
+        n_new = _place(
+            rows["N"][-1], rows["CA"][-1], rows["C"][-1], _BOND["C-N"], _ANGLE["CA-C-N"], _PSI
+        )
+        ca_new = _place(
+            rows["CA"][-1], rows["C"][-1], n_new, _BOND["N-CA"], _ANGLE["C-N-CA"], _OMEGA
+        )
         c_new = _place(rows["C"][-1], n_new, ca_new, _BOND["CA-C"], _ANGLE["N-CA-C"], _PHI)
         rows["N"].append(n_new)
         rows["CA"].append(ca_new)
         rows["C"].append(c_new)
     out = {k: np.array(v) for k, v in rows.items()}
-    out["O"] = np.array([_place(out["N"][i], out["CA"][i], out["C"][i], _BOND["C-O"],
-                                _ANGLE["CA-C-O"], _PSI + 180.0) for i in range(n_res)])
+    out["O"] = np.array(
+        [
+            _place(
+                out["N"][i], out["CA"][i], out["C"][i], _BOND["C-O"], _ANGLE["CA-C-O"], _PSI + 180.0
+            )
+            for i in range(n_res)
+        ]
+    )
     return out
 
 
@@ -88,8 +133,11 @@ def _template(resname: str):
     elements = [str(e) for e in res.element[keep]]
     coords = np.array(res.coord[keep], dtype=float)
     index = {n: i for i, n in enumerate(names)}
-    bonds = [(index[str(res.atom_name[i])], index[str(res.atom_name[j])])
-             for i, j, _ in res.bonds.as_array() if keep[i] and keep[j]]
+    bonds = [
+        (index[str(res.atom_name[i])], index[str(res.atom_name[j])])
+        for i, j, _ in res.bonds.as_array()
+        if keep[i] and keep[j]
+    ]
     return names, elements, coords, bonds
 
 
@@ -128,8 +176,12 @@ def _set_chis(resname, names, bonds, coords, chis):
         idx = [index[q] for q in quad]
         now = _dihedral(*coords[idx])
         moving = _downstream(len(names), bonds, idx[1], idx[2])
-        coords[moving] = rotate_about(coords[moving], coords[idx[2]], coords[idx[2]] -
-                                      coords[idx[1]], np.radians(target - now))
+        coords[moving] = rotate_about(
+            coords[moving],
+            coords[idx[2]],
+            coords[idx[2]] - coords[idx[1]],
+            np.radians(target - now),
+        )
     return coords
 
 
@@ -146,7 +198,7 @@ def _helix_frame(bb):
     ref = np.eye(3)[int(np.argmin(np.abs(axis)))]
     e1 = np.cross(axis, ref)
     e1 /= np.linalg.norm(e1)
-    rot = np.array([e1, np.cross(axis, e1), axis])       # rows: new x, y, z
+    rot = np.array([e1, np.cross(axis, e1), axis])  # rows: new x, y, z
     z_mid = ((bb["CA"] - point) @ axis).mean()
 
     def to_frame(xyz):
@@ -159,9 +211,14 @@ def _helix_frame(bb):
 
 def _candidates(resname):
     chi1 = (-65.0, 180.0, 62.0)
-    chi2 = {"PHE": (90.0, 0.0), "TYR": (90.0, 0.0), "TRP": (95.0, -90.0, 0.0, 180.0),
-            "HIS": (90.0, -90.0, 180.0), "ASN": (-40.0, 30.0, 120.0),
-            "ASP": (-40.0, 30.0, 120.0)}.get(resname, (180.0, 65.0, -65.0))
+    chi2 = {
+        "PHE": (90.0, 0.0),
+        "TYR": (90.0, 0.0),
+        "TRP": (95.0, -90.0, 0.0, 180.0),
+        "HIS": (90.0, -90.0, 180.0),
+        "ASN": (-40.0, 30.0, 120.0),
+        "ASP": (-40.0, 30.0, 120.0),
+    }.get(resname, (180.0, 65.0, -65.0))
     if resname in ("ALA", "GLY", "PRO"):
         return [(None, None)]
     if resname in ("SER", "THR", "VAL", "CYS"):
@@ -170,8 +227,9 @@ def _candidates(resname):
 
 
 @functools.lru_cache(maxsize=4)
-def _bundle_arrays(offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=FACING,
-                   copies: int = 4):
+def _bundle_arrays(
+    offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=FACING, copies: int = 4
+):
     from scipy.spatial import cKDTree
 
     n_res = len(sequence)
@@ -184,8 +242,12 @@ def _bundle_arrays(offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=F
         """Helix-frame coordinates -> the four chains, shape (4, m, 3)."""
         one = rotate_about(np.atleast_2d(to_frame(xyz)), np.zeros(3), [0, 0, 1], turn)
         one = one + [offset_A, 0, 0]
-        return np.stack([rotate_about(one, np.zeros(3), [0, 0, 1], 2 * k * np.pi / copies)
-                         for k in range(copies)])
+        return np.stack(
+            [
+                rotate_about(one, np.zeros(3), [0, 0, 1], 2 * k * np.pi / copies)
+                for k in range(copies)
+            ]
+        )
 
     backbone_all = np.vstack([place(bb[a]).reshape(-1, 3) for a in ("N", "CA", "C", "O")])
     obstacles = [backbone_all]
@@ -195,8 +257,11 @@ def _bundle_arrays(offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=F
         index = {n: j for j, n in enumerate(names)}
         frame_idx = [index[a] for a in ("N", "CA", "C")]
         target = np.array([bb[a][i] for a in ("N", "CA", "C")])
-        side = [j for j, n in enumerate(names) if n not in ("N", "CA", "C", "O", "CB")
-                and elements[j] != "H"]
+        side = [
+            j
+            for j, n in enumerate(names)
+            if n not in ("N", "CA", "C", "O", "CB") and elements[j] != "H"
+        ]
         tree = cKDTree(np.vstack(obstacles))
         best, best_score = None, -np.inf
         for chis in _candidates(resname):
@@ -223,8 +288,9 @@ def _bundle_arrays(offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=F
             if elem == "H" and not hydrogens:
                 continue
             rows.append((name, elem, pos))
-        heavy_side = np.array([p for n, e, p in rows
-                               if e != "H" and n not in ("N", "CA", "C", "O")])
+        heavy_side = np.array(
+            [p for n, e, p in rows if e != "H" and n not in ("N", "CA", "C", "O")]
+        )
         if len(heavy_side):
             obstacles.append(place(heavy_side).reshape(-1, 3))
         per_residue.append(rows)
@@ -236,9 +302,17 @@ def _bundle_arrays(offset_A: float, hydrogens: bool, sequence=SEQUENCE, facing=F
     return place(coords), names, elements, resnames, resids
 
 
-def helix_bundle(sequence=SEQUENCE, *, facing: int = FACING, offset_A: float = 9.5,
-                 chains=("A", "B", "C", "D"), z_shift_A: float = 0.0, first_resid: int = 1,
-                 hydrogens: bool = False, source: str = "invented helix bundle") -> Atoms:
+def helix_bundle(
+    sequence=SEQUENCE,
+    *,
+    facing: int = FACING,
+    offset_A: float = 9.5,
+    chains=("A", "B", "C", "D"),
+    z_shift_A: float = 0.0,
+    first_resid: int = 1,
+    hydrogens: bool = False,
+    source: str = "invented helix bundle",
+) -> Atoms:
     """Copies of one ideal helix around the z axis, one chain each.
 
     Parameters
@@ -265,13 +339,19 @@ def helix_bundle(sequence=SEQUENCE, *, facing: int = FACING, offset_A: float = 9
     """
     chains = tuple(chains)
     coords, names, elements, resnames, resids = _bundle_arrays(
-        float(offset_A), bool(hydrogens), tuple(sequence), int(facing), len(chains))
+        float(offset_A), bool(hydrogens), tuple(sequence), int(facing), len(chains)
+    )
     n = len(names)
     resid_arr = np.array(resids) + (int(first_resid) - 1)
     b_factor = 30.0 + 10.0 * np.sin(0.7 * resid_arr)
     xyz = coords.reshape(-1, 3) + [0.0, 0.0, float(z_shift_A)]
     return make_atoms(
-        xyz, element=elements * len(chains), name=names * len(chains),
-        resname=resnames * len(chains), resid=np.tile(resid_arr, len(chains)),
-        chain=np.repeat(list(chains), n), b_factor=np.tile(b_factor, len(chains)), source=source,
+        xyz,
+        element=elements * len(chains),
+        name=names * len(chains),
+        resname=resnames * len(chains),
+        resid=np.tile(resid_arr, len(chains)),
+        chain=np.repeat(list(chains), n),
+        b_factor=np.tile(b_factor, len(chains)),
+        source=source,
     )

@@ -187,8 +187,9 @@ class AtomSpheres:
     def _nearest_by_class(self, pts: np.ndarray, k: int, workers: int):
         """Exact k smallest clearances from the k nearest atoms of every radius class."""
         values, indices = [], []
-        for radius, idx, tree in zip(self.class_radii_A, self._class_index, self._trees,
-                                     strict=True):
+        for radius, idx, tree in zip(
+            self.class_radii_A, self._class_index, self._trees, strict=True
+        ):
             kk = min(k, len(idx))
             dist, j = tree.query(pts, k=kk, workers=workers)
             dist, j = dist.reshape(len(pts), kk), j.reshape(len(pts), kk)

@@ -93,11 +93,19 @@ class LiningResidue:
         return f"{self.chain}:{self.resname}{self.resid}{self.icode}"
 
     def to_dict(self) -> dict:
-        return {"chain": self.chain, "resname": self.resname, "resid": self.resid,
-                "icode": self.icode, "s_min_A": self.s_min_A, "s_max_A": self.s_max_A,
-                "closest_A": self.closest_A, "closest_s_A": self.closest_s_A,
-                "closest_atom": self.closest_atom, "part": self.part,
-                "n_planes": self.n_planes}
+        return {
+            "chain": self.chain,
+            "resname": self.resname,
+            "resid": self.resid,
+            "icode": self.icode,
+            "s_min_A": self.s_min_A,
+            "s_max_A": self.s_max_A,
+            "closest_A": self.closest_A,
+            "closest_s_A": self.closest_s_A,
+            "closest_atom": self.closest_atom,
+            "part": self.part,
+            "n_planes": self.n_planes,
+        }
 
 
 @dataclass(frozen=True)
@@ -126,13 +134,22 @@ class ResidueGroup:
         name = f"{self.resname} {self.resid}{self.icode}"
         if len(self.chains) == 1:
             return f"{name} {self.part} (chain {self.chains[0]})"
-        plural = {"side chain": "side chains", "backbone": "backbone",
-                  "side chain and backbone": "side chains and backbone"}[self.part]
+        plural = {
+            "side chain": "side chains",
+            "backbone": "backbone",
+            "side chain and backbone": "side chains and backbone",
+        }[self.part]
         return f"ring of {len(self.chains)} x {name} {plural}"
 
     def to_dict(self) -> dict:
-        return {"resname": self.resname, "resid": self.resid, "icode": self.icode,
-                "chains": list(self.chains), "part": self.part, "text": self.text}
+        return {
+            "resname": self.resname,
+            "resid": self.resid,
+            "icode": self.icode,
+            "chains": list(self.chains),
+            "part": self.part,
+            "text": self.text,
+        }
 
 
 @dataclass(frozen=True)
@@ -164,9 +181,14 @@ class Constriction:
         return f"s = {self.s_A:.1f} Å, radius {self.radius_A:.2f} Å: {lined}"
 
     def to_dict(self) -> dict:
-        return {"s_A": self.s_A, "radius_A": self.radius_A, "prominence_A": self.prominence_A,
-                "residues": list(self.residues), "groups": [g.to_dict() for g in self.groups],
-                "text": self.text}
+        return {
+            "s_A": self.s_A,
+            "radius_A": self.radius_A,
+            "prominence_A": self.prominence_A,
+            "residues": list(self.residues),
+            "groups": [g.to_dict() for g in self.groups],
+            "text": self.text,
+        }
 
 
 @dataclass(frozen=True)
@@ -223,9 +245,18 @@ class PoreLining:
         out = []
         for k in np.unique(self.plane_index):
             here = self.plane_index == k
-            out.append({"s_A": float(self.s_A[k]), "residues": list(dict.fromkeys(
-                self.contact_residue[here][np.argsort(self.gap_A[here], kind="stable")]
-                .tolist()))})
+            out.append(
+                {
+                    "s_A": float(self.s_A[k]),
+                    "residues": list(
+                        dict.fromkeys(
+                            self.contact_residue[here][
+                                np.argsort(self.gap_A[here], kind="stable")
+                            ].tolist()
+                        )
+                    ),
+                }
+            )
         return out
 
     def labels(self) -> tuple[str, ...]:
@@ -233,13 +264,17 @@ class PoreLining:
         return tuple(r.label for r in self.residues)
 
     def to_dict(self) -> dict:
-        return {"version": self.version, "source": self.source, "radius_set": self.radius_set,
-                "lining_distance_A": self.lining_distance_A,
-                "constriction_radius_A": self.constriction_radius_A,
-                "min_prominence_A": self.min_prominence_A,
-                "lining": [r.to_dict() for r in self.residues],
-                "constrictions": [c.to_dict() for c in self.constrictions],
-                "levels": self.levels()}
+        return {
+            "version": self.version,
+            "source": self.source,
+            "radius_set": self.radius_set,
+            "lining_distance_A": self.lining_distance_A,
+            "constriction_radius_A": self.constriction_radius_A,
+            "min_prominence_A": self.min_prominence_A,
+            "lining": [r.to_dict() for r in self.residues],
+            "constrictions": [c.to_dict() for c in self.constrictions],
+            "levels": self.levels(),
+        }
 
 
 def _resolve_radii(atoms: Atoms, profile: RadiusProfile, radii, radii_A) -> np.ndarray:
@@ -250,14 +285,21 @@ def _resolve_radii(atoms: Atoms, profile: RadiusProfile, radii, radii_A) -> np.n
         return radii_A
     if radii is None:
         if profile.radius_set not in RADIUS_SETS:
-            raise InputError(f"the profile used radius set {profile.radius_set!r}; pass the "
-                             "same radii (radii= or radii_A=) to find the lining atoms")
+            raise InputError(
+                f"the profile used radius set {profile.radius_set!r}; pass the "
+                "same radii (radii= or radii_A=) to find the lining atoms"
+            )
         radii = profile.radius_set
     return atom_radii_A(atoms, radii)
 
 
-def lining_contacts(coords_A: np.ndarray, radii_A: np.ndarray, centres_A: np.ndarray,
-                    radius_A: np.ndarray, distance_A: float):
+def lining_contacts(
+    coords_A: np.ndarray,
+    radii_A: np.ndarray,
+    centres_A: np.ndarray,
+    radius_A: np.ndarray,
+    distance_A: float,
+):
     """All (plane, atom) pairs with ``|x - c| - r - R <= distance_A``.
 
     Parameters
@@ -285,8 +327,9 @@ def lining_contacts(coords_A: np.ndarray, radii_A: np.ndarray, centres_A: np.nda
     counts = np.array([len(f) for f in found])
     plane = np.repeat(ok, counts)
     atom = np.fromiter((i for f in found for i in f), dtype=np.int64, count=int(counts.sum()))
-    gap = (np.linalg.norm(coords_A[atom] - centres_A[plane], axis=1) - radii_A[atom]
-           - radius_A[plane])
+    gap = (
+        np.linalg.norm(coords_A[atom] - centres_A[plane], axis=1) - radii_A[atom] - radius_A[plane]
+    )
     keep = gap <= distance_A
     order = np.lexsort((gap[keep], plane[keep]))
     return plane[keep][order], atom[keep][order], gap[keep][order]
@@ -301,8 +344,10 @@ def _part(backbone_flags: np.ndarray) -> str:
 
 
 def _residue_keys(atoms: Atoms) -> np.ndarray:
-    return np.char.add(np.char.add(atoms.chain, "|"),
-                       np.char.add(atoms.resid.astype(str), np.char.add("|", atoms.icode)))
+    return np.char.add(
+        np.char.add(atoms.chain, "|"),
+        np.char.add(atoms.resid.astype(str), np.char.add("|", atoms.icode)),
+    )
 
 
 def _residue_table(atoms, s_A, radius_A, plane, atom, gap, backbone):
@@ -312,22 +357,31 @@ def _residue_table(atoms, s_A, radius_A, plane, atom, gap, backbone):
     for key in dict.fromkeys(res_keys.tolist()):
         sel = res_keys == key
         p, a, g = plane[sel], atom[sel], gap[sel]
-        approach = g + radius_A[p]          # distance centre -> atom surface
+        approach = g + radius_A[p]  # distance centre -> atom surface
         best = int(np.argmin(approach))
         i0 = a[best]
-        table.append(LiningResidue(
-            chain=str(atoms.chain[i0]), resname=str(atoms.resname[i0]),
-            resid=int(atoms.resid[i0]), icode=str(atoms.icode[i0]),
-            s_min_A=float(s_A[p].min()), s_max_A=float(s_A[p].max()),
-            closest_A=float(approach[best]), closest_s_A=float(s_A[p[best]]),
-            closest_atom=str(atoms.name[i0]), part=_part(backbone[np.unique(a)]),
-            n_planes=int(np.unique(p).size)))
+        table.append(
+            LiningResidue(
+                chain=str(atoms.chain[i0]),
+                resname=str(atoms.resname[i0]),
+                resid=int(atoms.resid[i0]),
+                icode=str(atoms.icode[i0]),
+                s_min_A=float(s_A[p].min()),
+                s_max_A=float(s_A[p].max()),
+                closest_A=float(approach[best]),
+                closest_s_A=float(s_A[p[best]]),
+                closest_atom=str(atoms.name[i0]),
+                part=_part(backbone[np.unique(a)]),
+                n_planes=int(np.unique(p).size),
+            )
+        )
     table.sort(key=lambda r: (r.s_min_A, r.chain, r.resid, r.icode))
     return tuple(table)
 
 
-def group_copies(atoms: Atoms, atom_index: np.ndarray, backbone: np.ndarray
-                 ) -> tuple[ResidueGroup, ...]:
+def group_copies(
+    atoms: Atoms, atom_index: np.ndarray, backbone: np.ndarray
+) -> tuple[ResidueGroup, ...]:
     """Group lining atoms into residues, copies of the same residue in other chains together.
 
     Groups keep the order in which ``atom_index`` first meets them (closest first).
@@ -338,16 +392,24 @@ def group_copies(atoms: Atoms, atom_index: np.ndarray, backbone: np.ndarray
         entry = groups.setdefault(key, {"chains": {}, "flags": []})
         entry["chains"].setdefault(str(atoms.chain[i]), None)
         entry["flags"].append(bool(backbone[i]))
-    return tuple(ResidueGroup(resname=k[0], resid=k[1], icode=k[2],
-                              chains=tuple(sorted(v["chains"])),
-                              part=_part(np.array(v["flags"])))
-                 for k, v in groups.items())
+    return tuple(
+        ResidueGroup(
+            resname=k[0],
+            resid=k[1],
+            icode=k[2],
+            chains=tuple(sorted(v["chains"])),
+            part=_part(np.array(v["flags"])),
+        )
+        for k, v in groups.items()
+    )
 
 
-def find_constrictions(profile: RadiusProfile, *,
-                       constriction_radius_A: float = CONSTRICTION_RADIUS_A,
-                       min_prominence_A: float = MIN_PROMINENCE_A
-                       ) -> list[tuple[int, float]]:
+def find_constrictions(
+    profile: RadiusProfile,
+    *,
+    constriction_radius_A: float = CONSTRICTION_RADIUS_A,
+    min_prominence_A: float = MIN_PROMINENCE_A,
+) -> list[tuple[int, float]]:
     """Plane indices and prominences of the constrictions of a profile.
 
     Parameters
@@ -366,8 +428,7 @@ def find_constrictions(profile: RadiusProfile, *,
     threshold = check_positive(constriction_radius_A, "constriction_radius_A")
     prominence = check_positive(min_prominence_A, "min_prominence_A", allow_zero=True)
     radius = np.asarray(profile.radius_A, dtype=float)
-    wide = max(float(np.nanmax(radius)) if np.isfinite(radius).any() else 0.0,
-               profile.max_radius_A)
+    wide = max(float(np.nanmax(radius)) if np.isfinite(radius).any() else 0.0, profile.max_radius_A)
     filled = np.where(np.isfinite(radius), radius, wide)
     # pad with open bulk so that a minimum at either end of the grid is found too
     padded = np.r_[wide, filled, wide]
@@ -380,11 +441,16 @@ def find_constrictions(profile: RadiusProfile, *,
     return out
 
 
-def pore_lining(atoms: Atoms, profile: RadiusProfile, *, radii: str | RadiusSet | None = None,
-                radii_A: np.ndarray | None = None,
-                lining_distance_A: float = LINING_DISTANCE_A,
-                constriction_radius_A: float = CONSTRICTION_RADIUS_A,
-                min_prominence_A: float = MIN_PROMINENCE_A) -> PoreLining:
+def pore_lining(
+    atoms: Atoms,
+    profile: RadiusProfile,
+    *,
+    radii: str | RadiusSet | None = None,
+    radii_A: np.ndarray | None = None,
+    lining_distance_A: float = LINING_DISTANCE_A,
+    constriction_radius_A: float = CONSTRICTION_RADIUS_A,
+    min_prominence_A: float = MIN_PROMINENCE_A,
+) -> PoreLining:
     """Residues lining the pore at every level of a profile, and the constrictions.
 
     Parameters
@@ -427,26 +493,43 @@ def pore_lining(atoms: Atoms, profile: RadiusProfile, *, radii: str | RadiusSet 
     """
     distance = check_positive(lining_distance_A, "lining_distance_A", allow_zero=True)
     if len(profile.nearest_atom) and int(profile.nearest_atom.max()) >= len(atoms):
-        raise InputError(f"the profile refers to atom {int(profile.nearest_atom.max())} but "
-                         f"only {len(atoms)} atoms were given; pass the atoms it was computed "
-                         "from")
+        raise InputError(
+            f"the profile refers to atom {int(profile.nearest_atom.max())} but "
+            f"only {len(atoms)} atoms were given; pass the atoms it was computed "
+            "from"
+        )
     radii_arr = _resolve_radii(atoms, profile, radii, radii_A)
     backbone = is_backbone(atoms.name, atoms.element)
-    plane, atom, gap = lining_contacts(atoms.coords_A, radii_arr, profile.center_A,
-                                       profile.radius_A, distance)
+    plane, atom, gap = lining_contacts(
+        atoms.coords_A, radii_arr, profile.center_A, profile.radius_A, distance
+    )
     table = _residue_table(atoms, profile.s_A, profile.radius_A, plane, atom, gap, backbone)
     constrictions = []
-    for k, prom in find_constrictions(profile, constriction_radius_A=constriction_radius_A,
-                                      min_prominence_A=min_prominence_A):
+    for k, prom in find_constrictions(
+        profile, constriction_radius_A=constriction_radius_A, min_prominence_A=min_prominence_A
+    ):
         here = atom[plane == k]
         labels = tuple(dict.fromkeys(atoms.residue_labels()[here].tolist()))
-        constrictions.append(Constriction(
-            s_A=float(profile.s_A[k]), radius_A=float(profile.radius_A[k]), prominence_A=prom,
-            residues=labels, groups=group_copies(atoms, here, backbone)))
+        constrictions.append(
+            Constriction(
+                s_A=float(profile.s_A[k]),
+                radius_A=float(profile.radius_A[k]),
+                prominence_A=prom,
+                residues=labels,
+                groups=group_copies(atoms, here, backbone),
+            )
+        )
     return PoreLining(
-        residues=table, constrictions=tuple(constrictions), plane_index=plane,
-        atom_index=atom, gap_A=gap, contact_residue=atoms.residue_labels()[atom].astype(str),
+        residues=table,
+        constrictions=tuple(constrictions),
+        plane_index=plane,
+        atom_index=atom,
+        gap_A=gap,
+        contact_residue=atoms.residue_labels()[atom].astype(str),
         s_A=np.asarray(profile.s_A, dtype=float).copy(),
-        lining_distance_A=distance, constriction_radius_A=float(constriction_radius_A),
-        min_prominence_A=float(min_prominence_A), radius_set=profile.radius_set,
-        source=atoms.source)
+        lining_distance_A=distance,
+        constriction_radius_A=float(constriction_radius_A),
+        min_prominence_A=float(min_prominence_A),
+        radius_set=profile.radius_set,
+        source=atoms.source,
+    )

@@ -66,10 +66,14 @@ class IonRadiusComparison:
         def num(x):
             return None if not math.isfinite(x) else float(x)
 
-        return {"kind": self.kind, "radius_A": self.radius_A,
-                "in_scan_range": self.in_scan_range,
-                "capture_radius_A": num(self.capture_radius_A),
-                "deviation_sd": num(self.deviation_sd), "within_band": self.within_band}
+        return {
+            "kind": self.kind,
+            "radius_A": self.radius_A,
+            "in_scan_range": self.in_scan_range,
+            "capture_radius_A": num(self.capture_radius_A),
+            "deviation_sd": num(self.deviation_sd),
+            "within_band": self.within_band,
+        }
 
 
 @dataclass(frozen=True)
@@ -137,7 +141,7 @@ class CaptureMatch:
             "version": self.version,
             "source": self.source,
             "note": "comparison of two model estimates; the curve is linear between scanned "
-                    "probe radii and is not extrapolated",
+            "probe radii and is not extrapolated",
             "measured_capture_radius_A": self.measured_capture_radius_A,
             "measured_sd_A": self.measured_sd_A,
             "probe_radius_A_best": self.best_probe_radius_A,
@@ -150,8 +154,10 @@ class CaptureMatch:
             "ion": self.ion,
             "ion_radii": [c.to_dict() for c in self.ion_radii],
             "fitting_ion_radii": list(self.fitting_ion_radii),
-            "curve": {"probe_radius_A": self.probe_radius_A.tolist(),
-                      "capture_radius_A": self.capture_radius_A.tolist()},
+            "curve": {
+                "probe_radius_A": self.probe_radius_A.tolist(),
+                "capture_radius_A": self.capture_radius_A.tolist(),
+            },
         }
 
 
@@ -162,8 +168,10 @@ def _as_curve(probe_radius_A, capture_radius_A) -> tuple[np.ndarray, np.ndarray]
     except (TypeError, ValueError) as exc:
         raise InputError("probe_radius_A and capture_radius_A must be numeric arrays") from exc
     if p.shape != c.shape:
-        raise InputError(f"probe_radius_A and capture_radius_A must have the same length, got "
-                         f"{p.size} and {c.size}")
+        raise InputError(
+            f"probe_radius_A and capture_radius_A must have the same length, got "
+            f"{p.size} and {c.size}"
+        )
     if p.size < 2:
         raise InputError(f"the capture curve needs at least 2 probe radii, got {p.size}")
     for name, arr in (("probe_radius_A", p), ("capture_radius_A", c)):
@@ -219,8 +227,15 @@ def _crossings(p: np.ndarray, c: np.ndarray, target: float) -> list[float]:
     return out
 
 
-def match_capture_radius(probe_radius_A, capture_radius_A, measured_A: float, sd_A: float, *,
-                         ion: str | Ion | None = None, source: str = "") -> CaptureMatch:
+def match_capture_radius(
+    probe_radius_A,
+    capture_radius_A,
+    measured_A: float,
+    sd_A: float,
+    *,
+    ion: str | Ion | None = None,
+    source: str = "",
+) -> CaptureMatch:
     """Probe radii at which a capture curve agrees with a measured capture radius.
 
     Parameters
@@ -263,16 +278,24 @@ def match_capture_radius(probe_radius_A, capture_radius_A, measured_A: float, sd
         best, exact = crossings[0], True
         best_c = float(np.interp(best, p, c))
         if len(crossings) > 1:
-            warnings.warn(f"the capture curve equals r_c = {r:.3g} Å at {len(crossings)} probe "
-                          f"radii ({', '.join(f'{x:.2f}' for x in crossings)} Å); the smallest "
-                          "is reported as best", QualityWarning, stacklevel=2)
+            warnings.warn(
+                f"the capture curve equals r_c = {r:.3g} Å at {len(crossings)} probe "
+                f"radii ({', '.join(f'{x:.2f}' for x in crossings)} Å); the smallest "
+                "is reported as best",
+                QualityWarning,
+                stacklevel=2,
+            )
     else:
         k = int(np.argmin(np.abs(c - r)))
         best, exact, best_c = float(p[k]), False, float(c[k])
     if not intervals:
-        warnings.warn(f"no scanned probe radius gives a capture radius within {r:.3g} ± "
-                      f"{sd:.2g} Å (curve spans {c.min():.3g} to {c.max():.3g} Å); the best "
-                      "probe radius is only the nearest point", QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"no scanned probe radius gives a capture radius within {r:.3g} ± "
+            f"{sd:.2g} Å (curve spans {c.min():.3g} to {c.max():.3g} Å); the best "
+            "probe radius is only the nearest point",
+            QualityWarning,
+            stacklevel=2,
+        )
 
     comparisons: list[IonRadiusComparison] = []
     if ion_obj is not None:
@@ -282,19 +305,29 @@ def match_capture_radius(probe_radius_A, capture_radius_A, measured_A: float, sd
             cap = float(np.interp(radius, p, c)) if inside else math.nan
             dev = (cap - r) / sd if inside and sd > 0 else math.nan
             within = inside and any(a - _TOL_A <= radius <= b + _TOL_A for a, b in intervals)
-            comparisons.append(IonRadiusComparison(kind, float(radius), bool(inside), cap, dev,
-                                                   bool(within)))
+            comparisons.append(
+                IonRadiusComparison(kind, float(radius), bool(inside), cap, dev, bool(within))
+            )
     return CaptureMatch(
-        probe_radius_A=p, capture_radius_A=c, measured_capture_radius_A=r, measured_sd_A=sd,
-        intervals_A=intervals, intervals_at_scan_end=at_end, best_probe_radius_A=float(best),
-        best_exact=exact, best_capture_radius_A=best_c, crossings_A=tuple(crossings),
-        ion=ion_obj.symbol if ion_obj is not None else None, ion_radii=tuple(comparisons),
+        probe_radius_A=p,
+        capture_radius_A=c,
+        measured_capture_radius_A=r,
+        measured_sd_A=sd,
+        intervals_A=intervals,
+        intervals_at_scan_end=at_end,
+        best_probe_radius_A=float(best),
+        best_exact=exact,
+        best_capture_radius_A=best_c,
+        crossings_A=tuple(crossings),
+        ion=ion_obj.symbol if ion_obj is not None else None,
+        ion_radii=tuple(comparisons),
         source=source,
     )
 
 
-def match_scan(scan, measured_A: float, sd_A: float, *, ion: str | Ion | None = None
-               ) -> CaptureMatch:
+def match_scan(
+    scan, measured_A: float, sd_A: float, *, ion: str | Ion | None = None
+) -> CaptureMatch:
     """:func:`match_capture_radius` on a probe-size scan result.
 
     ``scan`` is anything with ``probe_radius_A`` and ``capture_radius_A`` arrays
@@ -309,9 +342,18 @@ def match_scan(scan, measured_A: float, sd_A: float, *, ion: str | Ion | None = 
         raise InputError("scan must have probe_radius_A and capture_radius_A arrays") from exc
     undefined = ~np.isfinite(c)
     if undefined.any() and p.shape == c.shape:
-        warnings.warn("capture radius undefined for probe radii "
-                      f"{', '.join(f'{x:g}' for x in p[undefined])} Å; left out of the match",
-                      QualityWarning, stacklevel=2)
+        warnings.warn(
+            "capture radius undefined for probe radii "
+            f"{', '.join(f'{x:g}' for x in p[undefined])} Å; left out of the match",
+            QualityWarning,
+            stacklevel=2,
+        )
         p, c = p[~undefined], c[~undefined]
-    return match_capture_radius(p, c, measured_A, sd_A, ion=ion,
-                                source=str(getattr(scan, "source", "") or "probe-size scan"))
+    return match_capture_radius(
+        p,
+        c,
+        measured_A,
+        sd_A,
+        ion=ion,
+        source=str(getattr(scan, "source", "") or "probe-size scan"),
+    )

@@ -64,8 +64,9 @@ class DaskClientBackend(BackendBase):
     ...     ana.run(backend=DaskClientBackend(client), unsupported_backend=True)
     """
 
-    def __init__(self, client, n_workers: int | None = None, *, quiet: bool = True,
-                 desc: str = "tasks"):
+    def __init__(
+        self, client, n_workers: int | None = None, *, quiet: bool = True, desc: str = "tasks"
+    ):
         self.client = client
         self.quiet = quiet
         self.desc = desc
@@ -78,7 +79,8 @@ class DaskClientBackend(BackendBase):
 
         checks = super()._get_checks()
         checks[isinstance(self.client, Client)] = (
-            f"client must be a dask.distributed.Client, got {type(self.client).__name__}")
+            f"client must be a dask.distributed.Client, got {type(self.client).__name__}"
+        )
         return checks
 
     def apply(self, func: Callable, computations: list) -> list:
@@ -104,8 +106,12 @@ class SerialBackend(BackendSerial):
         super().__init__(n_workers)
 
     def apply(self, func: Callable, computations: list) -> list:
-        return [func(task) for task in progress(computations, total=len(computations),
-                                                desc=self.desc, quiet=self.quiet)]
+        return [
+            func(task)
+            for task in progress(
+                computations, total=len(computations), desc=self.desc, quiet=self.quiet
+            )
+        ]
 
 
 class ProcessPoolBackend(BackendMultiprocessing):
@@ -123,8 +129,14 @@ class ProcessPoolBackend(BackendMultiprocessing):
         from multiprocessing import Pool
 
         with Pool(processes=self.n_workers) as pool:
-            return list(progress(pool.imap(func, computations), total=len(computations),
-                                 desc=self.desc, quiet=self.quiet))
+            return list(
+                progress(
+                    pool.imap(func, computations),
+                    total=len(computations),
+                    desc=self.desc,
+                    quiet=self.quiet,
+                )
+            )
 
 
 def _count_workers(client) -> int:
@@ -132,10 +144,15 @@ def _count_workers(client) -> int:
 
 
 @contextlib.contextmanager
-def open_backend(name: str = "serial", *, n_workers: int | None = 1,
-                 scheduler: str | None = None, quiet: bool = True,
-                 desc: str = "tasks", connect_timeout_s: float = 10.0
-                 ) -> Iterator[BackendBase]:
+def open_backend(
+    name: str = "serial",
+    *,
+    n_workers: int | None = 1,
+    scheduler: str | None = None,
+    quiet: bool = True,
+    desc: str = "tasks",
+    connect_timeout_s: float = 10.0,
+) -> Iterator[BackendBase]:
     """A ready MDAnalysis backend for ``name``; cleans up what it started.
 
     Parameters
@@ -181,20 +198,27 @@ def open_backend(name: str = "serial", *, n_workers: int | None = 1,
 
     with _quiet_logger("distributed"):
         if scheduler is None:
-            with LocalCluster(n_workers=n_workers or 1, threads_per_worker=1, processes=True,
-                              dashboard_address=None, scheduler_kwargs={"dashboard": False},
-                              silence_logs=logging.ERROR) as cluster, \
-                    Client(cluster) as client:
+            with (
+                LocalCluster(
+                    n_workers=n_workers or 1,
+                    threads_per_worker=1,
+                    processes=True,
+                    dashboard_address=None,
+                    scheduler_kwargs={"dashboard": False},
+                    silence_logs=logging.ERROR,
+                ) as cluster,
+                Client(cluster) as client,
+            ):
                 yield DaskClientBackend(client, n_workers or 1, quiet=quiet, desc=desc)
             return
         if not isinstance(scheduler, str) or not scheduler.strip():
-            raise InputError(f"scheduler must be an address such as tcp://host:8786, "
-                             f"got {scheduler!r}")
+            raise InputError(
+                f"scheduler must be an address such as tcp://host:8786, got {scheduler!r}"
+            )
         try:
             client = Client(scheduler, timeout=f"{connect_timeout_s}s")
         except (OSError, TimeoutError, ValueError) as exc:
-            raise InputError(f"cannot connect to the dask scheduler at {scheduler}: {exc}") \
-                from exc
+            raise InputError(f"cannot connect to the dask scheduler at {scheduler}: {exc}") from exc
         try:
             yield DaskClientBackend(client, n_workers, quiet=quiet, desc=desc)
         finally:

@@ -119,8 +119,9 @@ def _linearise(spheres: AtomSpheres, c: np.ndarray, s: np.ndarray, k: int):
     return f, g
 
 
-def _strict_vertex(f: np.ndarray, g: np.ndarray, tol_A: float = 1e-6,
-                   margin: float = 0.02) -> np.ndarray:
+def _strict_vertex(
+    f: np.ndarray, g: np.ndarray, tol_A: float = 1e-6, margin: float = 0.02
+) -> np.ndarray:
     """Whether each centre is a strict local maximum to first order.
 
     True where the three smallest clearances are equal (within ``tol_A``) and the origin
@@ -141,8 +142,15 @@ def _strict_vertex(f: np.ndarray, g: np.ndarray, tol_A: float = 1e-6,
     return tied & inside
 
 
-def maximise_in_planes(spheres: AtomSpheres, s_A: np.ndarray, start_A: np.ndarray,
-                       cap_A: float, *, delta_A: float = 1.0, max_steps: int = 200):
+def maximise_in_planes(
+    spheres: AtomSpheres,
+    s_A: np.ndarray,
+    start_A: np.ndarray,
+    cap_A: float,
+    *,
+    delta_A: float = 1.0,
+    max_steps: int = 200,
+):
     """Climb to a local maximum of the clearance in each plane.
 
     Parameters
@@ -200,8 +208,9 @@ def maximise_in_planes(spheres: AtomSpheres, s_A: np.ndarray, start_A: np.ndarra
             rows = idx[doubtful]
             if rows.size:
                 moved, c[rows], delta[rows] = _escape(spheres, c[rows], s[rows], g[rows])
-                f[rows[moved]], g[rows[moved]] = _linearise(spheres, c[rows[moved]],
-                                                            s[rows[moved]], k)
+                f[rows[moved]], g[rows[moved]] = _linearise(
+                    spheres, c[rows[moved]], s[rows[moved]], k
+                )
                 stalled[np.flatnonzero(doubtful)[moved]] = False
         active[idx[stalled | reached]] = False
     return c, f[:, 0].copy()

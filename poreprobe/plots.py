@@ -57,13 +57,20 @@ LINE_PT = 1.0
 
 #: Okabe & Ito (2008) colour-blind-safe palette (hex values from memory).
 OKABE_ITO = {
-    "black": "#000000", "orange": "#E69F00", "sky_blue": "#56B4E9",
-    "bluish_green": "#009E73", "yellow": "#F0E442", "blue": "#0072B2",
-    "vermillion": "#D55E00", "reddish_purple": "#CC79A7",
+    "black": "#000000",
+    "orange": "#E69F00",
+    "sky_blue": "#56B4E9",
+    "bluish_green": "#009E73",
+    "yellow": "#F0E442",
+    "blue": "#0072B2",
+    "vermillion": "#D55E00",
+    "reddish_purple": "#CC79A7",
 }
 #: Order in which lines take colours (yellow is left out: too faint on white).
-LINE_COLORS = tuple(OKABE_ITO[k] for k in ("blue", "vermillion", "bluish_green",
-                                           "reddish_purple", "orange", "sky_blue", "black"))
+LINE_COLORS = tuple(
+    OKABE_ITO[k]
+    for k in ("blue", "vermillion", "bluish_green", "reddish_purple", "orange", "sky_blue", "black")
+)
 #: Greys of the reference bands, from the band nearest 0 (darkest: tightest) outwards;
 #: neutral, so they never compete with the data's colours.
 BAND_GREYS = ("#cfcfcf", "#e0e0e0", "#ececec", "#f5f5f5")
@@ -132,19 +139,23 @@ def house_rc() -> dict:
 
 def _styled(func):
     """Run a plot function inside the house rcParams."""
+
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         with mpl.rc_context(house_rc()):
             return func(*args, **kwargs)
+
     return wrapper
 
 
 # --------------------------------------------------------------------------- figures & files
 
+
 def _check_size_mm(width_mm, height_mm) -> tuple[float, float]:
     width = DEFAULT_WIDTH_MM if width_mm is None else check_range(width_mm, "width_mm", 20, 600)
-    height = DEFAULT_HEIGHT_MM if height_mm is None else check_range(height_mm, "height_mm",
-                                                                      20, 600)
+    height = (
+        DEFAULT_HEIGHT_MM if height_mm is None else check_range(height_mm, "height_mm", 20, 600)
+    )
     return width, height
 
 
@@ -178,8 +189,14 @@ def _axes(ax, width_mm=None, height_mm=None):
 
 def _legend_below(ax, ncols: int = 2):
     """A legend under the axes (for figures whose data fill the plot area)."""
-    return ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.2), ncols=ncols,
-                     frameon=False, handlelength=1.8, columnspacing=1.2)
+    return ax.legend(
+        loc="upper center",
+        bbox_to_anchor=(0.5, -0.2),
+        ncols=ncols,
+        frameon=False,
+        handlelength=1.8,
+        columnspacing=1.2,
+    )
 
 
 def _finish(ax, *, ygrid: bool = True):
@@ -197,13 +214,15 @@ def figure_format(path) -> str:
     """``"png"``, ``"svg"`` or ``"pdf"`` from a file name's suffix (InputError otherwise)."""
     suffix = os.path.splitext(os.fspath(path))[1].lower()
     if suffix not in FIGURE_SUFFIXES:
-        raise InputError(f"figure file must end in {', '.join(FIGURE_SUFFIXES)}; "
-                         f"got {os.fspath(path)!r}")
+        raise InputError(
+            f"figure file must end in {', '.join(FIGURE_SUFFIXES)}; got {os.fspath(path)!r}"
+        )
     return FIGURE_SUFFIXES[suffix]
 
 
-def check_figure_options(path, *, width_mm: float | None = None,
-                         height_mm: float | None = None, dpi: float = DEFAULT_DPI) -> None:
+def check_figure_options(
+    path, *, width_mm: float | None = None, height_mm: float | None = None, dpi: float = DEFAULT_DPI
+) -> None:
     """Validate a figure file name, size (mm) and resolution before drawing."""
     figure_format(path)
     _check_size_mm(width_mm, height_mm)
@@ -223,13 +242,18 @@ def save_figure(fig_or_ax, path, *, dpi: float = DEFAULT_DPI) -> None:
     """
     fmt = figure_format(path)
     dpi = check_range(dpi, "dpi", 50, 2400)
-    fig = fig_or_ax.figure if hasattr(fig_or_ax, "figure") and not isinstance(
-        fig_or_ax, Figure) else fig_or_ax
+    fig = (
+        fig_or_ax.figure
+        if hasattr(fig_or_ax, "figure") and not isinstance(fig_or_ax, Figure)
+        else fig_or_ax
+    )
     if not isinstance(fig, Figure):
         raise InputError(f"expected a matplotlib Figure or Axes, got {type(fig_or_ax).__name__}")
-    metadata = {"png": {"Software": f"poreprobe {__version__}"},
-                "svg": {"Date": None, "Creator": f"poreprobe {__version__}"},
-                "pdf": {"CreationDate": None, "Creator": f"poreprobe {__version__}"}}[fmt]
+    metadata = {
+        "png": {"Software": f"poreprobe {__version__}"},
+        "svg": {"Date": None, "Creator": f"poreprobe {__version__}"},
+        "pdf": {"CreationDate": None, "Creator": f"poreprobe {__version__}"},
+    }[fmt]
     buf = io.BytesIO()
     with mpl.rc_context(house_rc()):
         fig.savefig(buf, format=fmt, dpi=dpi, metadata=metadata)
@@ -244,8 +268,9 @@ def radius_colors(radius_A, *, vmin_A: float, vmax_A: float) -> np.ndarray:
     """
     vals = np.asarray(radius_A, dtype=float).reshape(-1)
     if not (np.isfinite(vmin_A) and np.isfinite(vmax_A)) or vmax_A <= vmin_A:
-        raise InputError(f"colour range must be finite with vmax_A > vmin_A, "
-                         f"got {vmin_A}, {vmax_A}")
+        raise InputError(
+            f"colour range must be finite with vmax_A > vmin_A, got {vmin_A}, {vmax_A}"
+        )
     cmap = mpl.colormaps[RADIUS_CMAP]
     rgba = cmap(np.clip((vals - vmin_A) / (vmax_A - vmin_A), 0, 1))
     rgba[~np.isfinite(vals)] = mpl.colors.to_rgba(OPEN_COLOR)
@@ -253,6 +278,7 @@ def radius_colors(radius_A, *, vmin_A: float, vmax_A: float) -> np.ndarray:
 
 
 # --------------------------------------------------------------------------- reading results
+
 
 def as_result_dict(result, what: str = "result") -> dict:
     """The JSON-ready dictionary of a result object, or the dictionary itself."""
@@ -264,8 +290,9 @@ def as_result_dict(result, what: str = "result") -> dict:
         return json.loads(to_json(result))
     if isinstance(result, Mapping):
         return dict(result)
-    raise InputError(f"{what} must be a poreprobe result or its JSON dictionary, "
-                     f"got {type(result).__name__}")
+    raise InputError(
+        f"{what} must be a poreprobe result or its JSON dictionary, got {type(result).__name__}"
+    )
 
 
 def _lookup(d: Mapping, paths: Sequence[str], what: str, *, required: bool = True):
@@ -279,8 +306,10 @@ def _lookup(d: Mapping, paths: Sequence[str], what: str, *, required: bool = Tru
         else:
             return node
     if required:
-        raise InputError(f"{what}: none of the keys {', '.join(paths)} is present "
-                         "(is this the right kind of poreprobe JSON?)")
+        raise InputError(
+            f"{what}: none of the keys {', '.join(paths)} is present "
+            "(is this the right kind of poreprobe JSON?)"
+        )
     return None
 
 
@@ -308,7 +337,8 @@ def profile_arrays(profile) -> dict:
     if not np.isfinite(r).any():
         raise InputError("profile.radius_A holds no finite radius (every plane open)")
     return {
-        "s_A": s, "radius_A": r,
+        "s_A": s,
+        "radius_A": r,
         "min_radius_A": _float_or_nan(d.get("min_radius_A")),
         "min_s_A": _float_or_nan(d.get("min_s_A")),
         "min_residues": list(d.get("min_residues") or ()),
@@ -340,9 +370,9 @@ def _runs(mask: np.ndarray) -> list[tuple[int, int]]:
     return list(zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1, strict=True))
 
 
-def ion_reference_radii(ions: Sequence[str] | str | None,
-                        kinds: Sequence[str] | str = ("crystal", "hydrated")
-                        ) -> list[tuple[str, float]]:
+def ion_reference_radii(
+    ions: Sequence[str] | str | None, kinds: Sequence[str] | str = ("crystal", "hydrated")
+) -> list[tuple[str, float]]:
     """Labelled reference radii (label, Å) from :mod:`poreprobe.ions`.
 
     Parameters
@@ -367,8 +397,9 @@ def ion_reference_radii(ions: Sequence[str] | str | None,
             kind = check_choice(kind.strip(), "ion radius kind", ION_RADIUS_KINDS)
             value = getattr(ion, f"{kind}_radius_A")
             kind_label = "Stokes" if kind == "stokes" else kind
-            out.append((f"{_ion_label(ion.symbol)} {kind_label} radius {value:.2f} Å",
-                        float(value)))
+            out.append(
+                (f"{_ion_label(ion.symbol)} {kind_label} radius {value:.2f} Å", float(value))
+            )
     return out
 
 
@@ -406,18 +437,32 @@ def _draw_reference_bands(ax, references):
     for rank, k in enumerate(order):
         label, value = references[k]
         if value > lower:
-            ax.axhspan(lower, value, color=BAND_GREYS[min(rank, len(BAND_GREYS) - 1)],
-                       linewidth=0, zorder=0.5, label=label)
+            ax.axhspan(
+                lower,
+                value,
+                color=BAND_GREYS[min(rank, len(BAND_GREYS) - 1)],
+                linewidth=0,
+                zorder=0.5,
+                label=label,
+            )
         ax.axhline(value, color=BAND_EDGE_COLOR, linewidth=0.5, zorder=0.6)
         lower = max(lower, value)
 
 
 # --------------------------------------------------------------------------- profile
 
+
 @_styled
-def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
-                 constrictions: Sequence[Mapping] | None = None, label: str | None = None,
-                 width_mm: float | None = None, height_mm: float | None = None):
+def plot_profile(
+    profile,
+    *,
+    ax=None,
+    ion_radii: Sequence[tuple[str, float]] = (),
+    constrictions: Sequence[Mapping] | None = None,
+    label: str | None = None,
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+):
     """Pore radius along s, with optional reference ion bands and lining residues.
 
     Parameters
@@ -453,20 +498,43 @@ def plot_profile(profile, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (
     for i, j in _runs(~np.isfinite(r)):
         lo = s[i] - (s[1] - s[0]) / 2 if len(s) > 1 else s[i]
         hi = s[j] + (s[1] - s[0]) / 2 if len(s) > 1 else s[j]
-        ax.axvspan(lo, hi, facecolor="none", edgecolor=OPEN_HATCH_COLOR, hatch="//////",
-                   linewidth=0, zorder=0.7)
-    line_label = label or (f"pore radius ({data['radius_set']} radii)" if data["radius_set"]
-                           else "pore radius")
+        ax.axvspan(
+            lo,
+            hi,
+            facecolor="none",
+            edgecolor=OPEN_HATCH_COLOR,
+            hatch="//////",
+            linewidth=0,
+            zorder=0.7,
+        )
+    line_label = label or (
+        f"pore radius ({data['radius_set']} radii)" if data["radius_set"] else "pore radius"
+    )
     ax.plot(s, r, color=LINE_COLORS[0], zorder=3, label=line_label)
     if constrictions is None:
-        constrictions = ([{"s_A": data["min_s_A"], "radius_A": data["min_radius_A"],
-                           "residues": data["min_residues"]}]
-                         if np.isfinite(data["min_radius_A"]) else [])
+        constrictions = (
+            [
+                {
+                    "s_A": data["min_s_A"],
+                    "radius_A": data["min_radius_A"],
+                    "residues": data["min_residues"],
+                }
+            ]
+            if np.isfinite(data["min_radius_A"])
+            else []
+        )
     top = np.nanmax(np.concatenate([r, [v for _, v in refs]]))
     ax.set_xlim(s[0], s[-1])
     if np.isfinite(r).any() and (~np.isfinite(r)).any():
-        ax.fill_between([], [], facecolor="none", edgecolor=OPEN_HATCH_COLOR, hatch="//////",
-                        linewidth=0, label="open to bulk")
+        ax.fill_between(
+            [],
+            [],
+            facecolor="none",
+            edgecolor=OPEN_HATCH_COLOR,
+            hatch="//////",
+            linewidth=0,
+            label="open to bulk",
+        )
     ax.set_ylim(0, top * 1.18)
     ax.set_xlabel(S_LABEL)
     ax.set_ylabel(RADIUS_LABEL)
@@ -486,8 +554,11 @@ def _same_constriction(s_A, radius_A, a: tuple, b: tuple) -> bool:
     """Whether the profile between constrictions a and b stays within a hair of both."""
     lo, hi = sorted((a[0], b[0]))
     between = radius_A[(s_A >= lo) & (s_A <= hi)]
-    return bool(between.size) and np.all(np.isfinite(between)) and float(
-        between.max()) <= max(a[1], b[1]) + _SAME_CONSTRICTION_A
+    return (
+        bool(between.size)
+        and np.all(np.isfinite(between))
+        and float(between.max()) <= max(a[1], b[1]) + _SAME_CONSTRICTION_A
+    )
 
 
 def _annotate_constrictions(ax, constrictions: Sequence[Mapping], s_A, radius_A) -> None:
@@ -500,10 +571,10 @@ def _annotate_constrictions(ax, constrictions: Sequence[Mapping], s_A, radius_A)
     is lifted to the next height in :data:`_LABEL_OFFSETS_PT`, and left out (the
     marker stays) when no height is free.
     """
-    ranked = sorted(constrictions, key=lambda c: (-float(c.get("prominence_A") or 0.0),
-                                                  float(c["radius_A"])))
-    items = [(float(c["s_A"]), float(c["radius_A"]), list(c.get("residues") or ()))
-             for c in ranked]
+    ranked = sorted(
+        constrictions, key=lambda c: (-float(c.get("prominence_A") or 0.0), float(c["radius_A"]))
+    )
+    items = [(float(c["s_A"]), float(c["radius_A"]), list(c.get("residues") or ())) for c in ranked]
     if not items:
         return
     renderer = _renderer(ax.figure)
@@ -511,8 +582,15 @@ def _annotate_constrictions(ax, constrictions: Sequence[Mapping], s_A, radius_A)
     placed, labelled = [], []
     for item in items:
         s_c, r_c, residues = item
-        ax.plot([s_c], [r_c], marker="v", color=OKABE_ITO["vermillion"], zorder=4,
-                markersize=4, linestyle="none")
+        ax.plot(
+            [s_c],
+            [r_c],
+            marker="v",
+            color=OKABE_ITO["vermillion"],
+            zorder=4,
+            markersize=4,
+            linestyle="none",
+        )
         if any(_same_constriction(s_A, radius_A, item, other) for other in labelled):
             continue
         labelled.append(item)
@@ -521,12 +599,28 @@ def _annotate_constrictions(ax, constrictions: Sequence[Mapping], s_A, radius_A)
         ha = "left" if where < 0.2 else "right" if where > 0.8 else "center"
         for offset in _LABEL_OFFSETS_PT:
             note = ax.annotate(
-                text, xy=(s_c, r_c), xytext=(0, offset), textcoords="offset points",
-                ha=ha, va="bottom", fontsize=SMALL_FONT_PT, zorder=5,
-                bbox={"boxstyle": "square,pad=0.15", "facecolor": "white", "alpha": 0.85,
-                      "edgecolor": "none"},
-                arrowprops={"arrowstyle": "-", "linewidth": 0.5, "color": "0.3",
-                            "shrinkA": 0, "shrinkB": 3})
+                text,
+                xy=(s_c, r_c),
+                xytext=(0, offset),
+                textcoords="offset points",
+                ha=ha,
+                va="bottom",
+                fontsize=SMALL_FONT_PT,
+                zorder=5,
+                bbox={
+                    "boxstyle": "square,pad=0.15",
+                    "facecolor": "white",
+                    "alpha": 0.85,
+                    "edgecolor": "none",
+                },
+                arrowprops={
+                    "arrowstyle": "-",
+                    "linewidth": 0.5,
+                    "color": "0.3",
+                    "shrinkA": 0,
+                    "shrinkB": 3,
+                },
+            )
             if renderer is None:
                 break
             # the text alone (an Annotation's own extent includes its leader line)
@@ -572,29 +666,38 @@ def trajectory_arrays(trajectory) -> dict:
     are enclosed).
     """
     d = as_result_dict(trajectory, "trajectory")
-    found = {k: _lookup(d, paths, "trajectory", required=k == "s_A")
-             for k, paths in _TRAJ_KEYS.items()}
+    found = {
+        k: _lookup(d, paths, "trajectory", required=k == "s_A") for k, paths in _TRAJ_KEYS.items()
+    }
     s = _floats(found["s_A"], "s_A")
     radius = found["radius_A"]
-    radius = None if radius is None else _floats(radius, "per_frame.radius_A (frames x levels)",
-                                                  2)
+    radius = None if radius is None else _floats(radius, "per_frame.radius_A (frames x levels)", 2)
     if radius is not None:
         _same_length("s_A", s, "per_frame.radius_A", radius)
     mean, sd = found["mean_A"], found["sd_A"]
     if mean is None or sd is None:
         if radius is None:
-            raise InputError("trajectory JSON holds neither per_frame.radius_A nor "
-                             "per_plane.mean_radius_A and per_plane.sd_radius_A")
+            raise InputError(
+                "trajectory JSON holds neither per_frame.radius_A nor "
+                "per_plane.mean_radius_A and per_plane.sd_radius_A"
+            )
         mean, sd = _nan_mean_sd(radius)
     mean, sd = _floats(mean, "mean_radius_A"), _floats(sd, "sd_radius_A")
     _same_length("s_A", s, "mean_radius_A", mean)
     _same_length("s_A", s, "sd_radius_A", sd)
     n = radius.shape[0] if radius is not None else d.get("n_frames")
     time, frames = found["time_ps"], found["frames"]
-    return {"s_A": s, "radius_A": radius, "mean_A": mean, "sd_A": sd, "n_frames": n,
-            "time_ps": None if time is None else _floats(time, "time_ps"),
-            "frames": None if frames is None else _floats(frames, "frames"),
-            "radius_set": d.get("radius_set") or "", "source": d.get("source") or ""}
+    return {
+        "s_A": s,
+        "radius_A": radius,
+        "mean_A": mean,
+        "sd_A": sd,
+        "n_frames": n,
+        "time_ps": None if time is None else _floats(time, "time_ps"),
+        "frames": None if frames is None else _floats(frames, "frames"),
+        "radius_set": d.get("radius_set") or "",
+        "source": d.get("source") or "",
+    }
 
 
 def _nan_mean_sd(radius: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -612,8 +715,9 @@ def _nan_mean_sd(radius: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def _is_trajectory(d: Mapping) -> bool:
     if "profile" in d or "s_A" not in d:
         return False
-    return any(_lookup(d, _TRAJ_KEYS[k], "", required=False) is not None
-               for k in ("radius_A", "mean_A"))
+    return any(
+        _lookup(d, _TRAJ_KEYS[k], "", required=False) is not None for k in ("radius_A", "mean_A")
+    )
 
 
 def common_grid(profiles: Sequence[dict]) -> tuple[np.ndarray, np.ndarray]:
@@ -634,9 +738,16 @@ def common_grid(profiles: Sequence[dict]) -> tuple[np.ndarray, np.ndarray]:
 
 
 @_styled
-def plot_overlay(results: Sequence, *, ax=None, labels: Sequence[str] | None = None,
-                 band: bool = False, ion_radii: Sequence[tuple[str, float]] = (),
-                 width_mm: float | None = None, height_mm: float | None = None):
+def plot_overlay(
+    results: Sequence,
+    *,
+    ax=None,
+    labels: Sequence[str] | None = None,
+    band: bool = False,
+    ion_radii: Sequence[tuple[str, float]] = (),
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+):
     """Several radius profiles on one axis, or a mean ± SD band.
 
     Parameters
@@ -680,19 +791,38 @@ def plot_overlay(results: Sequence, *, ax=None, labels: Sequence[str] | None = N
         if _is_trajectory(d):
             t = trajectory_arrays(d)
             s, mean, sd = t["s_A"], t["mean_A"], t["sd_A"]
-            ax.fill_between(s, mean - sd, mean + sd, color=color, alpha=0.3, linewidth=0,
-                            label=f"{name}: ± 1 SD", zorder=1)
-            ax.plot(s, mean, color=color, linestyle=LINE_STYLES[k % len(LINE_STYLES)],
-                    label=f"{name}: mean" + (f" of {t['n_frames']} frames"
-                                             if t["n_frames"] else ""), zorder=3)
+            ax.fill_between(
+                s,
+                mean - sd,
+                mean + sd,
+                color=color,
+                alpha=0.3,
+                linewidth=0,
+                label=f"{name}: ± 1 SD",
+                zorder=1,
+            )
+            ax.plot(
+                s,
+                mean,
+                color=color,
+                linestyle=LINE_STYLES[k % len(LINE_STYLES)],
+                label=f"{name}: mean" + (f" of {t['n_frames']} frames" if t["n_frames"] else ""),
+                zorder=3,
+            )
             lo, hi = min(lo, s[0]), max(hi, s[-1])
             top = max(top, np.nanmax(mean + np.nan_to_num(sd)))
         else:
             p = profile_arrays(d)
             profiles.append(p)
-            ax.plot(p["s_A"], p["radius_A"], color=color,
-                    linestyle=LINE_STYLES[k % len(LINE_STYLES)],
-                    linewidth=0.7 if band else LINE_PT, label=name, zorder=3)
+            ax.plot(
+                p["s_A"],
+                p["radius_A"],
+                color=color,
+                linestyle=LINE_STYLES[k % len(LINE_STYLES)],
+                linewidth=0.7 if band else LINE_PT,
+                label=name,
+                zorder=3,
+            )
             lo, hi = min(lo, p["s_A"][0]), max(hi, p["s_A"][-1])
             top = max(top, np.nanmax(p["radius_A"]))
     if band:
@@ -700,8 +830,16 @@ def plot_overlay(results: Sequence, *, ax=None, labels: Sequence[str] | None = N
             raise InputError("band=True needs at least two profiles")
         grid, radii = common_grid(profiles)
         mean, sd = _nan_mean_sd(radii)
-        ax.fill_between(grid, mean - sd, mean + sd, color=OKABE_ITO["black"], alpha=0.15,
-                        linewidth=0, label=f"mean ± 1 SD ({len(profiles)} profiles)", zorder=1)
+        ax.fill_between(
+            grid,
+            mean - sd,
+            mean + sd,
+            color=OKABE_ITO["black"],
+            alpha=0.15,
+            linewidth=0,
+            label=f"mean ± 1 SD ({len(profiles)} profiles)",
+            zorder=1,
+        )
         ax.plot(grid, mean, color=OKABE_ITO["black"], linewidth=LINE_PT, zorder=4)
         top = max(top, np.nanmax(mean + np.nan_to_num(sd)))
     ax.set_xlim(lo, hi)
@@ -713,6 +851,7 @@ def plot_overlay(results: Sequence, *, ax=None, labels: Sequence[str] | None = N
 
 
 # --------------------------------------------------------------------------- probe scan
+
 
 def scan_arrays(scan) -> dict:
     """Accessible-radius profiles and capture curve of a probe-size scan or its JSON.
@@ -740,14 +879,27 @@ def scan_arrays(scan) -> dict:
         _same_length("s_A", s, "accessible_radius_A", acc)
         if acc.shape[0] != len(p):
             raise InputError(f"accessible_radius_A has {acc.shape[0]} rows for {len(p)} probes")
-    return {"probe_radius_A": p, "capture_radius_A": c, "stop_s_A": stop,
-            "passes": flags["passes"], "enters": flags["enters"], "s_A": s,
-            "accessible_radius_A": acc, "radius_set": d.get("radius_set") or ""}
+    return {
+        "probe_radius_A": p,
+        "capture_radius_A": c,
+        "stop_s_A": stop,
+        "passes": flags["passes"],
+        "enters": flags["enters"],
+        "s_A": s,
+        "accessible_radius_A": acc,
+        "radius_set": d.get("radius_set") or "",
+    }
 
 
 @_styled
-def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
-                width_mm: float | None = None, height_mm: float | None = None):
+def plot_probes(
+    scan,
+    *,
+    ax=None,
+    ion_radii: Sequence[tuple[str, float]] = (),
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+):
     """Accessible-radius profiles for each probe size, coloured by probe radius.
 
     Parameters
@@ -766,8 +918,10 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     """
     data = scan_arrays(scan)
     if data["accessible_radius_A"] is None:
-        raise InputError("the scan JSON holds no accessible-radius profiles "
-                         "(profiles.s_A and profiles.accessible_radius_A)")
+        raise InputError(
+            "the scan JSON holds no accessible-radius profiles "
+            "(profiles.s_A and profiles.accessible_radius_A)"
+        )
     if not np.isfinite(data["accessible_radius_A"]).any():
         raise InputError("the scan's accessible-radius profiles hold no finite radius")
     ax = _axes(ax, width_mm, height_mm)
@@ -778,16 +932,33 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
     vmin, vmax = float(p.min()), float(p.max())
     norm = mpl.colors.Normalize(vmin, vmax if vmax > vmin else vmin + 1)
     cmap = mpl.colormaps[RADIUS_CMAP]
-    for k in np.argsort(p):            # larger probes (shorter reach) drawn on top
+    for k in np.argsort(p):  # larger probes (shorter reach) drawn on top
         ax.plot(s, acc[k], color=cmap(norm(p[k])), linewidth=0.8, zorder=3)
         stop = data["stop_s_A"][k]
         finite = np.isfinite(acc[k])
         if not passes[k] and np.isfinite(stop) and finite.any():
             y = np.interp(stop, s[finite], acc[k, finite])
-            ax.plot([stop], [y], marker="o", markersize=2.5, color=cmap(norm(p[k])),
-                    markeredgecolor="black", markeredgewidth=0.4, zorder=4)
-    ax.plot([], [], marker="o", markersize=2.5, color="white", markeredgecolor="black",
-            markeredgewidth=0.4, linestyle="none", label="stop level s*(p)")
+            ax.plot(
+                [stop],
+                [y],
+                marker="o",
+                markersize=2.5,
+                color=cmap(norm(p[k])),
+                markeredgecolor="black",
+                markeredgewidth=0.4,
+                zorder=4,
+            )
+    ax.plot(
+        [],
+        [],
+        marker="o",
+        markersize=2.5,
+        color="white",
+        markeredgecolor="black",
+        markeredgewidth=0.4,
+        linestyle="none",
+        label="stop level s*(p)",
+    )
     sm = mpl.cm.ScalarMappable(norm=norm, cmap=cmap)
     bar = ax.figure.colorbar(sm, ax=ax, pad=0.02, fraction=0.05, aspect=25)
     bar.set_label("Probe radius p (Å)")
@@ -804,6 +975,7 @@ def plot_probes(scan, *, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
 
 
 # --------------------------------------------------------------------------- capture
+
 
 def match_arrays(match) -> dict:
     """Measured capture radius band and matching probe intervals of a match result."""
@@ -823,18 +995,34 @@ def match_arrays(match) -> dict:
         if isinstance(item, Mapping) and item.get("radius_A") is not None:
             kind = str(item.get("kind", ""))
             kind = "Stokes" if kind.lower() == "stokes" else kind
-            refs.append((f"{_ion_label(str(ion))} {kind} radius {float(item['radius_A']):.2f} Å",
-                         float(item["radius_A"])))
-    return {"capture_radius_A": c, "capture_radius_sd_A": _float_or_nan(sd),
-            "probe_radius_A_best": _float_or_nan(best), "intervals": ivals,
-            "ion": ion, "ion_radii": refs,
-            "has_curve": _lookup(d, ["match.curve.probe_radius_A"], "match",
-                                 required=False) is not None}
+            refs.append(
+                (
+                    f"{_ion_label(str(ion))} {kind} radius {float(item['radius_A']):.2f} Å",
+                    float(item["radius_A"]),
+                )
+            )
+    return {
+        "capture_radius_A": c,
+        "capture_radius_sd_A": _float_or_nan(sd),
+        "probe_radius_A_best": _float_or_nan(best),
+        "intervals": ivals,
+        "ion": ion,
+        "ion_radii": refs,
+        "has_curve": _lookup(d, ["match.curve.probe_radius_A"], "match", required=False)
+        is not None,
+    }
 
 
 @_styled
-def plot_capture(scan=None, *, match=None, ax=None, ion_radii: Sequence[tuple[str, float]] = (),
-                 width_mm: float | None = None, height_mm: float | None = None):
+def plot_capture(
+    scan=None,
+    *,
+    match=None,
+    ax=None,
+    ion_radii: Sequence[tuple[str, float]] = (),
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+):
     """Capture radius versus probe radius, with the measured band and the matching probes.
 
     Parameters
@@ -859,11 +1047,13 @@ def plot_capture(scan=None, *, match=None, ax=None, ion_radii: Sequence[tuple[st
     if scan is None:
         if match is None:
             raise InputError("plot_capture needs a scan, or a match that carries its curve")
-        scan = {"capture": _lookup(as_result_dict(match, "match"), ["match.curve"],
-                                   "match (without a scan)")}
+        scan = {
+            "capture": _lookup(
+                as_result_dict(match, "match"), ["match.curve"], "match (without a scan)"
+            )
+        }
     data = scan_arrays(scan)
-    ax = _axes(ax, width_mm, CAPTURE_HEIGHT_MM if height_mm is None and ax is None
-               else height_mm)
+    ax = _axes(ax, width_mm, CAPTURE_HEIGHT_MM if height_mm is None and ax is None else height_mm)
     p, c = data["probe_radius_A"], data["capture_radius_A"]
     order = np.argsort(p)
     top = float(np.nanmax(c)) if np.isfinite(c).any() else 1.0
@@ -872,26 +1062,61 @@ def plot_capture(scan=None, *, match=None, ax=None, ion_radii: Sequence[tuple[st
         m = match_arrays(match)
         mc, msd = m["capture_radius_A"], m["capture_radius_sd_A"]
         if np.isfinite(msd) and msd > 0:
-            ax.axhspan(mc - msd, mc + msd, color=OKABE_ITO["sky_blue"], alpha=0.35,
-                       linewidth=0, zorder=0.5, label=f"measured {mc:.2f} ± {msd:.2f} Å")
-        ax.axhline(mc, color=OKABE_ITO["blue"], linewidth=0.7, linestyle="--", zorder=1,
-                   label=None if np.isfinite(msd) and msd > 0 else f"measured {mc:.2f} Å")
+            ax.axhspan(
+                mc - msd,
+                mc + msd,
+                color=OKABE_ITO["sky_blue"],
+                alpha=0.35,
+                linewidth=0,
+                zorder=0.5,
+                label=f"measured {mc:.2f} ± {msd:.2f} Å",
+            )
+        ax.axhline(
+            mc,
+            color=OKABE_ITO["blue"],
+            linewidth=0.7,
+            linestyle="--",
+            zorder=1,
+            label=None if np.isfinite(msd) and msd > 0 else f"measured {mc:.2f} Å",
+        )
         for k, (lo, hi) in enumerate(m["intervals"]):
-            ax.axvspan(lo, hi, color=OKABE_ITO["orange"], alpha=0.3, linewidth=0, zorder=0.6,
-                       label="matching probe radii" if k == 0 else None)
+            ax.axvspan(
+                lo,
+                hi,
+                color=OKABE_ITO["orange"],
+                alpha=0.3,
+                linewidth=0,
+                zorder=0.6,
+                label="matching probe radii" if k == 0 else None,
+            )
         if np.isfinite(m["probe_radius_A_best"]):
-            ax.axvline(m["probe_radius_A_best"], color=OKABE_ITO["vermillion"], linewidth=0.8,
-                       zorder=2, label=f"best p = {m['probe_radius_A_best']:.2f} Å")
+            ax.axvline(
+                m["probe_radius_A_best"],
+                color=OKABE_ITO["vermillion"],
+                linewidth=0.8,
+                zorder=2,
+                label=f"best p = {m['probe_radius_A_best']:.2f} Å",
+            )
         top = max(top, mc + (msd if np.isfinite(msd) else 0))
         if not refs:
             refs = m["ion_radii"]
     for k, (label, value) in enumerate(refs):
-        ax.axvline(value, color="0.35", linewidth=0.6,
-                   linestyle=LINE_STYLES[(k + 1) % len(LINE_STYLES)], zorder=1, label=label)
+        ax.axvline(
+            value,
+            color="0.35",
+            linewidth=0.6,
+            linestyle=LINE_STYLES[(k + 1) % len(LINE_STYLES)],
+            zorder=1,
+            label=label,
+        )
     ax.plot(p[order], c[order], color="black", linewidth=LINE_PT, zorder=3)
-    _capture_markers(ax, p[order], c[order],
-                     None if data["passes"] is None else data["passes"][order],
-                     None if data["enters"] is None else data["enters"][order])
+    _capture_markers(
+        ax,
+        p[order],
+        c[order],
+        None if data["passes"] is None else data["passes"][order],
+        None if data["enters"] is None else data["enters"][order],
+    )
     pad = 0.03 * (p.max() - p.min() or 1.0)
     ax.set_xlim(p.min() - pad, p.max() + pad)
     ax.set_ylim(0, top * 1.15)
@@ -907,19 +1132,25 @@ def _capture_markers(ax, p, c, passes, enters):
         ax.plot(p, c, "o", color="black", markersize=2.2, zorder=4, label="scanned probe radii")
         return
     enters = np.ones(p.shape, bool) if enters is None else enters
-    groups = [(enters & ~passes, {"color": "black"}, "probe stops in the pore"),
-              (passes, {"markerfacecolor": "white", "markeredgecolor": "black",
-                        "markeredgewidth": 0.6}, "probe passes (bottleneck)"),
-              (~enters & ~passes, {"color": "black", "marker": "x"},
-               "probe does not enter (c = 0)")]
+    groups = [
+        (enters & ~passes, {"color": "black"}, "probe stops in the pore"),
+        (
+            passes,
+            {"markerfacecolor": "white", "markeredgecolor": "black", "markeredgewidth": 0.6},
+            "probe passes (bottleneck)",
+        ),
+        (~enters & ~passes, {"color": "black", "marker": "x"}, "probe does not enter (c = 0)"),
+    ]
     for mask, style, label in groups:
         if mask.any():
             style = {"marker": "o", **style}
-            ax.plot(p[mask], c[mask], linestyle="none", markersize=2.6, zorder=4, label=label,
-                    **style)
+            ax.plot(
+                p[mask], c[mask], linestyle="none", markersize=2.6, zorder=4, label=label, **style
+            )
 
 
 # --------------------------------------------------------------------------- resistance
+
 
 def resistance_arrays(resistance) -> dict:
     """Segment names, resistances and shares of a series-resistance result or its JSON."""
@@ -932,20 +1163,26 @@ def resistance_arrays(resistance) -> dict:
         r = np.array([float(seg["resistance_Gohm"]) for seg in segments])
         share = np.array([float(seg["share_percent"]) for seg in segments])
     except (KeyError, TypeError, ValueError) as exc:
-        raise InputError("resistance JSON: every segment needs name, resistance_Gohm and "
-                         f"share_percent ({exc})") from exc
+        raise InputError(
+            f"resistance JSON: every segment needs name, resistance_Gohm and share_percent ({exc})"
+        ) from exc
     g = _lookup(d, ["conductance_pS"], "resistance", required=False)
-    total = _lookup(d, ["total_resistance_Gohm", "resistance_Gohm"], "resistance",
-                    required=False)
+    total = _lookup(d, ["total_resistance_Gohm", "resistance_Gohm"], "resistance", required=False)
     kinds = ["access" if seg.get("kind") == "access" else "pore" for seg in segments]
-    return {"names": names, "resistance_Gohm": r, "share_percent": share, "kinds": kinds,
-            "conductance_pS": _float_or_nan(g),
-            "total_Gohm": float(r.sum()) if total is None else float(total)}
+    return {
+        "names": names,
+        "resistance_Gohm": r,
+        "share_percent": share,
+        "kinds": kinds,
+        "conductance_pS": _float_or_nan(g),
+        "total_Gohm": float(r.sum()) if total is None else float(total),
+    }
 
 
 @_styled
-def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
-                    height_mm: float | None = None):
+def plot_resistance(
+    resistance, *, ax=None, width_mm: float | None = None, height_mm: float | None = None
+):
     """Series-resistance breakdown: one horizontal bar per segment, share of the total.
 
     Parameters
@@ -976,19 +1213,28 @@ def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
         ax.legend(loc="lower right")
     biggest = int(np.argmax(share))
     for k in range(n):
-        ax.annotate(f"{data['resistance_Gohm'][k]:.3g} GΩ ({share[k]:.0f} %)",
-                    xy=(share[k], y[k]), xytext=(2, 0), textcoords="offset points",
-                    va="center", ha="left", fontsize=SMALL_FONT_PT,
-                    fontweight="bold" if k == biggest else "normal")
+        ax.annotate(
+            f"{data['resistance_Gohm'][k]:.3g} GΩ ({share[k]:.0f} %)",
+            xy=(share[k], y[k]),
+            xytext=(2, 0),
+            textcoords="offset points",
+            va="center",
+            ha="left",
+            fontsize=SMALL_FONT_PT,
+            fontweight="bold" if k == biggest else "normal",
+        )
     ax.set_yticks(y, data["names"])
     ax.invert_yaxis()
     ax.set_xlim(0, share.max() * 1.4)
     ax.set_xticks([t for t in ax.get_xticks() if 0 <= t <= min(100.0, share.max() * 1.4)])
     ax.set_xlabel("Share of the total resistance (%)")
     if np.isfinite(data["conductance_pS"]):
-        ax.set_title(f"Total {data['total_Gohm']:.3g} GΩ; conductance "
-                     f"{data['conductance_pS']:.3g} pS\n(model estimate)",
-                     loc="left", fontsize=FONT_PT)
+        ax.set_title(
+            f"Total {data['total_Gohm']:.3g} GΩ; conductance "
+            f"{data['conductance_pS']:.3g} pS\n(model estimate)",
+            loc="left",
+            fontsize=FONT_PT,
+        )
     _finish(ax, ygrid=False)
     ax.spines["left"].set_visible(False)
     ax.tick_params(axis="y", length=0)
@@ -997,6 +1243,7 @@ def plot_resistance(resistance, *, ax=None, width_mm: float | None = None,
 
 
 # --------------------------------------------------------------------------- kymograph
+
 
 def _time_axis(time_ps: np.ndarray) -> tuple[np.ndarray, str]:
     """Times in the unit that suits their span: ps below 1 ns, ns below 1 µs, else µs."""
@@ -1009,9 +1256,15 @@ def _time_axis(time_ps: np.ndarray) -> tuple[np.ndarray, str]:
 
 
 @_styled
-def plot_kymograph(trajectory, *, ax=None, vmin_A: float | None = None,
-                   vmax_A: float | None = None, width_mm: float | None = None,
-                   height_mm: float | None = None):
+def plot_kymograph(
+    trajectory,
+    *,
+    ax=None,
+    vmin_A: float | None = None,
+    vmax_A: float | None = None,
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+):
     """Pore radius over a trajectory: s versus frame (or time), coloured by radius.
 
     Parameters
@@ -1045,9 +1298,15 @@ def plot_kymograph(trajectory, *, ax=None, vmin_A: float | None = None,
     if hi <= lo:
         hi = lo + 1.0
     cmap = mpl.colormaps[RADIUS_CMAP].with_extremes(bad=OPEN_COLOR)
-    mesh = ax.pcolormesh(x, t["s_A"], np.ma.masked_invalid(radius.T), cmap=cmap,
-                         norm=mpl.colors.Normalize(lo, hi), shading="nearest",
-                         rasterized=True)
+    mesh = ax.pcolormesh(
+        x,
+        t["s_A"],
+        np.ma.masked_invalid(radius.T),
+        cmap=cmap,
+        norm=mpl.colors.Normalize(lo, hi),
+        shading="nearest",
+        rasterized=True,
+    )
     bar = ax.figure.colorbar(mesh, ax=ax, pad=0.02, fraction=0.05, aspect=25)
     bar.set_label(RADIUS_LABEL + ("; grey: open" if (~np.isfinite(radius)).any() else ""))
     bar.ax.tick_params(labelsize=FONT_PT - 0.5, width=0.6, length=2)
@@ -1062,16 +1321,24 @@ def plot_kymograph(trajectory, *, ax=None, vmin_A: float | None = None,
 
 # --------------------------------------------------------------------------- dispatch
 
+
 def _classify(results: Sequence[dict]) -> dict[str, list[dict]]:
-    kinds: dict[str, list[dict]] = {"profile": [], "trajectory": [], "scan": [], "match": [],
-                                    "resistance": [], "check": []}
+    kinds: dict[str, list[dict]] = {
+        "profile": [],
+        "trajectory": [],
+        "scan": [],
+        "match": [],
+        "resistance": [],
+        "check": [],
+    }
     for d in results:
         if "segments" in d and "conductance_pS" in d:
             kinds["resistance"].append(d)
         elif isinstance(d.get("capture"), Mapping) and "probe_radius_A" in d["capture"]:
             kinds["scan"].append(d)
-        elif "capture_radius_A" in d and ("capture_radius_sd_A" in d
-                                          or "probe_radius_A_intervals" in d):
+        elif "capture_radius_A" in d and (
+            "capture_radius_sd_A" in d or "probe_radius_A_intervals" in d
+        ):
             kinds["match"].append(d)
         elif "constrictions" in d or "lining" in d:
             kinds["check"].append(d)
@@ -1080,8 +1347,10 @@ def _classify(results: Sequence[dict]) -> dict[str, list[dict]]:
         elif _is_trajectory(d):
             kinds["trajectory"].append(d)
         else:
-            raise InputError("cannot tell which poreprobe command wrote this JSON "
-                             f"(keys: {', '.join(list(d)[:8])})")
+            raise InputError(
+                "cannot tell which poreprobe command wrote this JSON "
+                f"(keys: {', '.join(list(d)[:8])})"
+            )
     return kinds
 
 
@@ -1097,16 +1366,29 @@ def _constrictions_from_check(check: Mapping) -> list[dict] | None:
     if not items:
         return None
     try:
-        return [{"s_A": float(c["s_A"]), "radius_A": float(c["radius_A"]),
-                 "residues": [str(r) for r in c.get("residues") or ()],
-                 "prominence_A": c.get("prominence_A")} for c in items]
+        return [
+            {
+                "s_A": float(c["s_A"]),
+                "radius_A": float(c["radius_A"]),
+                "residues": [str(r) for r in c.get("residues") or ()],
+                "prominence_A": c.get("prominence_A"),
+            }
+            for c in items
+        ]
     except (KeyError, TypeError, ValueError) as exc:
         raise InputError(f"check JSON: every constriction needs s_A and radius_A ({exc})") from exc
 
 
-def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,
-                height_mm: float | None = None, ion_radii: Sequence[tuple[str, float]] = (),
-                labels: Sequence[str] | None = None, band: bool = False):
+def draw_figure(
+    kind: str,
+    results: Sequence,
+    *,
+    width_mm: float | None = None,
+    height_mm: float | None = None,
+    ion_radii: Sequence[tuple[str, float]] = (),
+    labels: Sequence[str] | None = None,
+    band: bool = False,
+):
     """Draw one figure kind from result JSON dictionaries (what ``poreprobe plot`` does).
 
     Parameters
@@ -1137,11 +1419,17 @@ def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,
             raise InputError("figure 'profile' takes at most one check JSON")
         check = groups["check"][0] if groups["check"] else None
         # a check result carries its own profile: it can stand alone
-        profile = (check if check is not None and not groups["profile"] and "profile" in check
-                   else _one(groups["profile"], "profile", kind))
-        return plot_profile(profile, ion_radii=ion_radii,
-                            constrictions=_constrictions_from_check(check) if check else None,
-                            **size)
+        profile = (
+            check
+            if check is not None and not groups["profile"] and "profile" in check
+            else _one(groups["profile"], "profile", kind)
+        )
+        return plot_profile(
+            profile,
+            ion_radii=ion_radii,
+            constrictions=_constrictions_from_check(check) if check else None,
+            **size,
+        )
     if kind == "overlay":
         return plot_overlay(dicts, labels=labels, band=band, ion_radii=ion_radii, **size)
     if kind == "probes":
@@ -1151,7 +1439,7 @@ def draw_figure(kind: str, results: Sequence, *, width_mm: float | None = None,
             raise InputError("figure 'capture' takes at most one match JSON")
         match = groups["match"][0] if groups["match"] else None
         if not groups["scan"] and match is not None and match_arrays(match)["has_curve"]:
-            scan = None                        # the match carries the curve it matched
+            scan = None  # the match carries the curve it matched
         else:
             scan = _one(groups["scan"], "scan", kind)
         return plot_capture(scan, match=match, ion_radii=ion_radii, **size)

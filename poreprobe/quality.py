@@ -131,8 +131,13 @@ class Finding:
     details: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
-        return {"severity": self.severity, "code": self.code, "message": self.message,
-                "residues": list(self.residues), "details": dict(self.details)}
+        return {
+            "severity": self.severity,
+            "code": self.code,
+            "message": self.message,
+            "residues": list(self.residues),
+            "details": dict(self.details),
+        }
 
 
 @dataclass(frozen=True)
@@ -158,9 +163,14 @@ class SensitivityRow:
     note: str = ""
 
     def to_dict(self) -> dict:
-        return {"radius_set": self.radius_set, "hydrogens": self.hydrogens,
-                "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
-                "verdict": self.verdict, "note": self.note}
+        return {
+            "radius_set": self.radius_set,
+            "hydrogens": self.hydrogens,
+            "min_radius_A": self.min_radius_A,
+            "min_s_A": self.min_s_A,
+            "verdict": self.verdict,
+            "note": self.note,
+        }
 
 
 @dataclass(frozen=True)
@@ -201,13 +211,20 @@ class PermeationVerdict:
         return self.margin_A < BORDERLINE_A
 
     def to_dict(self) -> dict:
-        return {"ion": self.ion, "margin_A": self.margin_A, "borderline": self.borderline,
-                "crystal_radius_A": self.crystal_radius_A,
-                "hydrated_radius_A": self.hydrated_radius_A,
-                "min_radius_A": self.min_radius_A, "min_s_A": self.min_s_A,
-                "verdict": self.verdict, "message": self.message, "robust": self.robust,
-                "sources": "crystal radius: Shannon 1976, Acta Cryst. A32:751 (CN 6); "
-                           "hydrated radius: Nightingale 1959, J. Phys. Chem. 63:1381"}
+        return {
+            "ion": self.ion,
+            "margin_A": self.margin_A,
+            "borderline": self.borderline,
+            "crystal_radius_A": self.crystal_radius_A,
+            "hydrated_radius_A": self.hydrated_radius_A,
+            "min_radius_A": self.min_radius_A,
+            "min_s_A": self.min_s_A,
+            "verdict": self.verdict,
+            "message": self.message,
+            "robust": self.robust,
+            "sources": "crystal radius: Shannon 1976, Acta Cryst. A32:751 (CN 6); "
+            "hydrated radius: Nightingale 1959, J. Phys. Chem. 63:1381",
+        }
 
 
 @dataclass(frozen=True)
@@ -263,13 +280,17 @@ class QualityReport:
     def to_dict(self) -> dict:
         prof = self.profile
         return {
-            "version": self.version, "source": self.source,
+            "version": self.version,
+            "source": self.source,
             "caveat": "model-based estimates, not measurements",
-            "radius_set": prof.radius_set, "hydrogens": self.hydrogens,
+            "radius_set": prof.radius_set,
+            "hydrogens": self.hydrogens,
             "model_has_hydrogens": self.model_has_hydrogens,
-            "walls": list(self.walls), "settings": dict(self.settings),
+            "walls": list(self.walls),
+            "settings": dict(self.settings),
             "axis": prof.axis.to_dict(),
-            "min_radius_A": prof.min_radius_A, "min_s_A": prof.min_s_A,
+            "min_radius_A": prof.min_radius_A,
+            "min_s_A": prof.min_s_A,
             "profile": prof.to_dict()["profile"],
             "lining": [r.to_dict() for r in self.lining.residues],
             "constrictions": [c.to_dict() for c in self.lining.constrictions],
@@ -290,29 +311,40 @@ class QualityReport:
     def report_lines(self) -> list[str]:
         """The human-readable report, findings sorted by severity."""
         prof = self.profile
-        lines = [f"poreprobe {self.version}: readiness report for {self.source} "
-                 "(model-based estimates, not measurements)",
-                 f"radius set {prof.radius_set}; {self._hydrogen_text()}; walls: "
-                 f"{', '.join(self.walls)}; axis {prof.axis.method}",
-                 f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å",
-                 "", f"permeation ({self.verdict.ion}): {self.verdict.message}", ""]
+        lines = [
+            f"poreprobe {self.version}: readiness report for {self.source} "
+            "(model-based estimates, not measurements)",
+            f"radius set {prof.radius_set}; {self._hydrogen_text()}; walls: "
+            f"{', '.join(self.walls)}; axis {prof.axis.method}",
+            f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å",
+            "",
+            f"permeation ({self.verdict.ion}): {self.verdict.message}",
+            "",
+        ]
         counts = self.counts()
         lines.append("findings: " + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES))
         for f in self.findings:
             lines.append(f"  [{f.severity.upper():6}] {f.code}: {f.message}")
         lines += ["", f"constrictions (radius <= {self.lining.constriction_radius_A:g} Å):"]
         lines += [f"  {c.text}" for c in self.lining.constrictions] or ["  none"]
-        lines += ["", f"lining residues (within {self.lining.lining_distance_A:g} Å of the "
-                      "profile spheres): chain resname resid  s range (Å)  closest (Å)  part"]
+        lines += [
+            "",
+            f"lining residues (within {self.lining.lining_distance_A:g} Å of the "
+            "profile spheres): chain resname resid  s range (Å)  closest (Å)  part",
+        ]
         for r in self.lining.residues:
-            lines.append(f"  {r.chain:>2} {r.resname:>4} {r.resid:>5}{r.icode:1} "
-                         f"{r.s_min_A:7.1f} to {r.s_max_A:6.1f}  {r.closest_A:6.2f}  {r.part}")
+            lines.append(
+                f"  {r.chain:>2} {r.resname:>4} {r.resid:>5}{r.icode:1} "
+                f"{r.s_min_A:7.1f} to {r.s_max_A:6.1f}  {r.closest_A:6.2f}  {r.part}"
+            )
         lines += ["", "sensitivity of the narrowest radius (Å):"]
         for row in self.sensitivity:
             value = "   n/a" if row.min_radius_A is None else f"{row.min_radius_A:6.2f}"
-            lines.append(f"  {row.radius_set:>10}  hydrogens {row.hydrogens:>3}: {value}"
-                         + (f"  ({row.verdict})" if row.verdict else "")
-                         + (f"  {row.note}" if row.note else ""))
+            lines.append(
+                f"  {row.radius_set:>10}  hydrogens {row.hydrogens:>3}: {value}"
+                + (f"  ({row.verdict})" if row.verdict else "")
+                + (f"  {row.note}" if row.note else "")
+            )
         lines += [f"note: {n}" for n in self.notes]
         return lines
 
@@ -348,8 +380,9 @@ class _Region:
 
 def _region(atoms, radii_A, profile, lining, near_distance_A) -> _Region:
     poly = np.flatnonzero(atoms.kind == "polymer")
-    plane, atom, _ = lining_contacts(atoms.coords_A[poly], radii_A[poly], profile.center_A,
-                                     profile.radius_A, near_distance_A)
+    plane, atom, _ = lining_contacts(
+        atoms.coords_A[poly], radii_A[poly], profile.center_A, profile.radius_A, near_distance_A
+    )
     labels = atoms.residue_labels()[poly][atom]
     s = profile.s_A[plane]
     near = {}
@@ -391,27 +424,44 @@ def _check_completeness(atoms, residues, region) -> list[Finding]:
         if standard_name(resname) is None:
             if resname.upper() in TERMINAL_CAPS:
                 continue
-            out.append(Finding(
-                region.severity([label], "medium", "low"), "nonstandard-residue",
-                f"{label} is a non-standard residue ({resname}); {region.where(label)}. Its "
-                "atoms get element radii only and its completeness cannot be checked against "
-                "a standard residue: check it by hand.", (label,), {"resname": resname}))
+            out.append(
+                Finding(
+                    region.severity([label], "medium", "low"),
+                    "nonstandard-residue",
+                    f"{label} is a non-standard residue ({resname}); {region.where(label)}. Its "
+                    "atoms get element radii only and its completeness cannot be checked against "
+                    "a standard residue: check it by hand.",
+                    (label,),
+                    {"resname": resname},
+                )
+            )
             continue
         heavy = rows[~atoms.is_hydrogen[rows]]
         backbone, side = missing_heavy_atoms(resname, atoms.name[heavy])
         if side:
-            out.append(Finding(
-                region.severity([label], "high", "medium"), "missing-side-chain-atoms",
-                f"{label} lacks side-chain atoms {', '.join(side)} of the standard "
-                f"{standard_name(resname)}; {region.where(label)}. A truncated side chain "
-                "makes the pore look wider than it is: the radius here is an upper bound "
-                "until the side chain is modelled.", (label,), {"missing": list(side)}))
+            out.append(
+                Finding(
+                    region.severity([label], "high", "medium"),
+                    "missing-side-chain-atoms",
+                    f"{label} lacks side-chain atoms {', '.join(side)} of the standard "
+                    f"{standard_name(resname)}; {region.where(label)}. A truncated side chain "
+                    "makes the pore look wider than it is: the radius here is an upper bound "
+                    "until the side chain is modelled.",
+                    (label,),
+                    {"missing": list(side)},
+                )
+            )
         if backbone:
-            out.append(Finding(
-                region.severity([label], "high", "medium"), "missing-backbone-atoms",
-                f"{label} lacks backbone atoms {', '.join(backbone)}; {region.where(label)}. "
-                "The wall here is incomplete, so the pore may look wider than it is.",
-                (label,), {"missing": list(backbone)}))
+            out.append(
+                Finding(
+                    region.severity([label], "high", "medium"),
+                    "missing-backbone-atoms",
+                    f"{label} lacks backbone atoms {', '.join(backbone)}; {region.where(label)}. "
+                    "The wall here is incomplete, so the pore may look wider than it is.",
+                    (label,),
+                    {"missing": list(backbone)},
+                )
+            )
     return out
 
 
@@ -424,34 +474,49 @@ def _check_occupancy(atoms, residues, region, altloc_policy) -> list[Finding]:
         if (alt != "").any():
             letters = sorted(set(alt[alt != ""].tolist()))
             names = atoms.name[rows][alt != ""].tolist()
-            out.append(Finding(
-                region.severity([label], "medium", "low"), "alternate-locations",
-                f"{label} has alternate conformations (atoms {', '.join(names[:6])}"
-                f"{' ...' if len(names) > 6 else ''}; kept altloc {', '.join(letters)} by the "
-                f"'{altloc_policy}' policy); {region.where(label)}. The radius here depends on "
-                "which conformation is real: compare the profiles of each altloc.",
-                (label,), {"atoms": names, "kept_altlocs": letters,
-                           "policy": altloc_policy}))
+            out.append(
+                Finding(
+                    region.severity([label], "medium", "low"),
+                    "alternate-locations",
+                    f"{label} has alternate conformations (atoms {', '.join(names[:6])}"
+                    f"{' ...' if len(names) > 6 else ''}; kept altloc {', '.join(letters)} by the "
+                    f"'{altloc_policy}' policy); {region.where(label)}. The radius here depends on "
+                    "which conformation is real: compare the profiles of each altloc.",
+                    (label,),
+                    {"atoms": names, "kept_altlocs": letters, "policy": altloc_policy},
+                )
+            )
         occ = atoms.occupancy[rows]
         plain = alt == ""
         zero = plain & (occ <= 0.0)
         if zero.any():
             names = atoms.name[rows][zero].tolist()
-            out.append(Finding(
-                region.severity([label], "high", "medium"), "zero-occupancy",
-                f"{label}: atoms {', '.join(names)} have zero occupancy; "
-                f"{region.where(label)}. They were placed without support from the data, so "
-                "the wall they form here is a guess.", (label,), {"atoms": names}))
+            out.append(
+                Finding(
+                    region.severity([label], "high", "medium"),
+                    "zero-occupancy",
+                    f"{label}: atoms {', '.join(names)} have zero occupancy; "
+                    f"{region.where(label)}. They were placed without support from the data, so "
+                    "the wall they form here is a guess.",
+                    (label,),
+                    {"atoms": names},
+                )
+            )
         partial = plain & (occ > 0.0) & (occ < 1.0)
         if partial.any():
             names = atoms.name[rows][partial].tolist()
-            out.append(Finding(
-                region.severity([label], "medium", "low"), "partial-occupancy",
-                f"{label}: atoms {', '.join(names)} have occupancy "
-                f"{occ[partial].min():.2f}-{occ[partial].max():.2f} without alternate "
-                f"conformations; {region.where(label)}. The wall here is only partly supported "
-                "by the data.", (label,),
-                {"atoms": names, "occupancy": occ[partial].tolist()}))
+            out.append(
+                Finding(
+                    region.severity([label], "medium", "low"),
+                    "partial-occupancy",
+                    f"{label}: atoms {', '.join(names)} have occupancy "
+                    f"{occ[partial].min():.2f}-{occ[partial].max():.2f} without alternate "
+                    f"conformations; {region.where(label)}. The wall here is only partly supported "
+                    "by the data.",
+                    (label,),
+                    {"atoms": names, "occupancy": occ[partial].tolist()},
+                )
+            )
     return out
 
 
@@ -460,10 +525,15 @@ def _check_b_factors(atoms, residues, region, sigmas) -> list[Finding]:
     heavy_poly = (atoms.kind == "polymer") & ~atoms.is_hydrogen
     b_all = atoms.b_factor[heavy_poly]
     if len(b_all) and np.ptp(b_all) == 0:
-        return [Finding("info", "uniform-b-factors",
-                        f"All polymer atoms have the same B-factor ({b_all[0]:g} Å²), so local "
-                        "model quality could not be judged from B-factors (predicted models "
-                        "often store a confidence score in this column instead).")]
+        return [
+            Finding(
+                "info",
+                "uniform-b-factors",
+                f"All polymer atoms have the same B-factor ({b_all[0]:g} Å²), so local "
+                "model quality could not be judged from B-factors (predicted models "
+                "often store a confidence score in this column instead).",
+            )
+        ]
     stats = {}
     for ch in np.unique(atoms.chain[heavy_poly]):
         b = atoms.b_factor[heavy_poly & (atoms.chain == ch)]
@@ -480,13 +550,17 @@ def _check_b_factors(atoms, residues, region, sigmas) -> list[Finding]:
         med, spread = stats[ch]
         b_res = float(atoms.b_factor[heavy].mean())
         if b_res > med + sigmas * spread:
-            out.append(Finding(
-                region.severity([label], "medium", "low"), "high-b-factor",
-                f"{label}: mean B-factor {b_res:.0f} Å², far above chain {ch}'s median "
-                f"{med:.0f} Å² (more than {sigmas:g} robust SDs); {region.where(label)}. This "
-                "part of the model is poorly determined, so the radius here is uncertain.",
-                (label,), {"b_factor_A2": b_res, "chain_median_A2": med,
-                           "robust_sd_A2": spread}))
+            out.append(
+                Finding(
+                    region.severity([label], "medium", "low"),
+                    "high-b-factor",
+                    f"{label}: mean B-factor {b_res:.0f} Å², far above chain {ch}'s median "
+                    f"{med:.0f} Å² (more than {sigmas:g} robust SDs); {region.where(label)}. This "
+                    "part of the model is poorly determined, so the radius here is uncertain.",
+                    (label,),
+                    {"b_factor_A2": b_res, "chain_median_A2": med, "robust_sd_A2": spread},
+                )
+            )
     return out
 
 
@@ -511,14 +585,22 @@ def _check_chain_breaks(atoms, residues, region) -> list[Finding]:
             if not broken or not (region.contains(lab1) or region.contains(lab2)):
                 continue
             missing = max(gap - 1, 0)
-            count = (f"{missing} residue{'s' if missing != 1 else ''} missing by numbering"
-                     if missing else "no residue number skipped")
-            out.append(Finding(
-                region.severity([lab1, lab2], "high", "medium"), "chain-break",
-                f"chain {ch} is broken between {lab1} and {lab2} ({count}; {what}) near the "
-                "pore. Missing residues there may line or narrow the pore in reality, so the "
-                "profile nearby may be too wide.", (lab1, lab2),
-                {"missing_by_numbering": missing, "distance_A": dist}))
+            count = (
+                f"{missing} residue{'s' if missing != 1 else ''} missing by numbering"
+                if missing
+                else "no residue number skipped"
+            )
+            out.append(
+                Finding(
+                    region.severity([lab1, lab2], "high", "medium"),
+                    "chain-break",
+                    f"chain {ch} is broken between {lab1} and {lab2} ({count}; {what}) near the "
+                    "pore. Missing residues there may line or narrow the pore in reality, so the "
+                    "profile nearby may be too wide.",
+                    (lab1, lab2),
+                    {"missing_by_numbering": missing, "distance_A": dist},
+                )
+            )
     return out
 
 
@@ -527,20 +609,29 @@ def _check_symmetry(sym: SubunitDeviation | None, region, tolerance) -> list[Fin
         return []
     out = []
     for k, chain in enumerate(sym.chains):
-        labels = [lab for lab, dev in zip(sym.residue_labels[k], sym.deviation_A[k], strict=True)
-                  if region.contains(lab) and np.isfinite(dev) and dev > tolerance]
+        labels = [
+            lab
+            for lab, dev in zip(sym.residue_labels[k], sym.deviation_A[k], strict=True)
+            if region.contains(lab) and np.isfinite(dev) and dev > tolerance
+        ]
         if not labels:
             continue
         dev = sym.by_label()
         worst = max(dev[lab] for lab in labels)
-        out.append(Finding(
-            region.severity(labels, "medium", "low"), "asymmetry",
-            f"chain {chain} deviates from the {sym.n_fold}-fold symmetric consensus of chains "
-            f"{', '.join(sym.chains)} by up to {worst:.1f} Å at {len(labels)} residue"
-            f"{'s' if len(labels) != 1 else ''} around the pore ({', '.join(labels[:5])}"
-            f"{' ...' if len(labels) > 5 else ''}). The pore is not symmetric there: one "
-            "subunit may set the narrowest point. Check whether this is real or a modelling "
-            "error.", tuple(labels), {"deviation_A": {lab: dev[lab] for lab in labels}}))
+        out.append(
+            Finding(
+                region.severity(labels, "medium", "low"),
+                "asymmetry",
+                f"chain {chain} deviates from the {sym.n_fold}-fold symmetric consensus of chains "
+                f"{', '.join(sym.chains)} by up to {worst:.1f} Å at {len(labels)} residue"
+                f"{'s' if len(labels) != 1 else ''} around the pore ({', '.join(labels[:5])}"
+                f"{' ...' if len(labels) > 5 else ''}). The pore is not symmetric there: one "
+                "subunit may set the narrowest point. Check whether this is real or a modelling "
+                "error.",
+                tuple(labels),
+                {"deviation_A": {lab: dev[lab] for lab in labels}},
+            )
+        )
     return out
 
 
@@ -548,37 +639,54 @@ def _check_clashes(atoms, radii_A, region, fraction, radius_set) -> list[Finding
     labels = atoms.residue_labels()
     in_region = np.isin(labels, list(region.near))
     out = []
-    clashes = find_clashes(atoms, radii_A, clash_fraction=fraction,
-                           only=np.flatnonzero(in_region))
+    clashes = find_clashes(atoms, radii_A, clash_fraction=fraction, only=np.flatnonzero(in_region))
     if len(clashes) > MAX_CLASH_FINDINGS:
         rest = clashes[MAX_CLASH_FINDINGS:]
         res = tuple(dict.fromkeys(str(labels[k]) for c in rest for k in (c.atom_i, c.atom_j)))
-        out.append(Finding(
-            region.severity(res, "high", "medium"), "steric-clash",
-            f"{len(rest)} further clashing atom pairs around the pore (beyond the "
-            f"{MAX_CLASH_FINDINGS} listed one by one): the model is badly packed here, so "
-            "its pore radii mean little until it is refined.", res,
-            {"further_pairs": len(rest)}))
+        out.append(
+            Finding(
+                region.severity(res, "high", "medium"),
+                "steric-clash",
+                f"{len(rest)} further clashing atom pairs around the pore (beyond the "
+                f"{MAX_CLASH_FINDINGS} listed one by one): the model is badly packed here, so "
+                "its pore radii mean little until it is refined.",
+                res,
+                {"further_pairs": len(rest)},
+            )
+        )
         clashes = clashes[:MAX_CLASH_FINDINGS]
     for clash in clashes:
         res = tuple(dict.fromkeys([str(labels[clash.atom_i]), str(labels[clash.atom_j])]))
-        out.append(Finding(
-            region.severity(res, "high", "medium"), "steric-clash",
-            f"{clash.labels[0]} and {clash.labels[1]} are {clash.distance_A:.2f} Å apart, "
-            f"{clash.fraction:.0%} of the sum of their van der Waals radii "
-            f"({clash.radius_sum_A:.2f} Å, {radius_set}). At least one of them is misplaced, "
-            "so the wall here is unreliable.", res, clash.to_dict()))
+        out.append(
+            Finding(
+                region.severity(res, "high", "medium"),
+                "steric-clash",
+                f"{clash.labels[0]} and {clash.labels[1]} are {clash.distance_A:.2f} Å apart, "
+                f"{clash.fraction:.0%} of the sum of their van der Waals radii "
+                f"({clash.radius_sum_A:.2f} Å, {radius_set}). At least one of them is misplaced, "
+                "so the wall here is unreliable.",
+                res,
+                clash.to_dict(),
+            )
+        )
     return out
 
 
 _CONTENT_TEXT = {
-    "water": ("water-in-pore", "low", "water molecule",
-              "Ordered water in a pore can be part of the permeation pathway."),
-    "ion": ("ion-in-pore", "low", "ion",
-            "An ion bound in the pore often marks a binding site."),
-    "hetero": ("hetero-in-pore", "medium", "hetero group",
-               "It may be a blocker, lipid, detergent or ligand: if it belongs there, the "
-               "pore is narrower than the protein alone suggests."),
+    "water": (
+        "water-in-pore",
+        "low",
+        "water molecule",
+        "Ordered water in a pore can be part of the permeation pathway.",
+    ),
+    "ion": ("ion-in-pore", "low", "ion", "An ion bound in the pore often marks a binding site."),
+    "hetero": (
+        "hetero-in-pore",
+        "medium",
+        "hetero group",
+        "It may be a blocker, lipid, detergent or ligand: if it belongs there, the "
+        "pore is narrower than the protein alone suggests.",
+    ),
 }
 
 
@@ -611,16 +719,23 @@ def _check_contents(atoms, radii_A, walls, profile, lining_distance_A) -> list[F
             continue
         found = tuple(dict.fromkeys(labels[rows[inside]].tolist()))
         s_in = s_all[rows[inside]]
-        how = ("They are counted as pore walls, so the radius there is measured past them."
-               if counted else
-               f"They are not counted as pore walls (count them with walls including "
-               f"'{kind}', or --keep-{'hetero' if kind == 'hetero' else kind + 's'}).")
-        out.append(Finding(
-            severity, code,
-            f"{len(found)} {noun}{'s' if len(found) != 1 else ''} inside the pore at s = "
-            f"{s_in.min():.1f} to {s_in.max():.1f} Å ({', '.join(found[:6])}"
-            f"{' ...' if len(found) > 6 else ''}). {meaning} {how}", found,
-            {"counted_as_walls": counted, "s_A": sorted(set(np.round(s_in, 2).tolist()))}))
+        how = (
+            "They are counted as pore walls, so the radius there is measured past them."
+            if counted
+            else f"They are not counted as pore walls (count them with walls including "
+            f"'{kind}', or --keep-{'hetero' if kind == 'hetero' else kind + 's'})."
+        )
+        out.append(
+            Finding(
+                severity,
+                code,
+                f"{len(found)} {noun}{'s' if len(found) != 1 else ''} inside the pore at s = "
+                f"{s_in.min():.1f} to {s_in.max():.1f} Å ({', '.join(found[:6])}"
+                f"{' ...' if len(found) > 6 else ''}). {meaning} {how}",
+                found,
+                {"counted_as_walls": counted, "s_A": sorted(set(np.round(s_in, 2).tolist()))},
+            )
+        )
     return out
 
 
@@ -628,29 +743,45 @@ def _check_hydrogens(atoms, radius_set) -> list[Finding]:
     poly = atoms.kind == "polymer"
     h = atoms.is_hydrogen & poly
     if not h.any():
-        return [Finding(
-            "info", "hydrogens-absent",
-            f"The model has no hydrogens. The radius set ({radius_set}) gives radii of "
-            "explicit atoms, so without hydrogens the pore looks wider than it would with "
-            "them (by up to several tenths of an Å next to CH2 and CH3 groups). Add hydrogens "
-            "before comparing with all-atom simulations; the sensitivity table shows the "
-            "radius set's effect.")]
+        return [
+            Finding(
+                "info",
+                "hydrogens-absent",
+                f"The model has no hydrogens. The radius set ({radius_set}) gives radii of "
+                "explicit atoms, so without hydrogens the pore looks wider than it would with "
+                "them (by up to several tenths of an Å next to CH2 and CH3 groups). Add hydrogens "
+                "before comparing with all-atom simulations; the sensitivity table shows the "
+                "radius set's effect.",
+            )
+        ]
     res_with_h = _residue_groups(atoms, h)
     all_res = _residue_groups(atoms, poly & ~atoms.is_hydrogen)
-    lacking = [lab for lab in all_res if lab not in res_with_h
-               and str(atoms.resname[all_res[lab][0]]) != "PRO"]
+    lacking = [
+        lab
+        for lab in all_res
+        if lab not in res_with_h and str(atoms.resname[all_res[lab][0]]) != "PRO"
+    ]
     if len(lacking) > 0.1 * len(all_res):
-        return [Finding(
-            "medium", "hydrogens-partial",
-            f"Only some residues carry hydrogens ({len(all_res) - len(lacking)} of "
-            f"{len(all_res)}): the profile mixes walls with and without hydrogens. Add "
-            "hydrogens everywhere or leave them all out (--no-hydrogens).",
-            tuple(lacking[:20]), {"residues_without_hydrogens": len(lacking)})]
-    return [Finding(
-        "info", "hydrogens-present",
-        f"The model has hydrogens ({int(h.sum())} of {int(poly.sum())} polymer atoms) and the "
-        f"profile counts them with the {radius_set} radii; a profile of the same model "
-        "without hydrogens is wider. The sensitivity table shows both.")]
+        return [
+            Finding(
+                "medium",
+                "hydrogens-partial",
+                f"Only some residues carry hydrogens ({len(all_res) - len(lacking)} of "
+                f"{len(all_res)}): the profile mixes walls with and without hydrogens. Add "
+                "hydrogens everywhere or leave them all out (--no-hydrogens).",
+                tuple(lacking[:20]),
+                {"residues_without_hydrogens": len(lacking)},
+            )
+        ]
+    return [
+        Finding(
+            "info",
+            "hydrogens-present",
+            f"The model has hydrogens ({int(h.sum())} of {int(poly.sum())} polymer atoms) and the "
+            f"profile counts them with the {radius_set} radii; a profile of the same model "
+            "without hydrogens is wider. The sensitivity table shows both.",
+        )
+    ]
 
 
 # ----------------------------------------------------------------------------- verdict
@@ -669,35 +800,41 @@ def classify(min_radius_A: float, ion: Ion) -> str:
 
 def borderline_margin_A(min_radius_A: float, ion: Ion) -> float:  # noqa: N802 (unit suffix)
     """Distance (Å) from the narrowest radius to the nearer of the ion's two radii."""
-    return float(min(abs(min_radius_A - ion.crystal_radius_A),
-                     abs(min_radius_A - ion.hydrated_radius_A)))
+    return float(
+        min(abs(min_radius_A - ion.crystal_radius_A), abs(min_radius_A - ion.hydrated_radius_A))
+    )
 
 
 def _verdict_text(verdict, ion, r_min, s_min, robust, rows) -> str:
     where = f"the narrowest point (radius {r_min:.2f} Å at s = {s_min:.1f} Å)"
     text = {
         "hydrated": f"{where} admits a {ion.symbol} ion with its hydration shell (hydrated "
-                    f"radius {ion.hydrated_radius_A:.2f} Å, Nightingale 1959).",
+        f"radius {ion.hydrated_radius_A:.2f} Å, Nightingale 1959).",
         "dehydrated": f"{where} admits a bare {ion.symbol} ion (crystal radius "
-                      f"{ion.crystal_radius_A:.2f} Å, Shannon 1976, CN 6) but not the hydrated "
-                      f"ion ({ion.hydrated_radius_A:.2f} Å): the ion would have to shed water "
-                      "here.",
+        f"{ion.crystal_radius_A:.2f} Å, Shannon 1976, CN 6) but not the hydrated "
+        f"ion ({ion.hydrated_radius_A:.2f} Å): the ion would have to shed water "
+        "here.",
         "closed": f"{where} is narrower than the crystal radius of {ion.symbol} "
-                  f"({ion.crystal_radius_A:.2f} Å, Shannon 1976, CN 6): in this model the "
-                  "pore cannot pass the ion (a closed gate, or a model packed too tightly).",
+        f"({ion.crystal_radius_A:.2f} Å, Shannon 1976, CN 6): in this model the "
+        "pore cannot pass the ion (a closed gate, or a model packed too tightly).",
     }[verdict]
     text = text[0].upper() + text[1:]
     margin = borderline_margin_A(r_min, ion)
     if margin < BORDERLINE_A:
-        text += (f" This is borderline: the narrowest radius is within {margin:.2f} Å of the "
-                 "ion's radius, less than the thermal motion of the wall atoms (B = 20 Å² "
-                 "means 0.5 Å RMS), so a flexing pore may well decide otherwise.")
+        text += (
+            f" This is borderline: the narrowest radius is within {margin:.2f} Å of the "
+            "ion's radius, less than the thermal motion of the wall atoms (B = 20 Å² "
+            "means 0.5 Å RMS), so a flexing pore may well decide otherwise."
+        )
     verdicts = {r.verdict for r in rows if r.verdict}
     if robust:
         text += " The verdict is the same with every radius set and with hydrogens in and out."
     else:
-        text += (" The verdict changes with the radius set or hydrogens ("
-                 + ", ".join(sorted(verdicts)) + "): treat it as uncertain.")
+        text += (
+            " The verdict changes with the radius set or hydrogens ("
+            + ", ".join(sorted(verdicts))
+            + "): treat it as uncertain."
+        )
     return text
 
 
@@ -711,8 +848,9 @@ def _sensitivity(walls_atoms, axis, main, ion, hydrogens, rset, profile_kw):
         this = rset if name == rset.name else get_radius_set(name)
         for h_label in ("in", "out"):
             if h_label == "in" and not has_h:
-                rows.append(SensitivityRow(name, "in", None, None, None,
-                                           "no hydrogens in the model"))
+                rows.append(
+                    SensitivityRow(name, "in", None, None, None, "no hydrogens in the model")
+                )
                 continue
             use_h = h_label == "in"
             if name == rset.name and use_h == (hydrogens and has_h):
@@ -725,28 +863,43 @@ def _sensitivity(walls_atoms, axis, main, ion, hydrogens, rset, profile_kw):
                 try:
                     prof = radius_profile(atoms, axis, radii_A=radii_A, **profile_kw)
                 except PoreNotFoundError:
-                    rows.append(SensitivityRow(name, h_label, None, None, None,
-                                               "no enclosed pore"))
+                    rows.append(SensitivityRow(name, h_label, None, None, None, "no enclosed pore"))
                     continue
-            rows.append(SensitivityRow(name, h_label, float(prof.min_radius_A),
-                                       float(prof.min_s_A), classify(prof.min_radius_A, ion),
-                                       "main profile" if prof is main else ""))
+            rows.append(
+                SensitivityRow(
+                    name,
+                    h_label,
+                    float(prof.min_radius_A),
+                    float(prof.min_s_A),
+                    classify(prof.min_radius_A, ion),
+                    "main profile" if prof is main else "",
+                )
+            )
     return tuple(rows)
 
 
 # ----------------------------------------------------------------------------- main entry
 
 
-def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
-                radii: str | RadiusSet = "bondi", walls: Iterable[str] = ("polymer",),
-                hydrogens: bool = True, step_A: float = 0.2, margin_A: float = 2.0,
-                max_radius_A: float = 20.0, lining_distance_A: float = LINING_DISTANCE_A,
-                near_distance_A: float = NEAR_DISTANCE_A,
-                constriction_radius_A: float = CONSTRICTION_RADIUS_A,
-                clash_fraction: float = CLASH_FRACTION,
-                b_factor_sigmas: float = B_FACTOR_SIGMAS,
-                symmetry_tolerance_A: float = SYMMETRY_TOLERANCE_A,
-                warn: bool = True) -> QualityReport:
+def check_model(
+    atoms: Atoms,
+    *,
+    axis: PoreAxis | None = None,
+    ion: str = "K",
+    radii: str | RadiusSet = "bondi",
+    walls: Iterable[str] = ("polymer",),
+    hydrogens: bool = True,
+    step_A: float = 0.2,
+    margin_A: float = 2.0,
+    max_radius_A: float = 20.0,
+    lining_distance_A: float = LINING_DISTANCE_A,
+    near_distance_A: float = NEAR_DISTANCE_A,
+    constriction_radius_A: float = CONSTRICTION_RADIUS_A,
+    clash_fraction: float = CLASH_FRACTION,
+    b_factor_sigmas: float = B_FACTOR_SIGMAS,
+    symmetry_tolerance_A: float = SYMMETRY_TOLERANCE_A,
+    warn: bool = True,
+) -> QualityReport:
     """Readiness report of a channel model around its pore.
 
     Parameters
@@ -797,8 +950,9 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
         raise InputError(f"atoms must be an Atoms table, got {type(atoms).__name__}")
     ion_rec = get_ion(ion)
     rset = get_radius_set(radii)
-    walls = tuple(dict.fromkeys(str(w).lower() for w in ([walls] if isinstance(walls, str)
-                                                          else walls)))
+    walls = tuple(
+        dict.fromkeys(str(w).lower() for w in ([walls] if isinstance(walls, str) else walls))
+    )
     for w in walls:
         if w not in KINDS:
             raise InputError(f"walls must be kinds among {', '.join(KINDS)}; got {w!r}")
@@ -831,8 +985,13 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
     main = radius_profile(walls_atoms, axis, radii_A=radii_walls, **profile_kw)
     main = replace(main, radius_set=rset.name)
     profile_kw["s_range_A"] = (float(main.s_A[0]), float(main.s_A[-1]))
-    lining = pore_lining(walls_atoms, main, radii_A=radii_walls, lining_distance_A=lining_d,
-                         constriction_radius_A=constriction_radius_A)
+    lining = pore_lining(
+        walls_atoms,
+        main,
+        radii_A=radii_walls,
+        lining_distance_A=lining_d,
+        constriction_radius_A=constriction_radius_A,
+    )
     region = _region(atoms, radii_all, main, lining, near)
     residues = _residue_groups(atoms, poly)
     sym = subunit_deviation(atoms.subset(poly))
@@ -847,44 +1006,77 @@ def check_model(atoms: Atoms, *, axis: PoreAxis | None = None, ion: str = "K",
     findings += _check_contents(atoms, radii_all, walls, main, lining_d)
     findings += _check_hydrogens(atoms, rset.name)
     if len(np.unique(atoms.chain[poly])) == 1:
-        findings.append(Finding(
-            "info", "single-chain",
-            "The model has one polymer chain. If the channel is an oligomer, build the "
-            "biological assembly first: a single subunit does not enclose the pore."))
+        findings.append(
+            Finding(
+                "info",
+                "single-chain",
+                "The model has one polymer chain. If the channel is an oligomer, build the "
+                "biological assembly first: a single subunit does not enclose the pore.",
+            )
+        )
 
-    sensitivity = _sensitivity(atoms.subset(np.isin(atoms.kind, walls)), axis, main, ion_rec,
-                               hydrogens, rset, profile_kw)
+    sensitivity = _sensitivity(
+        atoms.subset(np.isin(atoms.kind, walls)), axis, main, ion_rec, hydrogens, rset, profile_kw
+    )
     verdict_code = classify(main.min_radius_A, ion_rec)
     robust = all(r.verdict == verdict_code for r in sensitivity if r.verdict is not None)
     verdict = PermeationVerdict(
-        ion=ion_rec.symbol, crystal_radius_A=ion_rec.crystal_radius_A,
-        hydrated_radius_A=ion_rec.hydrated_radius_A, min_radius_A=float(main.min_radius_A),
-        min_s_A=float(main.min_s_A), verdict=verdict_code,
-        message=_verdict_text(verdict_code, ion_rec, main.min_radius_A, main.min_s_A, robust,
-                              sensitivity),
-        robust=robust, margin_A=borderline_margin_A(main.min_radius_A, ion_rec))
+        ion=ion_rec.symbol,
+        crystal_radius_A=ion_rec.crystal_radius_A,
+        hydrated_radius_A=ion_rec.hydrated_radius_A,
+        min_radius_A=float(main.min_radius_A),
+        min_s_A=float(main.min_s_A),
+        verdict=verdict_code,
+        message=_verdict_text(
+            verdict_code, ion_rec, main.min_radius_A, main.min_s_A, robust, sensitivity
+        ),
+        robust=robust,
+        margin_A=borderline_margin_A(main.min_radius_A, ion_rec),
+    )
     if not robust:
-        findings.append(Finding(
-            "medium", "verdict-depends-on-settings",
-            f"The permeation verdict for {ion_rec.symbol} changes with the radius set or with "
-            "hydrogens (see the sensitivity table): the narrowest point is too close to the "
-            "ion's radius for this model to decide.", (),
-            {r.radius_set + "/H " + r.hydrogens: r.verdict for r in sensitivity}))
+        findings.append(
+            Finding(
+                "medium",
+                "verdict-depends-on-settings",
+                f"The permeation verdict for {ion_rec.symbol} changes with the radius set or with "
+                "hydrogens (see the sensitivity table): the narrowest point is too close to the "
+                "ion's radius for this model to decide.",
+                (),
+                {r.radius_set + "/H " + r.hydrogens: r.verdict for r in sensitivity},
+            )
+        )
 
     report = QualityReport(
-        findings=_sorted(findings), lining=lining, profile=main, verdict=verdict,
-        sensitivity=sensitivity, symmetry=sym, walls=walls, hydrogens=bool(hydrogens),
+        findings=_sorted(findings),
+        lining=lining,
+        profile=main,
+        verdict=verdict,
+        sensitivity=sensitivity,
+        symmetry=sym,
+        walls=walls,
+        hydrogens=bool(hydrogens),
         model_has_hydrogens=bool((atoms.is_hydrogen & np.isin(atoms.kind, walls)).any()),
-        settings={"lining_distance_A": lining_d, "near_distance_A": near,
-                  "constriction_radius_A": float(constriction_radius_A),
-                  "clash_fraction": float(clash_fraction), "b_factor_sigmas": sigmas,
-                  "symmetry_tolerance_A": sym_tol, "step_A": float(step_A),
-                  "margin_A": float(margin_A), "max_radius_A": float(max_radius_A)},
-        notes=tuple(atoms.notes), source=atoms.source)
+        settings={
+            "lining_distance_A": lining_d,
+            "near_distance_A": near,
+            "constriction_radius_A": float(constriction_radius_A),
+            "clash_fraction": float(clash_fraction),
+            "b_factor_sigmas": sigmas,
+            "symmetry_tolerance_A": sym_tol,
+            "step_A": float(step_A),
+            "margin_A": float(margin_A),
+            "max_radius_A": float(max_radius_A),
+        },
+        notes=tuple(atoms.notes),
+        source=atoms.source,
+    )
     high = report.counts()["high"]
     if warn and high:
         codes = sorted({f.code for f in report.findings if f.severity == "high"})
-        warnings.warn(f"{atoms.source or 'model'}: {high} high-severity finding"
-                      f"{'s' if high != 1 else ''} near the pore ({', '.join(codes)})",
-                      QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"{atoms.source or 'model'}: {high} high-severity finding"
+            f"{'s' if high != 1 else ''} near the pore ({', '.join(codes)})",
+            QualityWarning,
+            stacklevel=2,
+        )
     return report

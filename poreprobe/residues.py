@@ -34,8 +34,22 @@ STANDARD_HEAVY_ATOMS: dict[str, tuple[str, ...]] = {
     "PRO": ("N", "CA", "C", "O", "CB", "CG", "CD"),
     "SER": ("N", "CA", "C", "O", "CB", "OG"),
     "THR": ("N", "CA", "C", "O", "CB", "OG1", "CG2"),
-    "TRP": ("N", "CA", "C", "O", "CB", "CG", "CD1", "CD2", "NE1", "CE2", "CE3", "CZ2", "CZ3",
-            "CH2"),
+    "TRP": (
+        "N",
+        "CA",
+        "C",
+        "O",
+        "CB",
+        "CG",
+        "CD1",
+        "CD2",
+        "NE1",
+        "CE2",
+        "CE3",
+        "CZ2",
+        "CZ3",
+        "CH2",
+    ),
     "TYR": ("N", "CA", "C", "O", "CB", "CG", "CD1", "CD2", "CE1", "CE2", "CZ", "OH"),
     "VAL": ("N", "CA", "C", "O", "CB", "CG1", "CG2"),
 }
@@ -44,14 +58,26 @@ STANDARD_HEAVY_ATOMS: dict[str, tuple[str, ...]] = {
 BACKBONE_HEAVY_ATOMS = frozenset({"N", "CA", "C", "O", "OXT", "OT1", "OT2"})
 
 #: Hydrogen names that sit on the backbone (PDB and common force-field spellings).
-BACKBONE_HYDROGENS = frozenset({"H", "HN", "HA", "HA2", "HA3", "H1", "H2", "H3", "HT1", "HT2",
-                                "HT3", "HXT"})
+BACKBONE_HYDROGENS = frozenset(
+    {"H", "HN", "HA", "HA2", "HA3", "H1", "H2", "H3", "HT1", "HT2", "HT3", "HXT"}
+)
 
 #: Force-field protonation-state names and the standard residue they stand for.
 RESIDUE_ALIASES: dict[str, str] = {
-    "HID": "HIS", "HIE": "HIS", "HIP": "HIS", "HSD": "HIS", "HSE": "HIS", "HSP": "HIS",
-    "HISD": "HIS", "HISE": "HIS", "HISH": "HIS", "CYX": "CYS", "CYM": "CYS", "ASH": "ASP",
-    "GLH": "GLU", "LYN": "LYS",
+    "HID": "HIS",
+    "HIE": "HIS",
+    "HIP": "HIS",
+    "HSD": "HIS",
+    "HSE": "HIS",
+    "HSP": "HIS",
+    "HISD": "HIS",
+    "HISE": "HIS",
+    "HISH": "HIS",
+    "CYX": "CYS",
+    "CYM": "CYS",
+    "ASH": "ASP",
+    "GLH": "GLU",
+    "LYN": "LYS",
 }
 
 #: Side-chain atom pairs that are chemically equivalent (a swap is the same molecule).
@@ -86,8 +112,11 @@ def is_backbone(names, elements) -> np.ndarray:
     """
     names = np.char.upper(np.asarray(names).astype(str))
     hydrogen = np.isin(np.char.upper(np.asarray(elements).astype(str)), ("H", "D"))
-    return np.where(hydrogen, np.isin(names, list(BACKBONE_HYDROGENS)),
-                    np.isin(names, list(BACKBONE_HEAVY_ATOMS)))
+    return np.where(
+        hydrogen,
+        np.isin(names, list(BACKBONE_HYDROGENS)),
+        np.isin(names, list(BACKBONE_HEAVY_ATOMS)),
+    )
 
 
 def missing_heavy_atoms(resname: str, present) -> tuple[tuple[str, ...], tuple[str, ...]]:

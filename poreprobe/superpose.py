@@ -66,8 +66,12 @@ class RigidTransform:
         return self.rotation @ np.asarray(vector, dtype=np.float64)
 
     def to_dict(self) -> dict:
-        return {"rotation": self.rotation.tolist(), "translation_A": self.translation_A.tolist(),
-                "rmsd_A": self.rmsd_A, "n_points": self.n_points}
+        return {
+            "rotation": self.rotation.tolist(),
+            "translation_A": self.translation_A.tolist(),
+            "rmsd_A": self.rmsd_A,
+            "n_points": self.n_points,
+        }
 
 
 def superpose(mobile, target) -> RigidTransform:
@@ -98,8 +102,7 @@ def superpose(mobile, target) -> RigidTransform:
     a = as_coords_A(mobile, "mobile")
     b = as_coords_A(target, "target")
     if a.shape != b.shape:
-        raise InputError(f"mobile and target must have the same shape, got {a.shape} and "
-                         f"{b.shape}")
+        raise InputError(f"mobile and target must have the same shape, got {a.shape} and {b.shape}")
     if len(a) < 3:
         raise InputError(f"superposition needs at least 3 matched points, got {len(a)}")
     rot = kabsch_rotation(a, b)

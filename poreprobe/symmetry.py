@@ -81,16 +81,21 @@ class SubunitDeviation:
 
     def by_label(self) -> dict[str, float]:
         """Residue label -> deviation (Å)."""
-        return {lab: float(dev) for labels, devs in zip(self.residue_labels, self.deviation_A,
-                                                        strict=True)
-                for lab, dev in zip(labels, devs, strict=True)}
+        return {
+            lab: float(dev)
+            for labels, devs in zip(self.residue_labels, self.deviation_A, strict=True)
+            for lab, dev in zip(labels, devs, strict=True)
+        }
 
     def to_dict(self) -> dict:
-        return {"chains": list(self.chains), "n_fold": self.n_fold,
-                "angles_deg": list(self.angles_deg),
-                "axis_point_A": self.axis_point_A.tolist(),
-                "axis_direction": self.axis_direction.tolist(),
-                "chain_rmsd_A": self.chain_rmsd_A.tolist()}
+        return {
+            "chains": list(self.chains),
+            "n_fold": self.n_fold,
+            "angles_deg": list(self.angles_deg),
+            "axis_point_A": self.axis_point_A.tolist(),
+            "axis_direction": self.axis_direction.tolist(),
+            "chain_rmsd_A": self.chain_rmsd_A.tolist(),
+        }
 
 
 def _matched_atoms(atoms: Atoms, chains: list[str]):
@@ -101,8 +106,13 @@ def _matched_atoms(atoms: Atoms, chains: list[str]):
     for ch in chains:
         rows = np.flatnonzero(heavy_poly & (atoms.chain == ch))
         table: dict[tuple, dict[str, int]] = {}
-        for i, r, ic, name in zip(rows, atoms.resid[rows].tolist(), atoms.icode[rows].tolist(),
-                                  atoms.name[rows].tolist(), strict=True):
+        for i, r, ic, name in zip(
+            rows,
+            atoms.resid[rows].tolist(),
+            atoms.icode[rows].tolist(),
+            atoms.name[rows].tolist(),
+            strict=True,
+        ):
             table.setdefault((r, ic), {}).setdefault(name, int(i))
         lookup.append(table)
     rows_out, ordinal = [], []
@@ -113,8 +123,10 @@ def _matched_atoms(atoms: Atoms, chains: list[str]):
                 rows_out.append([p[name] for p in per_chain])
                 ordinal.append(j)
     all_labels = atoms.residue_labels()
-    labels = tuple(tuple(str(all_labels[next(iter(lookup[k][key].values()))])
-                         for key in columns[k]) for k in range(len(chains)))
+    labels = tuple(
+        tuple(str(all_labels[next(iter(lookup[k][key].values()))]) for key in columns[k])
+        for k in range(len(chains))
+    )
     resnames = [str(atoms.resname[next(iter(lookup[0][key].values()))]) for key in columns[0]]
     return np.array(rows_out, dtype=np.int64).T, np.array(ordinal), labels, resnames
 
@@ -150,7 +162,7 @@ def _fit_centre(coords, angles, direction, keep, centre):
     m = coords.shape[1]
     for k, rot in zip(idx, rots, strict=True):
         a = np.eye(3) - rot @ mean_rt
-        b = mean_back @ rot.T - coords[k]            # (m, 3): R_k mean_j R_j^T x_j - x_k
+        b = mean_back @ rot.T - coords[k]  # (m, 3): R_k mean_j R_j^T x_j - x_k
         lhs += m * a.T @ a
         rhs -= a.T @ b.sum(0)
     sol = np.linalg.lstsq(lhs, rhs, rcond=None)[0]
@@ -189,7 +201,7 @@ def subunit_deviation(atoms: Atoms) -> SubunitDeviation | None:
     rows, ordinal, labels, resnames = _matched_atoms(atoms, chains)
     if rows.size == 0:
         return None
-    coords = atoms.coords_A[rows]                     # (n, m, 3)
+    coords = atoms.coords_A[rows]  # (n, m, 3)
     direction = axis.direction
     centre = axis.point_A.copy()
     backbone = np.isin(atoms.name[rows[0]], ("N", "CA", "C"))
@@ -203,7 +215,7 @@ def subunit_deviation(atoms: Atoms) -> SubunitDeviation | None:
 
     def deviations(c):
         mapped = np.stack([rotate_about(coords[k], c, direction, -angles[k]) for k in range(n)])
-        return np.linalg.norm(mapped - np.median(mapped, axis=0), axis=2)    # (n, m)
+        return np.linalg.norm(mapped - np.median(mapped, axis=0), axis=2)  # (n, m)
 
     def score(c):
         rms = np.sqrt((deviations(c) ** 2).mean(1))
@@ -215,8 +227,10 @@ def subunit_deviation(atoms: Atoms) -> SubunitDeviation | None:
     subsets = [np.ones(n, dtype=bool)]
     if n >= 3:
         subsets += [np.arange(n) != k for k in range(n)]
-    fits = [(score(c), c) for c in (_fit_centre(coords, angles, direction, keep, centre)
-                                    for keep in subsets)]
+    fits = [
+        (score(c), c)
+        for c in (_fit_centre(coords, angles, direction, keep, centre) for keep in subsets)
+    ]
     (best_score, rms), centre = min(fits, key=lambda f: f[0][0])
     med = float(np.median(rms))
     keep = rms <= max(2.0 * med, med + 1e-9)
@@ -233,7 +247,12 @@ def subunit_deviation(atoms: Atoms) -> SubunitDeviation | None:
     with np.errstate(invalid="ignore", divide="ignore"):
         deviation = np.where(counts > 0, np.sqrt(sums / np.maximum(counts, 1)), np.nan)
     return SubunitDeviation(
-        chains=tuple(chains), n_fold=n, angles_deg=tuple(float(np.degrees(a)) for a in angles),
-        axis_point_A=centre, axis_direction=np.array(direction, dtype=float),
-        residue_labels=labels, deviation_A=deviation,
-        chain_rmsd_A=np.sqrt((per_atom**2).mean(1)))
+        chains=tuple(chains),
+        n_fold=n,
+        angles_deg=tuple(float(np.degrees(a)) for a in angles),
+        axis_point_A=centre,
+        axis_direction=np.array(direction, dtype=float),
+        residue_labels=labels,
+        deviation_A=deviation,
+        chain_rmsd_A=np.sqrt((per_atom**2).mean(1)),
+    )

@@ -173,21 +173,35 @@ class PoreProfileAnalysis(AnalysisBase):
     def get_supported_backends(cls):
         return ("serial", "multiprocessing", "dask")
 
-    def __init__(self, atomgroup, *, axis_mode: str = "fixed", reference_frame: int = 0,
-                 align_selection: str | None = None, step_A: float = 0.25,
-                 margin_A: float = 2.0, max_radius_A: float = 20.0,
-                 s_range_A: tuple[float, float] | None = None,
-                 radii: str | RadiusSet = DEFAULT_RADIUS_SET, axis_method: str = "auto",
-                 axis_point_A=None, axis_direction=None,
-                 axis_selections: tuple[str, str] | None = None, entry: str | None = None,
-                 closed_below_A: float | None = None,
-                 percentiles=DEFAULT_PERCENTILES,
-                 capture_probe_radius_A: float | None = None,
-                 capture_from_end: str = "low", capture_spacing_A: float = 0.5,
-                 capture_pore_radius_A: float = 15.0, verbose: bool = False):
+    def __init__(
+        self,
+        atomgroup,
+        *,
+        axis_mode: str = "fixed",
+        reference_frame: int = 0,
+        align_selection: str | None = None,
+        step_A: float = 0.25,
+        margin_A: float = 2.0,
+        max_radius_A: float = 20.0,
+        s_range_A: tuple[float, float] | None = None,
+        radii: str | RadiusSet = DEFAULT_RADIUS_SET,
+        axis_method: str = "auto",
+        axis_point_A=None,
+        axis_direction=None,
+        axis_selections: tuple[str, str] | None = None,
+        entry: str | None = None,
+        closed_below_A: float | None = None,
+        percentiles=DEFAULT_PERCENTILES,
+        capture_probe_radius_A: float | None = None,
+        capture_from_end: str = "low",
+        capture_spacing_A: float = 0.5,
+        capture_pore_radius_A: float = 15.0,
+        verbose: bool = False,
+    ):
         if not hasattr(atomgroup, "universe") or not hasattr(atomgroup, "positions"):
-            raise InputError("atomgroup must be an MDAnalysis AtomGroup, got "
-                             f"{type(atomgroup).__name__}")
+            raise InputError(
+                f"atomgroup must be an MDAnalysis AtomGroup, got {type(atomgroup).__name__}"
+            )
         if len(atomgroup) < 2:
             raise InputError(f"atomgroup must hold at least 2 atoms, got {len(atomgroup)}")
         super().__init__(atomgroup.universe.trajectory, verbose=verbose)
@@ -196,34 +210,47 @@ class PoreProfileAnalysis(AnalysisBase):
         n_traj = len(atomgroup.universe.trajectory)
         self.reference_frame = check_int(reference_frame, "reference_frame", minimum=0)
         if self.reference_frame >= n_traj:
-            raise InputError(f"reference_frame must be between 0 and {n_traj - 1}, "
-                             f"got {reference_frame}")
+            raise InputError(
+                f"reference_frame must be between 0 and {n_traj - 1}, got {reference_frame}"
+            )
         self.step_A = check_positive(step_A, "step_A")
         self.margin_A = check_positive(margin_A, "margin_A", allow_zero=True)
         self.max_radius_A = check_positive(max_radius_A, "max_radius_A")
-        self.closed_below_A = (default_closing_threshold() if closed_below_A is None
-                               else check_positive(closed_below_A, "closed_below_A",
-                                                   allow_zero=True))
+        self.closed_below_A = (
+            default_closing_threshold()
+            if closed_below_A is None
+            else check_positive(closed_below_A, "closed_below_A", allow_zero=True)
+        )
         self.percentiles = _check_percentiles(percentiles)
         self.capture_probe_radius_A = (
-            None if capture_probe_radius_A is None
-            else check_positive(capture_probe_radius_A, "capture_probe_radius_A"))
+            None
+            if capture_probe_radius_A is None
+            else check_positive(capture_probe_radius_A, "capture_probe_radius_A")
+        )
         self._capture_options = {
             "from_end": check_choice(capture_from_end, "capture_from_end", ("low", "high")),
             "spacing_A": check_positive(capture_spacing_A, "capture_spacing_A"),
             "pore_radius_A": check_positive(capture_pore_radius_A, "capture_pore_radius_A"),
         }
         self.radius_set = get_radius_set(radii)
-        self._axis_options = {"method": axis_method, "point_A": axis_point_A,
-                              "direction": axis_direction, "selections": axis_selections,
-                              "entry": entry}
+        self._axis_options = {
+            "method": axis_method,
+            "point_A": axis_point_A,
+            "direction": axis_direction,
+            "selections": axis_selections,
+            "entry": entry,
+        }
         self._frame_bar = None
 
         traj = atomgroup.universe.trajectory
         here = traj.ts.frame
         if not _has_time_step(traj):
-            warnings.warn(f"{_source_name(atomgroup)} gives no time step: frame times are "
-                          "reported as frame number x 1 ps", QualityWarning, stacklevel=2)
+            warnings.warn(
+                f"{_source_name(atomgroup)} gives no time step: frame times are "
+                "reported as frame number x 1 ps",
+                QualityWarning,
+                stacklevel=2,
+            )
         try:
             traj[self.reference_frame]
             self._template = atoms_from_atomgroup(atomgroup, source=_source_name(atomgroup))
@@ -234,34 +261,51 @@ class PoreProfileAnalysis(AnalysisBase):
                 warnings.warn(w.message, w.category, stacklevel=2)
             self._align = None
             if self.axis_mode == "fixed":
-                self._align = (atomgroup if align_selection is None
-                               else select_in_universe(atomgroup.universe, align_selection))
+                self._align = (
+                    atomgroup
+                    if align_selection is None
+                    else select_in_universe(atomgroup.universe, align_selection)
+                )
                 if len(self._align) < 3:
-                    raise InputError("align_selection must match at least 3 atoms, got "
-                                     f"{len(self._align)}")
+                    raise InputError(
+                        f"align_selection must match at least 3 atoms, got {len(self._align)}"
+                    )
                 self._align_ref_A = np.array(self._align.positions, dtype=np.float64)
             self.align_selection = align_selection
             ref_atoms = self._template
-            self.reference_axis = find_pore_axis(ref_atoms, radii_A=self._radii_A,
-                                                 **self._axis_options)
-            self._s_range_A = (_check_range(s_range_A) if s_range_A is not None else
-                               _grid_range_A(self.reference_axis.s_A(ref_atoms.coords_A),
-                                             self.step_A, self.margin_A))
+            self.reference_axis = find_pore_axis(
+                ref_atoms, radii_A=self._radii_A, **self._axis_options
+            )
+            self._s_range_A = (
+                _check_range(s_range_A)
+                if s_range_A is not None
+                else _grid_range_A(
+                    self.reference_axis.s_A(ref_atoms.coords_A), self.step_A, self.margin_A
+                )
+            )
             # the reference frame's profile checks every option once and fixes the grid
             try:
                 self.s_A = self._profile(ref_atoms, self.reference_axis).s_A
             except PoreNotFoundError:
                 lo, hi = self._s_range_A
-                self.s_A = np.arange(np.floor(lo / self.step_A),
-                                     np.ceil(hi / self.step_A) + 1) * self.step_A
+                self.s_A = (
+                    np.arange(np.floor(lo / self.step_A), np.ceil(hi / self.step_A) + 1)
+                    * self.step_A
+                )
         finally:
             traj[here]
 
     # -- per-frame work -----------------------------------------------------
 
     def _profile(self, atoms: Atoms, axis: PoreAxis):
-        return radius_profile(atoms, axis, radii_A=self._radii_A, step_A=self.step_A,
-                              max_radius_A=self.max_radius_A, s_range_A=self._s_range_A)
+        return radius_profile(
+            atoms,
+            axis,
+            radii_A=self._radii_A,
+            step_A=self.step_A,
+            max_radius_A=self.max_radius_A,
+            s_range_A=self._s_range_A,
+        )
 
     def frame_atoms_and_axis(self) -> tuple[Atoms, PoreAxis, PoreAxis, float]:
         """The current frame's atoms and axis as the profile sees them.
@@ -292,17 +336,21 @@ class PoreProfileAnalysis(AnalysisBase):
         rot = np.asarray(rot, dtype=np.float64)
         moved = (atoms.coords_A - mob_centre) @ rot.T + ref_centre
         ref = self.reference_axis
-        frame_axis = PoreAxis((ref.point_A - ref_centre) @ rot + mob_centre,
-                              ref.direction @ rot, ref.method, ref.n_fold,
-                              ref.symmetry_rmsd_A, ref.oriented_by)
+        frame_axis = PoreAxis(
+            (ref.point_A - ref_centre) @ rot + mob_centre,
+            ref.direction @ rot,
+            ref.method,
+            ref.n_fold,
+            ref.symmetry_rmsd_A,
+            ref.oriented_by,
+        )
         return atoms.with_coords(moved), ref, frame_axis, float(rmsd)
 
     def _compute(self, indexed_frames, verbose=None, *, progressbar_kwargs=None):
         # the missing-time-step warning was given once in __init__; not again per block
         with warnings.catch_warnings():
             warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)
-            return super()._compute(indexed_frames, verbose,
-                                    progressbar_kwargs=progressbar_kwargs)
+            return super()._compute(indexed_frames, verbose, progressbar_kwargs=progressbar_kwargs)
 
     def _prepare(self):
         n, p = self.n_frames, len(self.s_A)
@@ -340,8 +388,13 @@ class PoreProfileAnalysis(AnalysisBase):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # per-frame scan notes would repeat every frame
             try:
-                scan = probe_scan(atoms, axis, probe_radii_A=[self.capture_probe_radius_A],
-                                  radii_A=self._radii_A, **self._capture_options)
+                scan = probe_scan(
+                    atoms,
+                    axis,
+                    probe_radii_A=[self.capture_probe_radius_A],
+                    radii_A=self._radii_A,
+                    **self._capture_options,
+                )
             except PoreNotFoundError:
                 return float("nan")
         return float(capture_radius_at(scan, self.capture_probe_radius_A))
@@ -354,21 +407,26 @@ class PoreProfileAnalysis(AnalysisBase):
         min_r = self.results.min_radius_A
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", RuntimeWarning)  # all-NaN planes, one frame
-            self.results.mean_radius_A = np.nanmean(radius, axis=0) if len(radius) else \
-                np.full(len(self.s_A), np.nan)
+            self.results.mean_radius_A = (
+                np.nanmean(radius, axis=0) if len(radius) else np.full(len(self.s_A), np.nan)
+            )
             self.results.sd_radius_A = _nan_sd(radius)
             self.results.percentile_radius_A = _nan_percentiles(radius, self.percentiles)
-            self.results.min_radius_mean_A = float(np.nanmean(min_r)) if len(min_r) else \
-                float("nan")
+            self.results.min_radius_mean_A = (
+                float(np.nanmean(min_r)) if len(min_r) else float("nan")
+            )
             self.results.min_radius_sd_A = float(_nan_sd(min_r[:, None])[0])
             self.results.min_radius_percentiles_A = _nan_percentiles(
-                min_r[:, None], self.percentiles)[:, 0]
+                min_r[:, None], self.percentiles
+            )[:, 0]
             capture = self.results.capture_radius_A
-            self.results.capture_mean_A = float(np.nanmean(capture)) if len(capture) else \
-                float("nan")
+            self.results.capture_mean_A = (
+                float(np.nanmean(capture)) if len(capture) else float("nan")
+            )
             self.results.capture_sd_A = float(_nan_sd(capture[:, None])[0])
             self.results.capture_percentiles_A = _nan_percentiles(
-                capture[:, None], self.percentiles)[:, 0]
+                capture[:, None], self.percentiles
+            )[:, 0]
         self.results.n_enclosed = np.isfinite(radius).sum(axis=0)
         self.results.closed = np.isfinite(min_r) & (min_r < self.closed_below_A)
         self.results.closed_frames = np.asarray(self.frames)[self.results.closed]
@@ -388,27 +446,36 @@ class PoreProfileAnalysis(AnalysisBase):
         return TrajectoryProfiles(
             frames=np.asarray(self.frames, dtype=np.int64),
             times_ps=np.asarray(self.times, dtype=np.float64),
-            s_A=np.asarray(self.s_A), radius_A=np.asarray(r.radius_A),
-            min_radius_A=np.asarray(r.min_radius_A), min_s_A=np.asarray(r.min_s_A),
-            capture_radius_A=(np.asarray(r.capture_radius_A)
-                              if self.capture_probe_radius_A is not None else None),
-            capture_mean_A=r.capture_mean_A, capture_sd_A=r.capture_sd_A,
+            s_A=np.asarray(self.s_A),
+            radius_A=np.asarray(r.radius_A),
+            min_radius_A=np.asarray(r.min_radius_A),
+            min_s_A=np.asarray(r.min_s_A),
+            capture_radius_A=(
+                np.asarray(r.capture_radius_A) if self.capture_probe_radius_A is not None else None
+            ),
+            capture_mean_A=r.capture_mean_A,
+            capture_sd_A=r.capture_sd_A,
             capture_percentiles_A=np.asarray(r.capture_percentiles_A),
             capture_probe_radius_A=self.capture_probe_radius_A,
-            fit_rmsd_A=np.asarray(r.fit_rmsd_A), axis_point_A=np.asarray(r.axis_point_A),
+            fit_rmsd_A=np.asarray(r.fit_rmsd_A),
+            axis_point_A=np.asarray(r.axis_point_A),
             axis_direction=np.asarray(r.axis_direction),
-            mean_radius_A=np.asarray(r.mean_radius_A), sd_radius_A=np.asarray(r.sd_radius_A),
+            mean_radius_A=np.asarray(r.mean_radius_A),
+            sd_radius_A=np.asarray(r.sd_radius_A),
             percentiles=self.percentiles,
             percentile_radius_A=np.asarray(r.percentile_radius_A),
             n_enclosed=np.asarray(r.n_enclosed),
-            min_radius_mean_A=r.min_radius_mean_A, min_radius_sd_A=r.min_radius_sd_A,
+            min_radius_mean_A=r.min_radius_mean_A,
+            min_radius_sd_A=r.min_radius_sd_A,
             min_radius_percentiles_A=np.asarray(r.min_radius_percentiles_A),
             closed_below_A=self.closed_below_A,
             closed_frames=np.asarray(r.closed_frames, dtype=np.int64),
-            reference_axis=self.reference_axis, axis_mode=self.axis_mode,
+            reference_axis=self.reference_axis,
+            axis_mode=self.axis_mode,
             reference_frame=self.reference_frame,
             align_selection=self.align_selection if self.axis_mode == "fixed" else None,
-            radius_set=self.radius_set.name, step_A=self.step_A,
+            radius_set=self.radius_set.name,
+            step_A=self.step_A,
             max_radius_A=self.max_radius_A,
             n_atoms=len(self.atomgroup),
             source=_source_name(self.atomgroup),
@@ -526,22 +593,32 @@ class TrajectoryProfiles:
                 "sd_radius_A": self.sd_radius_A,
                 "n_enclosed": self.n_enclosed,
                 "percentiles": list(self.percentiles),
-                **{f"{lab}_radius_A": row for lab, row in
-                   zip(levels, self.percentile_radius_A, strict=True)},
+                **{
+                    f"{lab}_radius_A": row
+                    for lab, row in zip(levels, self.percentile_radius_A, strict=True)
+                },
             },
             "min_radius": {
                 "mean_A": self.min_radius_mean_A,
                 "sd_A": self.min_radius_sd_A,
-                **{f"{lab}_A": float(v) for lab, v in
-                   zip(levels, self.min_radius_percentiles_A, strict=True)},
+                **{
+                    f"{lab}_A": float(v)
+                    for lab, v in zip(levels, self.min_radius_percentiles_A, strict=True)
+                },
             },
-            "capture": ({
-                "probe_radius_A": self.capture_probe_radius_A,
-                "mean_A": self.capture_mean_A,
-                "sd_A": self.capture_sd_A,
-                **{f"{lab}_A": float(v) for lab, v in
-                   zip(levels, self.capture_percentiles_A, strict=True)},
-            } if self.capture_probe_radius_A is not None else None),
+            "capture": (
+                {
+                    "probe_radius_A": self.capture_probe_radius_A,
+                    "mean_A": self.capture_mean_A,
+                    "sd_A": self.capture_sd_A,
+                    **{
+                        f"{lab}_A": float(v)
+                        for lab, v in zip(levels, self.capture_percentiles_A, strict=True)
+                    },
+                }
+                if self.capture_probe_radius_A is not None
+                else None
+            ),
             "closed_frames": self.closed_frames,
             "per_frame": {
                 "frame": self.frames,
@@ -561,9 +638,17 @@ def planes_csv(result: TrajectoryProfiles, path=None) -> str:
     """CSV of the per-plane statistics: s, mean, SD, percentiles, frames enclosed."""
     levels = [f"p{_level_label(q)}_radius_A" for q in result.percentiles]
     header = ("s_A", "mean_radius_A", "sd_radius_A", *levels, "n_enclosed")
-    rows = ([float(s), float(m), float(sd), *map(float, pct), int(n)] for s, m, sd, pct, n in
-            zip(result.s_A, result.mean_radius_A, result.sd_radius_A,
-                result.percentile_radius_A.T, result.n_enclosed, strict=True))
+    rows = (
+        [float(s), float(m), float(sd), *map(float, pct), int(n)]
+        for s, m, sd, pct, n in zip(
+            result.s_A,
+            result.mean_radius_A,
+            result.sd_radius_A,
+            result.percentile_radius_A.T,
+            result.n_enclosed,
+            strict=True,
+        )
+    )
     return to_csv(header, rows, path, _comments(result, "per-plane statistics over frames"))
 
 
@@ -577,8 +662,12 @@ def frames_csv(result: TrajectoryProfiles, path=None) -> str:
     closed = set(result.closed_frames.tolist())
     rows = []
     for k, frame in enumerate(result.frames):
-        row = [int(frame), float(result.times_ps[k]), float(result.min_radius_A[k]),
-               float(result.min_s_A[k])]
+        row = [
+            int(frame),
+            float(result.times_ps[k]),
+            float(result.min_radius_A[k]),
+            float(result.min_s_A[k]),
+        ]
         if result.capture_radius_A is not None:
             row.append(float(result.capture_radius_A[k]))
         row += [float(result.fit_rmsd_A[k]), int(int(frame) in closed)]
@@ -587,10 +676,12 @@ def frames_csv(result: TrajectoryProfiles, path=None) -> str:
 
 
 def _comments(result: TrajectoryProfiles, what: str) -> tuple[str, ...]:
-    return (f"poreprobe {result.version} {what}: {result.source} {result.trajectory}".rstrip(),
-            f"radius set: {result.radius_set}; model-based estimates; lengths in Å; "
-            f"{result.n_frames} frames; axis {result.axis_mode}",
-            f"closed: minimum radius below {result.closed_below_A:g} Å")
+    return (
+        f"poreprobe {result.version} {what}: {result.source} {result.trajectory}".rstrip(),
+        f"radius set: {result.radius_set}; model-based estimates; lengths in Å; "
+        f"{result.n_frames} frames; axis {result.axis_mode}",
+        f"closed: minimum radius below {result.closed_below_A:g} Å",
+    )
 
 
 def _level_label(q: float) -> str:
@@ -601,8 +692,7 @@ def _check_percentiles(percentiles) -> tuple[float, ...]:
     try:
         values = tuple(float(q) for q in percentiles)
     except TypeError as exc:
-        raise InputError(f"percentiles must be a sequence of numbers, got {percentiles!r}") \
-            from exc
+        raise InputError(f"percentiles must be a sequence of numbers, got {percentiles!r}") from exc
     if not values:
         raise InputError("percentiles must hold at least one level")
     return tuple(check_range(q, "percentiles", 0.0, 100.0) for q in values)
@@ -616,8 +706,9 @@ def _grid_range_A(s_atoms_A: np.ndarray, step_A: float, margin_A: float) -> tupl
     profile's floor/ceil of range/step lands on the same multiples every frame.
     """
     planes = plane_positions_A(s_atoms_A, step_A, margin_A)
-    return float(planes[0]) + 0.25 * step_A, max(float(planes[-1]) - 0.25 * step_A,
-                                                 float(planes[0]) + 0.5 * step_A)
+    return float(planes[0]) + 0.25 * step_A, max(
+        float(planes[-1]) - 0.25 * step_A, float(planes[0]) + 0.5 * step_A
+    )
 
 
 def _check_range(s_range_A) -> tuple[float, float]:
@@ -636,8 +727,7 @@ def _nan_sd(values: np.ndarray) -> np.ndarray:
     count = finite.sum(axis=0)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
-        sd = np.nanstd(values, axis=0, ddof=1) if len(values) else np.full(values.shape[1],
-                                                                           np.nan)
+        sd = np.nanstd(values, axis=0, ddof=1) if len(values) else np.full(values.shape[1], np.nan)
     return np.where(count >= 2, sd, np.nan)
 
 
@@ -664,11 +754,21 @@ def _source_name(atomgroup) -> str:
     return os.path.basename(str(name)) if name else "Universe"
 
 
-def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
-                       start: int | None = None, stop: int | None = None,
-                       step: int | None = None, backend="serial", n_workers: int | None = 1,
-                       scheduler: str | None = None, n_parts: int | None = None,
-                       quiet: bool = True, **options) -> TrajectoryProfiles:
+def profile_trajectory(
+    topology,
+    trajectory=None,
+    *,
+    select: str = "protein",
+    start: int | None = None,
+    stop: int | None = None,
+    step: int | None = None,
+    backend="serial",
+    n_workers: int | None = 1,
+    scheduler: str | None = None,
+    n_parts: int | None = None,
+    quiet: bool = True,
+    **options,
+) -> TrajectoryProfiles:
     """Open a trajectory, run :class:`PoreProfileAnalysis` on a backend, return the summary.
 
     Parameters
@@ -723,8 +823,12 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
     universe = open_universe(topology, trajectory)
     if not _has_time_step(universe.trajectory):
         # say it once here; a time step of 1 ps keeps workers from repeating it
-        warnings.warn(f"{os.path.basename(topology)} gives no time step: frame times are "
-                      "reported as frame number x 1 ps", QualityWarning, stacklevel=2)
+        warnings.warn(
+            f"{os.path.basename(topology)} gives no time step: frame times are "
+            "reported as frame number x 1 ps",
+            QualityWarning,
+            stacklevel=2,
+        )
         import MDAnalysis
 
         with warnings.catch_warnings():
@@ -736,15 +840,18 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
             check_int(value, name, minimum=1 if name == "step" else 0)
     frames = range(*slice(start, stop, step).indices(len(traj)))
     if len(frames) == 0:
-        raise InputError(f"no frames selected (start={start}, stop={stop}, step={step}, "
-                         f"{len(traj)} frames in the trajectory)")
+        raise InputError(
+            f"no frames selected (start={start}, stop={stop}, step={step}, "
+            f"{len(traj)} frames in the trajectory)"
+        )
     atomgroup = select_in_universe(universe, select)
     analysis = PoreProfileAnalysis(atomgroup, **options)
     if isinstance(backend, BackendBase):
         context = contextlib.nullcontext(backend)
     else:
-        context = open_backend(backend, n_workers=n_workers,
-                               scheduler=scheduler, quiet=quiet, desc="frame blocks")
+        context = open_backend(
+            backend, n_workers=n_workers, scheduler=scheduler, quiet=quiet, desc="frame blocks"
+        )
     with context as executor:
         if isinstance(executor, BackendSerial):  # a bar that advances frame by frame
             from poreprobe._progress import progress
@@ -762,8 +869,17 @@ def profile_trajectory(topology, trajectory=None, *, select: str = "protein",
             with warnings.catch_warnings():
                 warnings.filterwarnings("ignore", message="Analysis not making use of all")
                 warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)  # when serialised
-                analysis.run(start=start, stop=stop, step=step, backend=executor,
-                             n_parts=parts, unsupported_backend=True)
+                analysis.run(
+                    start=start,
+                    stop=stop,
+                    step=step,
+                    backend=executor,
+                    n_parts=parts,
+                    unsupported_backend=True,
+                )
     result = analysis.summary()
-    return replace(result, source=os.path.basename(topology),
-                   trajectory=os.path.basename(trajectory) if trajectory else "")
+    return replace(
+        result,
+        source=os.path.basename(topology),
+        trajectory=os.path.basename(trajectory) if trajectory else "",
+    )

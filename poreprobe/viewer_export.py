@@ -109,8 +109,7 @@ class FieldGrid:
 
     def axes_A(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:  # noqa: N802
         """The x, y and z coordinates of the grid planes (Å)."""
-        return tuple((self.start[k] + np.arange(self.shape[k])) * self.spacing_A
-                     for k in range(3))
+        return tuple((self.start[k] + np.arange(self.shape[k])) * self.spacing_A for k in range(3))
 
     def region_mask(self) -> np.ndarray:
         """Boolean (nx, ny, nz): grid points inside the cylinder around the pore axis."""
@@ -124,10 +123,17 @@ class FieldGrid:
 
     def to_dict(self) -> dict:
         """Metadata (not the values) for reports."""
-        return {"field": self.field, "shape": list(self.shape), "spacing_A": self.spacing_A,
-                "origin_A": self.origin_A.tolist(), "region_radius_A": self.region_radius_A,
-                "s_range_A": list(self.s_range_A), "radius_set": self.radius_set,
-                "source": self.source, "version": self.version}
+        return {
+            "field": self.field,
+            "shape": list(self.shape),
+            "spacing_A": self.spacing_A,
+            "origin_A": self.origin_A.tolist(),
+            "region_radius_A": self.region_radius_A,
+            "s_range_A": list(self.s_range_A),
+            "radius_set": self.radius_set,
+            "source": self.source,
+            "version": self.version,
+        }
 
 
 def default_region_radius_A(profile: RadiusProfile, *, padding_A: float = 2.0) -> float:  # noqa: N802
@@ -143,10 +149,16 @@ def default_region_radius_A(profile: RadiusProfile, *, padding_A: float = 2.0) -
     return float(np.max(profile.radius_A[ok] + offset)) + padding_A
 
 
-def clearance_grid(atoms: Atoms, profile: RadiusProfile, *,
-                   radii: str | RadiusSet = DEFAULT_RADIUS_SET,
-                   radii_A: np.ndarray | None = None, spacing_A: float = 0.5,
-                   region_radius_A: float | None = None, quiet: bool = True) -> FieldGrid:
+def clearance_grid(
+    atoms: Atoms,
+    profile: RadiusProfile,
+    *,
+    radii: str | RadiusSet = DEFAULT_RADIUS_SET,
+    radii_A: np.ndarray | None = None,
+    spacing_A: float = 0.5,
+    region_radius_A: float | None = None,
+    quiet: bool = True,
+) -> FieldGrid:
     """Clearance on a Cartesian grid around the pore.
 
     Parameters
@@ -180,8 +192,11 @@ def clearance_grid(atoms: Atoms, profile: RadiusProfile, *,
     if not isinstance(profile, RadiusProfile):
         raise InputError(f"profile must be a RadiusProfile, got {type(profile).__name__}")
     spacing_A = check_range(spacing_A, "spacing_A", 0.05, 5.0)
-    region_radius_A = (default_region_radius_A(profile) if region_radius_A is None
-                       else check_positive(region_radius_A, "region_radius_A"))
+    region_radius_A = (
+        default_region_radius_A(profile)
+        if region_radius_A is None
+        else check_positive(region_radius_A, "region_radius_A")
+    )
     if radii_A is None:
         radii_A = atom_radii_A(atoms, radii)
         radius_set = radii.name if isinstance(radii, RadiusSet) else str(radii)
@@ -192,12 +207,24 @@ def clearance_grid(atoms: Atoms, profile: RadiusProfile, *,
     s_lo, s_hi = float(profile.s_A[0]), float(profile.s_A[-1])
     start, shape = _cartesian_box(axis, (s_lo, s_hi), region_radius_A, spacing_A)
     values = np.empty(shape, dtype=np.float64)
-    for rows, pts in progress(_point_blocks(start, shape, spacing_A), desc="clearance grid",
-                              quiet=quiet, total=_n_blocks(shape)):
+    for rows, pts in progress(
+        _point_blocks(start, shape, spacing_A),
+        desc="clearance grid",
+        quiet=quiet,
+        total=_n_blocks(shape),
+    ):
         values[rows] = spheres.clearance_A(pts).reshape(-1, shape[1], shape[2])
-    return FieldGrid(values_A=values, start=start, spacing_A=spacing_A, field="clearance",
-                     axis=axis, region_radius_A=region_radius_A, s_range_A=(s_lo, s_hi),
-                     radius_set=radius_set, source=atoms.source)
+    return FieldGrid(
+        values_A=values,
+        start=start,
+        spacing_A=spacing_A,
+        field="clearance",
+        axis=axis,
+        region_radius_A=region_radius_A,
+        s_range_A=(s_lo, s_hi),
+        radius_set=radius_set,
+        source=atoms.source,
+    )
 
 
 def _cartesian_box(axis, s_range_A, radius_A: float, spacing_A: float):
@@ -210,8 +237,10 @@ def _cartesian_box(axis, s_range_A, radius_A: float, spacing_A: float):
     shape = tuple(int(n) for n in stop - start + 1)
     n_points = int(np.prod(shape))
     if n_points > MAX_GRID_POINTS:
-        raise InputError(f"the grid would hold {n_points:,} points (limit {MAX_GRID_POINTS:,}); "
-                         f"use a larger spacing_A than {spacing_A} or a smaller region")
+        raise InputError(
+            f"the grid would hold {n_points:,} points (limit {MAX_GRID_POINTS:,}); "
+            f"use a larger spacing_A than {spacing_A} or a smaller region"
+        )
     return start, shape
 
 
@@ -229,9 +258,11 @@ def _point_blocks(start, shape, spacing_A: float):
     yz = np.stack(np.meshgrid(y, z, indexing="ij"), axis=-1).reshape(-1, 2)
     step = _rows_per_block(shape)
     for i0 in range(0, shape[0], step):
-        xs = x[i0:i0 + step]
-        yield slice(i0, i0 + len(xs)), np.column_stack([np.repeat(xs, len(yz)),
-                                                        np.tile(yz, (len(xs), 1))])
+        xs = x[i0 : i0 + step]
+        yield (
+            slice(i0, i0 + len(xs)),
+            np.column_stack([np.repeat(xs, len(yz)), np.tile(yz, (len(xs), 1))]),
+        )
 
 
 def reach_grid(field, *, spacing_A: float | None = None, quiet: bool = True) -> FieldGrid:
@@ -272,20 +303,33 @@ def reach_grid(field, *, spacing_A: float | None = None, quiet: bool = True) -> 
     low = -field.spacing_A
     reach = np.asarray(field.reach_A)
     clearance = np.asarray(field.clearance_A)
-    voxels = np.where(np.isfinite(reach), reach,
-                      np.where(np.isfinite(clearance) & (clearance < 0), clearance, low))
+    voxels = np.where(
+        np.isfinite(reach),
+        reach,
+        np.where(np.isfinite(clearance) & (clearance < 0), clearance, low),
+    )
     voxels = np.where(field.inside, voxels, low)
     s_range = (float(field.s_A[0]), float(field.s_A[-1]))
     start, shape = _cartesian_box(field.axis, s_range, field.pore_radius_A, h)
     values = np.empty(shape, dtype=np.float64)
-    for rows, pts in progress(_point_blocks(start, shape, h), desc="reach map", quiet=quiet,
-                              total=_n_blocks(shape)):
+    for rows, pts in progress(
+        _point_blocks(start, shape, h), desc="reach map", quiet=quiet, total=_n_blocks(shape)
+    ):
         index = (field.axis.to_frame(pts) - field.origin_A) / field.spacing_A
-        values[rows] = map_coordinates(voxels, index.T, order=1, mode="constant",
-                                       cval=low).reshape(-1, shape[1], shape[2])
-    return FieldGrid(values_A=values, start=start, spacing_A=h, field="reach", axis=field.axis,
-                     region_radius_A=field.pore_radius_A, s_range_A=s_range,
-                     radius_set=field.radius_set, source=field.source)
+        values[rows] = map_coordinates(voxels, index.T, order=1, mode="constant", cval=low).reshape(
+            -1, shape[1], shape[2]
+        )
+    return FieldGrid(
+        values_A=values,
+        start=start,
+        spacing_A=h,
+        field="reach",
+        axis=field.axis,
+        region_radius_A=field.pore_radius_A,
+        s_range_A=s_range,
+        radius_set=field.radius_set,
+        source=field.source,
+    )
 
 
 def check_suffix(path, suffixes, what) -> str:
@@ -337,8 +381,10 @@ def write_map(grid: FieldGrid, path) -> None:
         ccp4.set_header_i32(word, int(value))
     for word in (50, 51, 52):
         ccp4.set_header_float(word, 0.0)
-    labels = [f"poreprobe {grid.version}: {grid.field} in angstrom (model-based estimate)",
-              f"radius set {grid.radius_set}; source {grid.source}"[:80]]
+    labels = [
+        f"poreprobe {grid.version}: {grid.field} in angstrom (model-based estimate)",
+        f"radius set {grid.radius_set}; source {grid.source}"[:80],
+    ]
     ccp4.set_header_i32(56, len(labels))
     for k, label in enumerate(labels):
         ccp4.set_header_str(57 + 20 * k, label[:80].ljust(80))
@@ -346,6 +392,7 @@ def write_map(grid: FieldGrid, path) -> None:
 
 
 # --------------------------------------------------------------------------- surface mesh
+
 
 @dataclass(frozen=True)
 class PoreSurface:
@@ -387,10 +434,16 @@ class PoreSurface:
         return boundary_edges(self.faces)
 
     def to_dict(self) -> dict:
-        return {"n_vertices": len(self.vertices_A), "n_faces": len(self.faces),
-                "n_boundary_edges": len(self.boundary_edges()),
-                "probe_radius_A": self.probe_radius_A, "spacing_A": self.spacing_A,
-                "radius_set": self.radius_set, "source": self.source, "version": self.version}
+        return {
+            "n_vertices": len(self.vertices_A),
+            "n_faces": len(self.faces),
+            "n_boundary_edges": len(self.boundary_edges()),
+            "probe_radius_A": self.probe_radius_A,
+            "spacing_A": self.spacing_A,
+            "radius_set": self.radius_set,
+            "source": self.source,
+            "version": self.version,
+        }
 
 
 def boundary_edges(faces) -> np.ndarray:
@@ -413,20 +466,23 @@ def _all_corners(mask: np.ndarray) -> np.ndarray:
     for dx in (0, 1):
         for dy in (0, 1):
             for dz in (0, 1):
-                core &= mask[dx:dx + mask.shape[0] - 1, dy:dy + mask.shape[1] - 1,
-                             dz:dz + mask.shape[2] - 1]
+                core &= mask[
+                    dx : dx + mask.shape[0] - 1,
+                    dy : dy + mask.shape[1] - 1,
+                    dz : dz + mask.shape[2] - 1,
+                ]
     out[1:, 1:, 1:] = core
     return out
 
 
 def local_radius_A(profile: RadiusProfile, s_A) -> np.ndarray:  # noqa: N802
     """Profile radius at axial positions ``s_A`` (linear in s; NaN next to open planes)."""
-    return np.interp(np.asarray(s_A, dtype=float), profile.s_A, profile.radius_A,
-                     left=np.nan, right=np.nan)
+    return np.interp(
+        np.asarray(s_A, dtype=float), profile.s_A, profile.radius_A, left=np.nan, right=np.nan
+    )
 
 
-def pore_surface(grid: FieldGrid, profile: RadiusProfile, *, probe_radius_A: float
-                 ) -> PoreSurface:
+def pore_surface(grid: FieldGrid, profile: RadiusProfile, *, probe_radius_A: float) -> PoreSurface:
     """Surface traced by the centre of a probe of radius p inside the pore.
 
     Parameters
@@ -471,21 +527,33 @@ def pore_surface(grid: FieldGrid, profile: RadiusProfile, *, probe_radius_A: flo
     seed_labels = np.unique(labels[tuple(seeds[in_box].T)])
     seed_labels = seed_labels[seed_labels > 0]
     if seed_labels.size == 0:
-        raise PoreNotFoundError(f"no part of the pore admits a probe of radius {p:g} Å "
-                                f"(narrowest radius {profile.min_radius_A:.2f} Å, "
-                                f"grid spacing {grid.spacing_A:g} Å)")
+        raise PoreNotFoundError(
+            f"no part of the pore admits a probe of radius {p:g} Å "
+            f"(narrowest radius {profile.min_radius_A:.2f} Å, "
+            f"grid spacing {grid.spacing_A:g} Å)"
+        )
     keep = np.isin(labels, seed_labels)
     volume = np.where(inside & ~keep, p - grid.spacing_A, grid.values_A)
     verts, faces, normals, _ = marching_cubes(
-        volume, level=p, spacing=(grid.spacing_A,) * 3, mask=_all_corners(region),
-        allow_degenerate=False)
+        volume,
+        level=p,
+        spacing=(grid.spacing_A,) * 3,
+        mask=_all_corners(region),
+        allow_degenerate=False,
+    )
     verts_A = verts + grid.origin_A
     s = grid.axis.s_A(verts_A)
-    return PoreSurface(vertices_A=verts_A, faces=faces.astype(np.int64),
-                       normals=np.asarray(normals, dtype=np.float64), s_A=s,
-                       local_radius_A=local_radius_A(profile, s), probe_radius_A=p,
-                       spacing_A=grid.spacing_A, radius_set=grid.radius_set,
-                       source=grid.source)
+    return PoreSurface(
+        vertices_A=verts_A,
+        faces=faces.astype(np.int64),
+        normals=np.asarray(normals, dtype=np.float64),
+        s_A=s,
+        local_radius_A=local_radius_A(profile, s),
+        probe_radius_A=p,
+        spacing_A=grid.spacing_A,
+        radius_set=grid.radius_set,
+        source=grid.source,
+    )
 
 
 def _mesh_colors(surface: PoreSurface, radius_range_A) -> np.ndarray:
@@ -504,8 +572,13 @@ def _mesh_colors(surface: PoreSurface, radius_range_A) -> np.ndarray:
     return radius_colors(surface.local_radius_A, vmin_A=lo, vmax_A=hi)
 
 
-def write_mesh(surface: PoreSurface, path, *, color_by_radius: bool = True,
-               radius_range_A: tuple[float, float] | None = None) -> None:
+def write_mesh(
+    surface: PoreSurface,
+    path,
+    *,
+    color_by_radius: bool = True,
+    radius_range_A: tuple[float, float] | None = None,
+) -> None:
     """Write a pore surface as ASCII PLY or Wavefront OBJ, atomically.
 
     Parameters
@@ -530,11 +603,13 @@ def write_mesh(surface: PoreSurface, path, *, color_by_radius: bool = True,
     if not isinstance(surface, PoreSurface):
         raise InputError(f"surface must be a PoreSurface, got {type(surface).__name__}")
     colors = _mesh_colors(surface, radius_range_A) if color_by_radius else None
-    header = [f"poreprobe {surface.version}: pore surface traced by the centre of a probe of "
-              f"radius {surface.probe_radius_A:g} A (isosurface clearance = probe radius)",
-              f"model-based estimate; radius set {surface.radius_set}; grid spacing "
-              f"{surface.spacing_A:g} A; coordinates in angstrom in the frame of "
-              f"{surface.source or 'the input model'}"]
+    header = [
+        f"poreprobe {surface.version}: pore surface traced by the centre of a probe of "
+        f"radius {surface.probe_radius_A:g} A (isosurface clearance = probe radius)",
+        f"model-based estimate; radius set {surface.radius_set}; grid spacing "
+        f"{surface.spacing_A:g} A; coordinates in angstrom in the frame of "
+        f"{surface.source or 'the input model'}",
+    ]
     if colors is not None:
         header.append("colour: local pore radius on the cividis colour map; grey: open")
     text = (_ply_text if suffix == ".ply" else _obj_text)(surface, colors, header)
@@ -552,17 +627,27 @@ def _rows(arr: np.ndarray, fmt: str) -> str:
 def _ply_text(surface, colors, header) -> str:
     n, m = len(surface.vertices_A), len(surface.faces)
     props = ["x", "y", "z", "nx", "ny", "nz"]
-    lines = ["ply", "format ascii 1.0", *[f"comment {h}" for h in header],
-             "comment s_A: axial position (A); local_radius_A: profile radius there (A)",
-             f"element vertex {n}", *[f"property float {p}" for p in props]]
+    lines = [
+        "ply",
+        "format ascii 1.0",
+        *[f"comment {h}" for h in header],
+        "comment s_A: axial position (A); local_radius_A: profile radius there (A)",
+        f"element vertex {n}",
+        *[f"property float {p}" for p in props],
+    ]
     cols = [surface.vertices_A, surface.normals]
     fmt = ["%.4f"] * 6
     if colors is not None:
         lines += ["property uchar red", "property uchar green", "property uchar blue"]
         cols.append(colors)
         fmt += ["%d"] * 3
-    lines += ["property float s_A", "property float local_radius_A",
-              f"element face {m}", "property list uchar int vertex_indices", "end_header"]
+    lines += [
+        "property float s_A",
+        "property float local_radius_A",
+        f"element face {m}",
+        "property list uchar int vertex_indices",
+        "end_header",
+    ]
     cols += [surface.s_A[:, None], surface.local_radius_A[:, None]]
     fmt += ["%.4f", "%.4f"]
     table = np.hstack([np.asarray(c, dtype=np.float64) for c in cols])
@@ -581,12 +666,15 @@ def _obj_text(surface, colors, header) -> str:
         vtext = _rows(v, "v %.4f %.4f %.4f")
     ntext = _rows(surface.normals, "vn %.4f %.4f %.4f")
     f = surface.faces + 1
-    ftext = _rows(np.column_stack([f[:, 0], f[:, 0], f[:, 1], f[:, 1], f[:, 2], f[:, 2]]),
-                  "f %d//%d %d//%d %d//%d")
+    ftext = _rows(
+        np.column_stack([f[:, 0], f[:, 0], f[:, 1], f[:, 1], f[:, 2], f[:, 2]]),
+        "f %d//%d %d//%d %d//%d",
+    )
     return "\n".join(lines) + "\n" + vtext + ntext + ftext
 
 
 # --------------------------------------------------------------------------- centre line
+
 
 @dataclass(frozen=True)
 class CenterLine:
@@ -623,15 +711,27 @@ class CenterLine:
             getattr(self, name).setflags(write=False)
 
     def to_dict(self) -> dict:
-        return {"s_A": self.s_A.tolist(), "center_A": self.center_A.tolist(),
-                "radius_A": self.radius_A.tolist(), "lining": [list(x) for x in self.lining],
-                "contact_tol_A": self.contact_tol_A, "axis": self.axis.to_dict(),
-                "radius_set": self.radius_set, "source": self.source, "version": self.version}
+        return {
+            "s_A": self.s_A.tolist(),
+            "center_A": self.center_A.tolist(),
+            "radius_A": self.radius_A.tolist(),
+            "lining": [list(x) for x in self.lining],
+            "contact_tol_A": self.contact_tol_A,
+            "axis": self.axis.to_dict(),
+            "radius_set": self.radius_set,
+            "source": self.source,
+            "version": self.version,
+        }
 
 
-def center_line(atoms: Atoms, profile: RadiusProfile, *,
-                radii: str | RadiusSet = DEFAULT_RADIUS_SET, radii_A: np.ndarray | None = None,
-                contact_tol_A: float | None = None) -> CenterLine:
+def center_line(
+    atoms: Atoms,
+    profile: RadiusProfile,
+    *,
+    radii: str | RadiusSet = DEFAULT_RADIUS_SET,
+    radii_A: np.ndarray | None = None,
+    contact_tol_A: float | None = None,
+) -> CenterLine:
     """The profile's enclosed sphere centres with their radii and lining residues.
 
     Parameters
@@ -651,8 +751,11 @@ def center_line(atoms: Atoms, profile: RadiusProfile, *,
     """
     if not isinstance(profile, RadiusProfile):
         raise InputError(f"profile must be a RadiusProfile, got {type(profile).__name__}")
-    tol = profile.contact_tol_A if contact_tol_A is None else check_positive(
-        contact_tol_A, "contact_tol_A", allow_zero=True)
+    tol = (
+        profile.contact_tol_A
+        if contact_tol_A is None
+        else check_positive(contact_tol_A, "contact_tol_A", allow_zero=True)
+    )
     radii_A = atom_radii_A(atoms, radii) if radii_A is None else np.asarray(radii_A, float)
     if radii_A.shape != (len(atoms),):
         raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
@@ -669,9 +772,16 @@ def center_line(atoms: Atoms, profile: RadiusProfile, *,
         close = gap <= r + tol
         order = np.argsort(gap[close], kind="stable")
         lining.append(tuple(dict.fromkeys(labels[idx[close]][order].tolist())))
-    return CenterLine(s_A=profile.s_A[ok].copy(), center_A=centres.copy(), radius_A=radius.copy(),
-                      lining=tuple(lining), contact_tol_A=tol, axis=profile.axis,
-                      radius_set=profile.radius_set, source=profile.source)
+    return CenterLine(
+        s_A=profile.s_A[ok].copy(),
+        center_A=centres.copy(),
+        radius_A=radius.copy(),
+        lining=tuple(lining),
+        contact_tol_A=tol,
+        axis=profile.axis,
+        radius_set=profile.radius_set,
+        source=profile.source,
+    )
 
 
 CENTER_LINE_CATEGORY = "_poreprobe_center_line."
@@ -689,14 +799,21 @@ def center_line_document(line: CenterLine):
     n = len(line.s_A)
     if n == 0:
         raise InputError("the centre line has no points")
-    pseudo = make_atoms(line.center_A, element=["X"] * n, name=["CEN"] * n,
-                        resname=[CENTER_LINE_RESNAME] * n, resid=np.arange(1, n + 1),
-                        chain=[CENTER_LINE_CHAIN] * n, b_factor=line.radius_A,
-                        kind=["hetero"] * n, source=line.source)
+    pseudo = make_atoms(
+        line.center_A,
+        element=["X"] * n,
+        name=["CEN"] * n,
+        resname=[CENTER_LINE_RESNAME] * n,
+        resid=np.arange(1, n + 1),
+        chain=[CENTER_LINE_CHAIN] * n,
+        b_factor=line.radius_A,
+        kind=["hetero"] * n,
+        source=line.source,
+    )
     st = to_gemmi_structure(pseudo, name="poreprobe_center_line")
     for chain in st[0]:
         for residue in chain:
-            residue.subchain = CENTER_LINE_CHAIN      # one struct_asym for all points
+            residue.subchain = CENTER_LINE_CHAIN  # one struct_asym for all points
     st.entities.clear()
     st.setup_entities()
     doc = st.make_mmcif_document()
@@ -705,36 +822,46 @@ def center_line_document(line: CenterLine):
     ax = line.axis
     info = {
         "definition": "centre and radius of the largest sphere, centred in each plane "
-                      "across the pore axis, that overlaps no atom's van der Waals sphere",
+        "across the pore axis, that overlaps no atom's van der Waals sphere",
         "length_unit": "angstrom",
         "lining_definition": "residues with an atom whose van der Waals surface lies "
-                             "within contact_tolerance of the sphere, closest first, "
-                             "written chain:RESNAMEnumber and separated by spaces",
+        "within contact_tolerance of the sphere, closest first, "
+        "written chain:RESNAMEnumber and separated by spaces",
         "contact_tolerance": f"{line.contact_tol_A:g}",
         "radius_set": line.radius_set or "?",
-        "axis_point_x": f"{ax.point_A[0]:.4f}", "axis_point_y": f"{ax.point_A[1]:.4f}",
+        "axis_point_x": f"{ax.point_A[0]:.4f}",
+        "axis_point_y": f"{ax.point_A[1]:.4f}",
         "axis_point_z": f"{ax.point_A[2]:.4f}",
         "axis_direction_x": f"{ax.direction[0]:.6f}",
         "axis_direction_y": f"{ax.direction[1]:.6f}",
         "axis_direction_z": f"{ax.direction[2]:.6f}",
         "axis_method": ax.method,
         "pseudo_atoms": f"chain {CENTER_LINE_CHAIN}, residue {CENTER_LINE_RESNAME} "
-                        "(one per point, numbered as point id), atom CEN, element X; "
-                        "B-factor column = radius",
+        "(one per point, numbered as point id), atom CEN, element X; "
+        "B-factor column = radius",
         "number_of_points": str(n),
         "source": line.source or "?",
         "software": f"poreprobe {line.version}",
         "caution": "model-based estimate: depends on the radius set and the model",
     }
     block.set_pairs(CENTER_LINE_CATEGORY, info)
-    loop = block.init_loop(CENTER_LINE_POINT_CATEGORY,
-                           ["id", "s", "cartn_x", "cartn_y", "cartn_z", "radius",
-                            "lining_residues"])
+    loop = block.init_loop(
+        CENTER_LINE_POINT_CATEGORY,
+        ["id", "s", "cartn_x", "cartn_y", "cartn_z", "radius", "lining_residues"],
+    )
     for k in range(n):
         x, y, z = line.center_A[k]
-        loop.add_row([str(k + 1), f"{line.s_A[k]:.3f}", f"{x:.3f}", f"{y:.3f}", f"{z:.3f}",
-                      f"{line.radius_A[k]:.4f}", q(" ".join(line.lining[k])) if line.lining[k]
-                      else "."])
+        loop.add_row(
+            [
+                str(k + 1),
+                f"{line.s_A[k]:.3f}",
+                f"{x:.3f}",
+                f"{y:.3f}",
+                f"{z:.3f}",
+                f"{line.radius_A[k]:.4f}",
+                q(" ".join(line.lining[k])) if line.lining[k] else ".",
+            ]
+        )
     return doc
 
 

@@ -43,11 +43,15 @@ from poreprobe._validate import check_choice, check_finite, check_positive, chec
 from poreprobe.errors import InputError
 from poreprobe.ions import T_REF_K, Ion, get_ion
 
-_WATER_SOURCE = ("water viscosity: Chaplin, Water structure and science (LSBU data table) "
-                 "for 0, 10, 20, 30, 40 °C; CRC Handbook 87th ed. for 25 °C; ln(eta) linear "
-                 "in 1/T between points")
-_CRC_CONCENTRATIVE = ("CRC Handbook of Chemistry and Physics 102nd ed. (2021), Concentrative "
-                      "properties of aqueous solutions (Wolf 1966), 20 °C")
+_WATER_SOURCE = (
+    "water viscosity: Chaplin, Water structure and science (LSBU data table) "
+    "for 0, 10, 20, 30, 40 °C; CRC Handbook 87th ed. for 25 °C; ln(eta) linear "
+    "in 1/T between points"
+)
+_CRC_CONCENTRATIVE = (
+    "CRC Handbook of Chemistry and Physics 102nd ed. (2021), Concentrative "
+    "properties of aqueous solutions (Wolf 1966), 20 °C"
+)
 
 #: Temperature (°C) and dynamic viscosity (mPa s) of liquid water at 0.1 MPa.
 WATER_VISCOSITY_TABLE: tuple[tuple[float, float], ...] = (
@@ -91,9 +95,13 @@ class ViscogenTable:
         return float(self.percent_w_w[-1])
 
     def to_dict(self) -> dict:
-        return {"name": self.name, "percent_w_w": self.percent_w_w.tolist(),
-                "viscosity_mPa_s": self.viscosity_mPa_s.tolist(),
-                "temperature_C": self.temperature_C, "source": self.source}
+        return {
+            "name": self.name,
+            "percent_w_w": self.percent_w_w.tolist(),
+            "viscosity_mPa_s": self.viscosity_mPa_s.tolist(),
+            "temperature_C": self.temperature_C,
+            "source": self.source,
+        }
 
 
 def _table(name: str, rows: list[tuple[float, float]]) -> ViscogenTable:
@@ -103,24 +111,90 @@ def _table(name: str, rows: list[tuple[float, float]]) -> ViscogenTable:
 
 #: Viscogen tables by name (CRC 102nd ed., 20 °C; see the module docstring).
 VISCOGENS: dict[str, ViscogenTable] = {
-    "sucrose": _table("sucrose", [
-        (0.5, 1.015), (1, 1.028), (2, 1.055), (3, 1.084), (4, 1.114), (5, 1.146),
-        (6, 1.179), (7, 1.215), (8, 1.254), (9, 1.294), (10, 1.336), (11, 1.381),
-        (12, 1.429), (13, 1.480), (14, 1.534), (15, 1.592), (16, 1.653), (17, 1.719),
-        (18, 1.790), (19, 1.865), (20, 1.945), (22, 2.124), (24, 2.331), (26, 2.573),
-        (28, 2.855), (30, 3.187), (32, 3.762), (34, 4.052), (36, 4.621), (38, 5.315),
-        (40, 6.162), (42, 7.234), (44, 8.596), (46, 10.301), (48, 12.515), (50, 15.431),
-        (60, 58.487), (70, 481.561),
-    ]),
-    "glycerol": _table("glycerol", [
-        (0.5, 1.022), (1, 1.034), (2, 1.060), (3, 1.088), (4, 1.116), (5, 1.145),
-        (6, 1.176), (7, 1.207), (8, 1.240), (9, 1.275), (10, 1.310), (12, 1.386),
-        (14, 1.469), (16, 1.560), (18, 1.658), (20, 1.766), (24, 2.010), (28, 2.320),
-        (32, 2.690), (36, 3.150), (40, 3.730), (44, 4.480), (48, 5.450), (52, 6.730),
-        (56, 8.470), (60, 10.900), (64, 14.300), (68, 19.400), (72, 27.200),
-        (76, 39.600), (80, 60.600), (84, 98.0), (88, 170.0), (92, 319.0), (96, 648.0),
-        (100, 1460.0),
-    ]),
+    "sucrose": _table(
+        "sucrose",
+        [
+            (0.5, 1.015),
+            (1, 1.028),
+            (2, 1.055),
+            (3, 1.084),
+            (4, 1.114),
+            (5, 1.146),
+            (6, 1.179),
+            (7, 1.215),
+            (8, 1.254),
+            (9, 1.294),
+            (10, 1.336),
+            (11, 1.381),
+            (12, 1.429),
+            (13, 1.480),
+            (14, 1.534),
+            (15, 1.592),
+            (16, 1.653),
+            (17, 1.719),
+            (18, 1.790),
+            (19, 1.865),
+            (20, 1.945),
+            (22, 2.124),
+            (24, 2.331),
+            (26, 2.573),
+            (28, 2.855),
+            (30, 3.187),
+            (32, 3.762),
+            (34, 4.052),
+            (36, 4.621),
+            (38, 5.315),
+            (40, 6.162),
+            (42, 7.234),
+            (44, 8.596),
+            (46, 10.301),
+            (48, 12.515),
+            (50, 15.431),
+            (60, 58.487),
+            (70, 481.561),
+        ],
+    ),
+    "glycerol": _table(
+        "glycerol",
+        [
+            (0.5, 1.022),
+            (1, 1.034),
+            (2, 1.060),
+            (3, 1.088),
+            (4, 1.116),
+            (5, 1.145),
+            (6, 1.176),
+            (7, 1.207),
+            (8, 1.240),
+            (9, 1.275),
+            (10, 1.310),
+            (12, 1.386),
+            (14, 1.469),
+            (16, 1.560),
+            (18, 1.658),
+            (20, 1.766),
+            (24, 2.010),
+            (28, 2.320),
+            (32, 2.690),
+            (36, 3.150),
+            (40, 3.730),
+            (44, 4.480),
+            (48, 5.450),
+            (52, 6.730),
+            (56, 8.470),
+            (60, 10.900),
+            (64, 14.300),
+            (68, 19.400),
+            (72, 27.200),
+            (76, 39.600),
+            (80, 60.600),
+            (84, 98.0),
+            (88, 170.0),
+            (92, 319.0),
+            (96, 648.0),
+            (100, 1460.0),
+        ],
+    ),
 }
 
 
@@ -142,14 +216,15 @@ def water_viscosity_mPa_s(temperature_C: float) -> float:
     lo, hi = water_viscosity_range_C()
     t = check_finite(temperature_C, "temperature_C")
     if not lo <= t <= hi:
-        raise InputError(f"temperature_C={temperature_C!r} is outside the water-viscosity "
-                         f"table ({lo:g} to {hi:g} °C); give the diffusion coefficient "
-                         "explicitly")
+        raise InputError(
+            f"temperature_C={temperature_C!r} is outside the water-viscosity "
+            f"table ({lo:g} to {hi:g} °C); give the diffusion coefficient "
+            "explicitly"
+        )
     table = np.array(WATER_VISCOSITY_TABLE)
     inv_T = 1.0 / (table[:, 0] + constants.zero_Celsius)
     # np.interp needs increasing x: 1/T decreases with T, so reverse.
-    ln_eta = np.interp(1.0 / (t + constants.zero_Celsius), inv_T[::-1],
-                       np.log(table[::-1, 1]))
+    ln_eta = np.interp(1.0 / (t + constants.zero_Celsius), inv_T[::-1], np.log(table[::-1, 1]))
     return float(np.exp(ln_eta))
 
 
@@ -175,10 +250,14 @@ def viscogen_relative_viscosity(viscogen: str, percent_w_w: float) -> float:
     return viscogen_viscosity_mPa_s(viscogen, percent_w_w) / float(table.viscosity_mPa_s[0])
 
 
-def stokes_einstein_diffusion_m2_per_s(reference_diffusion_m2_per_s: float, *,
-                                       temperature_K: float, viscosity_mPa_s: float,
-                                       reference_temperature_K: float = T_REF_K,
-                                       reference_viscosity_mPa_s: float | None = None) -> float:
+def stokes_einstein_diffusion_m2_per_s(
+    reference_diffusion_m2_per_s: float,
+    *,
+    temperature_K: float,
+    viscosity_mPa_s: float,
+    reference_temperature_K: float = T_REF_K,
+    reference_viscosity_mPa_s: float | None = None,
+) -> float:
     """Scale D at fixed hydrodynamic radius: ``D = D_ref (T / T_ref) (η_ref / η)``.
 
     ``reference_viscosity_mPa_s`` defaults to water at the reference temperature
@@ -249,8 +328,9 @@ class DiffusionEstimate:
             "temperature_C": self.temperature_C,
             "temperature_K": self.temperature_K,
             "reference_diffusion_m2_per_s": self.reference_diffusion_m2_per_s,
-            "water_viscosity_mPa_s": (None if math.isnan(self.water_viscosity_mPa_s)
-                                      else self.water_viscosity_mPa_s),
+            "water_viscosity_mPa_s": (
+                None if math.isnan(self.water_viscosity_mPa_s) else self.water_viscosity_mPa_s
+            ),
             "relative_viscosity": self.relative_viscosity,
             "relative_viscosity_sd": self.relative_viscosity_sd,
             "viscogen": self.viscogen,
@@ -259,13 +339,17 @@ class DiffusionEstimate:
         }
 
 
-def diffusion_coefficient(ion: str | Ion | None = "K", *, temperature_C: float = 25.0,
-                          relative_viscosity: float | None = None,
-                          relative_viscosity_sd: float = 0.0,
-                          viscogen: str | None = None,
-                          viscogen_percent_w_w: float | None = None,
-                          diffusion_m2_per_s: float | None = None,
-                          diffusion_sd_m2_per_s: float = 0.0) -> DiffusionEstimate:
+def diffusion_coefficient(
+    ion: str | Ion | None = "K",
+    *,
+    temperature_C: float = 25.0,
+    relative_viscosity: float | None = None,
+    relative_viscosity_sd: float = 0.0,
+    viscogen: str | None = None,
+    viscogen_percent_w_w: float | None = None,
+    diffusion_m2_per_s: float | None = None,
+    diffusion_sd_m2_per_s: float = 0.0,
+) -> DiffusionEstimate:
     """D of an ion at the experiment's temperature and viscosity.
 
     Either ``diffusion_m2_per_s`` is given and used as is (it must already hold
@@ -316,37 +400,75 @@ def diffusion_coefficient(ion: str | Ion | None = "K", *, temperature_C: float =
         d = check_positive(diffusion_m2_per_s, "diffusion_m2_per_s")
         d_sd = check_positive(diffusion_sd_m2_per_s, "diffusion_sd_m2_per_s", allow_zero=True)
         if relative_viscosity is not None or viscogen is not None or rel_sd > 0:
-            raise InputError("an explicit diffusion_m2_per_s is used as is: do not combine it "
-                             "with relative_viscosity or a viscogen (give D for the "
-                             "experiment's solution instead)")
-        return DiffusionEstimate(d, d_sd, "explicit", symbol, temp, None, math.nan, 1.0, 0.0,
-                                 None, None, ("diffusion coefficient given explicitly",))
+            raise InputError(
+                "an explicit diffusion_m2_per_s is used as is: do not combine it "
+                "with relative_viscosity or a viscogen (give D for the "
+                "experiment's solution instead)"
+            )
+        return DiffusionEstimate(
+            d,
+            d_sd,
+            "explicit",
+            symbol,
+            temp,
+            None,
+            math.nan,
+            1.0,
+            0.0,
+            None,
+            None,
+            ("diffusion coefficient given explicitly",),
+        )
 
     if diffusion_sd_m2_per_s:
-        raise InputError("diffusion_sd_m2_per_s needs an explicit diffusion_m2_per_s; "
-                         "use relative_viscosity_sd for the uncertainty of a scaled D")
+        raise InputError(
+            "diffusion_sd_m2_per_s needs an explicit diffusion_m2_per_s; "
+            "use relative_viscosity_sd for the uncertainty of a scaled D"
+        )
     if ion_obj is None:
         raise InputError("name an ion or give diffusion_m2_per_s explicitly")
-    notes = [f"D(25 °C, water) of {symbol} from the CRC Handbook ion table",
-             "Stokes-Einstein scaling D ~ T / eta (an estimate for small ions)", _WATER_SOURCE]
+    notes = [
+        f"D(25 °C, water) of {symbol} from the CRC Handbook ion table",
+        "Stokes-Einstein scaling D ~ T / eta (an estimate for small ions)",
+        _WATER_SOURCE,
+    ]
     percent = None
     if viscogen is not None:
         if viscogen_percent_w_w is None:
             raise InputError("viscogen needs viscogen_percent_w_w (mass percent)")
         table = get_viscogen(viscogen)
-        percent = check_range(viscogen_percent_w_w, "viscogen_percent_w_w", 0.0,
-                              table.max_percent_w_w)
+        percent = check_range(
+            viscogen_percent_w_w, "viscogen_percent_w_w", 0.0, table.max_percent_w_w
+        )
         rel = viscogen_relative_viscosity(table.name, percent)
-        notes.append(f"{table.name} {percent:g} % w/w: relative viscosity from {table.source}, "
-                     f"taken as temperature-independent")
+        notes.append(
+            f"{table.name} {percent:g} % w/w: relative viscosity from {table.source}, "
+            f"taken as temperature-independent"
+        )
         viscogen = table.name
     else:
-        rel = 1.0 if relative_viscosity is None else check_positive(
-            relative_viscosity, "relative_viscosity")
+        rel = (
+            1.0
+            if relative_viscosity is None
+            else check_positive(relative_viscosity, "relative_viscosity")
+        )
     eta_w = water_viscosity_mPa_s(temp)
     d = stokes_einstein_diffusion_m2_per_s(
-        ion_obj.diffusion_m2_per_s, temperature_K=temp + constants.zero_Celsius,
-        viscosity_mPa_s=rel * eta_w)
-    return DiffusionEstimate(d, d * rel_sd / rel, "stokes-einstein", symbol, temp,
-                             ion_obj.diffusion_m2_per_s, eta_w, rel, rel_sd, viscogen, percent,
-                             tuple(notes))
+        ion_obj.diffusion_m2_per_s,
+        temperature_K=temp + constants.zero_Celsius,
+        viscosity_mPa_s=rel * eta_w,
+    )
+    return DiffusionEstimate(
+        d,
+        d * rel_sd / rel,
+        "stokes-einstein",
+        symbol,
+        temp,
+        ion_obj.diffusion_m2_per_s,
+        eta_w,
+        rel,
+        rel_sd,
+        viscogen,
+        percent,
+        tuple(notes),
+    )

@@ -53,8 +53,9 @@ def xyz_round(pos):
 
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--check", action="store_true",
-                        help="compare with the committed files instead of writing")
+    parser.add_argument(
+        "--check", action="store_true", help="compare with the committed files instead of writing"
+    )
     args = parser.parse_args(argv)
     sys.path.insert(0, os.path.dirname(HERE))
     files = demo_files()

@@ -29,8 +29,9 @@ def grm_models_path() -> str:
     the MDAnalysisTests data folder, reached by its file name."""
     import MDAnalysisTests
 
-    return os.path.join(os.path.dirname(MDAnalysisTests.__file__), "data",
-                        "1grm_elNemo_mode7.pdb.bz2")
+    return os.path.join(
+        os.path.dirname(MDAnalysisTests.__file__), "data", "1grm_elNemo_mode7.pdb.bz2"
+    )
 
 
 def ring_radii(t: int) -> np.ndarray:

@@ -26,9 +26,13 @@ def models(tmp_path_factory):
 
 
 def test_batch_goes_past_bad_files(models):
-    files = [str(models / "model_0.pdb"), str(models / "model_1_corrupt.pdb"),
-             str(models / "empty.cif"), str(models / "missing.pdb"),
-             str(models / "model_2.pdb")]
+    files = [
+        str(models / "model_0.pdb"),
+        str(models / "model_1_corrupt.pdb"),
+        str(models / "empty.cif"),
+        str(models / "missing.pdb"),
+        str(models / "model_2.pdb"),
+    ]
     summary = profile_files(files, step_A=0.5)
     assert isinstance(summary, BatchSummary)
     assert [row.path for row in summary.rows] == files
@@ -47,8 +51,9 @@ def test_rows_equal_single_structure_profile(models):
     for row in summary.rows:
         atoms = read_structure(row.path)
         radii = atom_radii_A(atoms)
-        prof = radius_profile(atoms, find_pore_axis(atoms, radii_A=radii), radii_A=radii,
-                              step_A=0.5)
+        prof = radius_profile(
+            atoms, find_pore_axis(atoms, radii_A=radii), radii_A=radii, step_A=0.5
+        )
         assert row.min_radius_A == prof.min_radius_A
         assert row.min_s_A == prof.min_s_A
         assert row.n_atoms == len(atoms) == 672
@@ -68,8 +73,7 @@ def test_multiprocessing_batch_matches_serial(models):
 
 
 def test_csv_and_dict(models, tmp_path):
-    summary = profile_files([str(models / "model_0.pdb"), str(models / "missing.pdb")],
-                            step_A=0.5)
+    summary = profile_files([str(models / "model_0.pdb"), str(models / "missing.pdb")], step_A=0.5)
     text = batch_csv(summary, tmp_path / "summary.csv")
     assert (tmp_path / "summary.csv").read_text() == text
     rows = [line.split(",") for line in text.splitlines() if not line.startswith("#")]
@@ -81,19 +85,24 @@ def test_csv_and_dict(models, tmp_path):
 
 
 def test_expand_paths(models):
-    assert expand_paths(str(models / "model_[02].pdb")) == [str(models / "model_0.pdb"),
-                                                             str(models / "model_2.pdb")]
+    assert expand_paths(str(models / "model_[02].pdb")) == [
+        str(models / "model_0.pdb"),
+        str(models / "model_2.pdb"),
+    ]
     assert expand_paths(["a.pdb", "a.pdb", "b.pdb"]) == ["a.pdb", "b.pdb"]
     with pytest.raises(InputError, match="at least one file"):
         expand_paths([])
 
 
-@pytest.mark.parametrize(("kwargs", "match"), [
-    ({"step_A": -0.5}, "step_A must be > 0"),
-    ({"radii": "nonesuch"}, "radii must be one of"),
-    ({"backend": "threads"}, "backend must be one of"),
-    ({"model": -1}, "model must be >= 0"),
-])
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"step_A": -0.5}, "step_A must be > 0"),
+        ({"radii": "nonesuch"}, "radii must be one of"),
+        ({"backend": "threads"}, "backend must be one of"),
+        ({"model": -1}, "model must be >= 0"),
+    ],
+)
 def test_bad_options(models, kwargs, match):
     with pytest.raises(InputError, match=match):
         profile_files([str(models / "model_0.pdb")], **kwargs)
@@ -107,8 +116,9 @@ def test_capture_radii_per_file_equal_scan(models, tmp_path):
     assert summary.capture_probe_radii_A == (0.5, 1.0)
     atoms = read_structure(files[0])
     radii = atom_radii_A(atoms)
-    scan = probe_scan(atoms, find_pore_axis(atoms, radii_A=radii), probe_radii_A=[0.5, 1.0],
-                      radii_A=radii)
+    scan = probe_scan(
+        atoms, find_pore_axis(atoms, radii_A=radii), probe_radii_A=[0.5, 1.0], radii_A=radii
+    )
     assert summary.rows[0].capture_radius_A == tuple(scan.capture_radius_A)
     # closed form: waist free radius 4 - 1.70 Å (Bondi 1964 r_C) minus the probe; the
     # 0.01 Å covers the scalloped wall and the PDB's 0.001 Å coordinates
@@ -122,8 +132,9 @@ def test_capture_radii_per_file_equal_scan(models, tmp_path):
 def test_check_counts_equal_readiness_report(gramicidin_pdb, models):
     from poreprobe.quality import SEVERITIES, check_model
 
-    summary = profile_files([gramicidin_pdb, str(models / "missing.pdb")], step_A=0.5,
-                            check=True, ion="Na")
+    summary = profile_files(
+        [gramicidin_pdb, str(models / "missing.pdb")], step_A=0.5, check=True, ion="Na"
+    )
     row = summary.rows[0]
     everything = read_structure(gramicidin_pdb, waters=True, ions=True, hetero=True)
     report = check_model(everything, ion="Na", step_A=0.5, warn=False)

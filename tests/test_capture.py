@@ -60,6 +60,7 @@ def test_nernst_einstein_robinson_stokes(name, lam):
 
 # --- the formula ----------------------------------------------------------------------
 
+
 def test_worked_example_hemisphere():
     # REFERENCE_VALUES §6 (derived there): D = 1.957e-9 m²/s, a = 5 Å, c = 150 mM, z = 1,
     # J = 2π D a c -> I = 88.98 pA.
@@ -92,8 +93,13 @@ def test_geometry_factors():
     assert r_d / r_h == pytest.approx(math.pi / 2, rel=1e-12)
 
 
-@given(i=st.floats(1e-3, 1e4), d=st.floats(1e-11, 1e-8), c=st.floats(1e-2, 3e3),
-       z=st.sampled_from([1, -1, 2, 3]), geometry=st.sampled_from(["hemisphere", "disk"]))
+@given(
+    i=st.floats(1e-3, 1e4),
+    d=st.floats(1e-11, 1e-8),
+    c=st.floats(1e-2, 3e3),
+    z=st.sampled_from([1, -1, 2, 3]),
+    geometry=st.sampled_from(["hemisphere", "disk"]),
+)
 def test_current_radius_round_trip(i, d, c, z, geometry):
     r = capture_radius_from_current_A(i, d, c, charge=z, geometry=geometry)
     back = diffusion_limited_current_pA(r, d, c, charge=z, geometry=geometry)
@@ -114,16 +120,19 @@ def test_unit_factors():
     assert float(angstrom_to_m(1.0)) == pytest.approx(1e-10, rel=1e-15)
 
 
-@pytest.mark.parametrize("args, kwargs, name", [
-    ((0.0, 1e-9, 100.0), {}, "current_pA"),
-    ((-1.0, 1e-9, 100.0), {}, "current_pA"),
-    ((1.0, 0.0, 100.0), {}, "diffusion_m2_per_s"),
-    ((1.0, 1e-9, 0.0), {}, "conc_mM"),
-    ((1.0, 1e-9, -5.0), {}, "conc_mM"),
-    ((1.0, 1e-9, 100.0), {"charge": 0}, "charge"),
-    ((1.0, 1e-9, 100.0), {"geometry": "sphere"}, "geometry"),
-    ((float("nan"), 1e-9, 100.0), {}, "current_pA"),
-])
+@pytest.mark.parametrize(
+    "args, kwargs, name",
+    [
+        ((0.0, 1e-9, 100.0), {}, "current_pA"),
+        ((-1.0, 1e-9, 100.0), {}, "current_pA"),
+        ((1.0, 0.0, 100.0), {}, "diffusion_m2_per_s"),
+        ((1.0, 1e-9, 0.0), {}, "conc_mM"),
+        ((1.0, 1e-9, -5.0), {}, "conc_mM"),
+        ((1.0, 1e-9, 100.0), {"charge": 0}, "charge"),
+        ((1.0, 1e-9, 100.0), {"geometry": "sphere"}, "geometry"),
+        ((float("nan"), 1e-9, 100.0), {}, "current_pA"),
+    ],
+)
 def test_bad_input(args, kwargs, name):
     with pytest.raises(InputError, match=name):
         capture_radius_from_current_A(*args, **kwargs)
@@ -131,9 +140,17 @@ def test_bad_input(args, kwargs, name):
 
 # --- uncertainty ----------------------------------------------------------------------
 
+
 def test_first_order_sd_formula():
-    est = estimate_capture_radius(10.0, 100.0, 1e-9, current_sd_pA=0.5, conc_sd_mM=3.0,
-                                  diffusion_sd_m2_per_s=4e-11, mc_samples=1000)
+    est = estimate_capture_radius(
+        10.0,
+        100.0,
+        1e-9,
+        current_sd_pA=0.5,
+        conc_sd_mM=3.0,
+        diffusion_sd_m2_per_s=4e-11,
+        mc_samples=1000,
+    )
     rel = math.sqrt(0.05**2 + 0.03**2 + 0.04**2)
     assert est.capture_radius_sd_A == pytest.approx(est.capture_radius_A * rel, rel=1e-12)
     shares = est.variance_shares
@@ -146,8 +163,15 @@ def test_monte_carlo_agrees_with_first_order():
     # Monte Carlo SD (200k draws, sampling error ~0.2 %) must agree within 2 %.
     with warnings.catch_warnings():
         warnings.simplefilter("error", QualityWarning)
-        est = estimate_capture_radius(12.0, 150.0, 1.957e-9, current_sd_pA=0.6, conc_sd_mM=3.0,
-                                      diffusion_sd_m2_per_s=0.03 * 1.957e-9, mc_samples=200_000)
+        est = estimate_capture_radius(
+            12.0,
+            150.0,
+            1.957e-9,
+            current_sd_pA=0.6,
+            conc_sd_mM=3.0,
+            diffusion_sd_m2_per_s=0.03 * 1.957e-9,
+            mc_samples=200_000,
+        )
     assert est.capture_radius_mc_sd_A == pytest.approx(est.capture_radius_sd_A, rel=0.02)
     assert est.capture_radius_mc_halfwidth68_A == pytest.approx(est.capture_radius_sd_A, rel=0.03)
     assert est.capture_radius_mc_mean_A == pytest.approx(est.capture_radius_A, rel=0.01)
@@ -189,9 +213,16 @@ def test_capture_rate():
     assert est.capture_rate_per_s == pytest.approx(1e-12 / constants.e, rel=1e-12)
 
 
-@pytest.mark.parametrize("kwargs", [{"current_sd_pA": -0.1}, {"conc_sd_mM": -1.0},
-                                    {"mc_samples": 10}, {"current_uncertainty": "var"},
-                                    {"seed": -1}])
+@pytest.mark.parametrize(
+    "kwargs",
+    [
+        {"current_sd_pA": -0.1},
+        {"conc_sd_mM": -1.0},
+        {"mc_samples": 10},
+        {"current_uncertainty": "var"},
+        {"seed": -1},
+    ],
+)
 def test_estimate_bad_input(kwargs):
     with pytest.raises(InputError):
         estimate_capture_radius(5.0, 100.0, 1e-9, **kwargs)
@@ -199,7 +230,12 @@ def test_estimate_bad_input(kwargs):
 
 def test_estimate_to_dict_is_plain():
     d = estimate_capture_radius(5.0, 100.0, 1e-9, current_sd_pA=0.2, mc_samples=1000).to_dict()
-    for key in ("capture_radius_A", "capture_radius_sd_A", "capture_radius_mc_sd_A",
-                "diffusion_m2_per_s", "geometry"):
+    for key in (
+        "capture_radius_A",
+        "capture_radius_sd_A",
+        "capture_radius_mc_sd_A",
+        "diffusion_m2_per_s",
+        "geometry",
+    ):
         assert key in d
     assert all(not isinstance(v, np.ndarray) for v in d.values())

@@ -41,10 +41,11 @@ def test_planted_clash_is_found(channel):
     clashes = find_clashes(channel.with_coords(coords), atom_radii_A(channel))
     assert clashes[0].labels == ("A:VAL19:CG1", "B:VAL19:CG1")
     assert clashes[0].distance_A == pytest.approx(2.0)
-    assert clashes[0].fraction == pytest.approx(2.0 / 3.4)   # Bondi 1964 C-C sum 3.40 Å
+    assert clashes[0].fraction == pytest.approx(2.0 / 3.4)  # Bondi 1964 C-C sum 3.40 Å
     # a stricter fraction no longer counts it
-    assert find_clashes(channel.with_coords(coords), atom_radii_A(channel),
-                        clash_fraction=0.5) == []
+    assert (
+        find_clashes(channel.with_coords(coords), atom_radii_A(channel), clash_fraction=0.5) == []
+    )
 
 
 def test_bad_fraction(channel):

@@ -24,8 +24,18 @@ def folder(tmp_path_factory):
 
 def test_batch_reports_failed_file_and_exit_1(folder, tmp_path, capsys):
     out_csv, out_json = tmp_path / "summary.csv", tmp_path / "summary.json"
-    code = main(["batch", str(folder / "model_*.pdb"), "--step-A", "0.5",
-                 "--csv", str(out_csv), "--json", str(out_json)])
+    code = main(
+        [
+            "batch",
+            str(folder / "model_*.pdb"),
+            "--step-A",
+            "0.5",
+            "--csv",
+            str(out_csv),
+            "--json",
+            str(out_json),
+        ]
+    )
     assert code == 1  # one file failed; the others are in the table
     rows = [ln.split(",") for ln in out_csv.read_text().splitlines() if not ln.startswith("#")]
     assert [r[1] for r in rows[1:]] == ["ok", "ok", "failed"]
@@ -38,19 +48,37 @@ def test_batch_reports_failed_file_and_exit_1(folder, tmp_path, capsys):
 
 def test_batch_all_good_exit_0(folder, tmp_path):
     out = tmp_path / "s.csv"
-    code = main(["batch", str(folder / "model_0.pdb"), str(folder / "model_2.pdb"),
-                 "--step-A", "0.5", "--backend", "multiprocessing", "--workers", "2",
-                 "--csv", str(out), "--quiet"])
+    code = main(
+        [
+            "batch",
+            str(folder / "model_0.pdb"),
+            str(folder / "model_2.pdb"),
+            "--step-A",
+            "0.5",
+            "--backend",
+            "multiprocessing",
+            "--workers",
+            "2",
+            "--csv",
+            str(out),
+            "--quiet",
+        ]
+    )
     assert code == 0
     assert out.read_text().count(",ok,") == 2
 
 
-@pytest.mark.parametrize(("extra", "message"), [
-    (["--step-A", "-1"], "step_A must be > 0"),
-    (["--trajectory", "x.dcd"], "--trajectory and --frame do not apply to batch"),
-    (["--backend", "serial", "--scheduler", "tcp://127.0.0.1:9", "--workers", "0"],
-     "--workers must be >= 1"),
-])
+@pytest.mark.parametrize(
+    ("extra", "message"),
+    [
+        (["--step-A", "-1"], "step_A must be > 0"),
+        (["--trajectory", "x.dcd"], "--trajectory and --frame do not apply to batch"),
+        (
+            ["--backend", "serial", "--scheduler", "tcp://127.0.0.1:9", "--workers", "0"],
+            "--workers must be >= 1",
+        ),
+    ],
+)
 def test_batch_bad_input_is_one_line(folder, tmp_path, capsys, extra, message):
     out = tmp_path / "never.csv"
     code = main(["batch", str(folder / "model_0.pdb"), "--csv", str(out), *extra])
@@ -61,8 +89,18 @@ def test_batch_bad_input_is_one_line(folder, tmp_path, capsys, extra, message):
 
 def test_batch_capture_column(folder, tmp_path, capsys):
     out = tmp_path / "c.csv"
-    code = main(["batch", str(folder / "model_0.pdb"), "--step-A", "0.5",
-                 "--capture-probe-radii-A", "1.0", "--csv", str(out)])
+    code = main(
+        [
+            "batch",
+            str(folder / "model_0.pdb"),
+            "--step-A",
+            "0.5",
+            "--capture-probe-radii-A",
+            "1.0",
+            "--csv",
+            str(out),
+        ]
+    )
     assert code == 0
     rows = [ln.split(",") for ln in out.read_text().splitlines() if not ln.startswith("#")]
     column = rows[0].index("capture_radius_A_p1")
@@ -78,8 +116,19 @@ def test_batch_bad_capture_probes(folder, capsys):
 
 def test_batch_check_columns(folder, tmp_path, capsys):
     out = tmp_path / "checked.csv"
-    code = main(["batch", str(folder / "model_0.pdb"), "--step-A", "0.5", "--check",
-                 "--ion", "Na", "--csv", str(out)])
+    code = main(
+        [
+            "batch",
+            str(folder / "model_0.pdb"),
+            "--step-A",
+            "0.5",
+            "--check",
+            "--ion",
+            "Na",
+            "--csv",
+            str(out),
+        ]
+    )
     assert code == 0
     rows = [ln.split(",") for ln in out.read_text().splitlines() if not ln.startswith("#")]
     verdict = rows[0].index("verdict_Na")

@@ -17,23 +17,31 @@ def model_files(tmp_path_factory):
     clean = build_channel()
     write_structure(clean, folder / "clean.pdb")
     # damaged: A:LEU12 side chain truncated, and a water on the axis inside the pore
-    keep = ~((clean.chain == "A") & (clean.resid == 12) & np.isin(clean.name, ["CG", "CD1",
-                                                                               "CD2"]))
+    keep = ~((clean.chain == "A") & (clean.resid == 12) & np.isin(clean.name, ["CG", "CD1", "CD2"]))
     cut = clean.subset(keep)
-    water = make_atoms([[0.0, 0.0, 5.0]], element=["O"], name=["O"], resname=["HOH"],
-                       resid=[101], chain=["W"], kind=["water"])
+    water = make_atoms(
+        [[0.0, 0.0, 5.0]],
+        element=["O"],
+        name=["O"],
+        resname=["HOH"],
+        resid=[101],
+        chain=["W"],
+        kind=["water"],
+    )
     damaged = make_atoms(
         np.vstack([cut.coords_A, water.coords_A]),
-        **{f: np.concatenate([getattr(cut, f), getattr(water, f)]) for f in
-           ("element", "name", "resname", "resid", "chain", "b_factor", "kind")})
+        **{
+            f: np.concatenate([getattr(cut, f), getattr(water, f)])
+            for f in ("element", "name", "resname", "resid", "chain", "b_factor", "kind")
+        },
+    )
     write_structure(damaged, folder / "damaged.pdb")
     return folder
 
 
 def test_check_writes_json_and_report(model_files, capsys):
     out = model_files / "clean.json"
-    assert main(["check", str(model_files / "clean.pdb"), "--ion", "K", "--json",
-                 str(out)]) == 0
+    assert main(["check", str(model_files / "clean.pdb"), "--ion", "K", "--json", str(out)]) == 0
     text = capsys.readouterr().out
     assert "readiness report" in text and "ring of 4 x LEU 12 side chains" in text
     assert "model-based estimates" in text
@@ -49,12 +57,13 @@ def test_check_writes_json_and_report(model_files, capsys):
 def test_report_sorted_by_severity(model_files, capsys):
     out = model_files / "damaged.json"
     csv_out = model_files / "lining.csv"
-    assert main(["check", str(model_files / "damaged.pdb"), "--json", str(out),
-                 "--csv", str(csv_out)]) == 0
+    assert (
+        main(["check", str(model_files / "damaged.pdb"), "--json", str(out), "--csv", str(csv_out)])
+        == 0
+    )
     lines = [ln for ln in capsys.readouterr().out.splitlines() if ln.startswith("  [")]
     order = ["[HIGH", "[MEDIUM", "[LOW", "[INFO"]
-    ranks = [next(k for k, tag in enumerate(order) if ln.strip().startswith(tag))
-             for ln in lines]
+    ranks = [next(k for k, tag in enumerate(order) if ln.strip().startswith(tag)) for ln in lines]
     assert ranks == sorted(ranks) and len(ranks) >= 3
     data = json.loads(out.read_text())
     by_code = {f["code"]: f for f in data["findings"]}
@@ -67,8 +76,19 @@ def test_report_sorted_by_severity(model_files, capsys):
 
 def test_keep_waters_counts_them_as_walls(model_files, capsys):
     out = model_files / "walled.json"
-    assert main(["check", str(model_files / "damaged.pdb"), "--keep-waters", "--json",
-                 str(out), "--quiet"]) == 0
+    assert (
+        main(
+            [
+                "check",
+                str(model_files / "damaged.pdb"),
+                "--keep-waters",
+                "--json",
+                str(out),
+                "--quiet",
+            ]
+        )
+        == 0
+    )
     assert capsys.readouterr().out == ""
     data = json.loads(out.read_text())
     assert data["walls"] == ["polymer", "water"]
@@ -76,12 +96,15 @@ def test_keep_waters_counts_them_as_walls(model_files, capsys):
     assert water[0]["details"]["counted_as_walls"] is True
 
 
-@pytest.mark.parametrize("args, message", [
-    (["check", "missing.pdb"], "no such file"),
-    (["check", "{clean}", "--ion", "Xx"], "unknown ion"),
-    (["check", "{clean}", "--clash-fraction", "5"], "clash_fraction"),
-    (["check", "{clean}", "--lining-distance-A", "-1"], "lining_distance_A"),
-])
+@pytest.mark.parametrize(
+    "args, message",
+    [
+        (["check", "missing.pdb"], "no such file"),
+        (["check", "{clean}", "--ion", "Xx"], "unknown ion"),
+        (["check", "{clean}", "--clash-fraction", "5"], "clash_fraction"),
+        (["check", "{clean}", "--lining-distance-A", "-1"], "lining_distance_A"),
+    ],
+)
 def test_bad_input_exits_2_with_one_line(model_files, capsys, args, message):
     out = model_files / "never.json"
     argv = [a.replace("{clean}", str(model_files / "clean.pdb")) for a in args]

@@ -27,8 +27,17 @@ def files(tmp_path_factory):
 
 def test_compare_two_models(files, capsys):
     out, csv_out = files / "cmp.json", files / "cmp.csv"
-    argv = ["compare", str(files / "wt.pdb"), str(files / "mut.pdb"), "--reference",
-            "name CA and not resid 19", "--json", str(out), "--csv", str(csv_out)]
+    argv = [
+        "compare",
+        str(files / "wt.pdb"),
+        str(files / "mut.pdb"),
+        "--reference",
+        "name CA and not resid 19",
+        "--json",
+        str(out),
+        "--csv",
+        str(csv_out),
+    ]
     assert main(argv) == 0
     text = capsys.readouterr().out
     assert "one axial frame" in text and "VAL 19" in text
@@ -36,31 +45,42 @@ def test_compare_two_models(files, capsys):
     assert data["reference_selection"] == "name CA and not resid 19"
     shifts = {s["lined_by"]: s for s in data["constriction_shifts"]}
     val = shifts["ring of 4 x VAL 19 side chains"]
-    assert 0.3 < val["delta_radius_A"] <= 0.5 + 1e-6      # at most the 0.5 Å pull
+    assert 0.3 < val["delta_radius_A"] <= 0.5 + 1e-6  # at most the 0.5 Å pull
     assert shifts["ring of 4 x LEU 12 side chains"]["delta_radius_A"] == pytest.approx(
-        0.0, abs=0.002)                                  # PDB rounding only
+        0.0, abs=0.002
+    )  # PDB rounding only
     rows = [ln for ln in csv_out.read_text().splitlines() if not ln.startswith("#")]
-    assert rows[0].count(",") == 3                       # s, two radii, one difference
+    assert rows[0].count(",") == 3  # s, two radii, one difference
 
 
 def test_compare_with_itself(files, capsys):
     out = files / "self.json"
-    assert main(["compare", str(files / "wt.pdb"), str(files / "wt.pdb"), "--json", str(out),
-                 "--quiet"]) == 0
+    assert (
+        main(
+            ["compare", str(files / "wt.pdb"), str(files / "wt.pdb"), "--json", str(out), "--quiet"]
+        )
+        == 0
+    )
     data = json.loads(out.read_text())
     diffs = [d for d in list(data["profile"]["difference_A"].values())[1] if d is not None]
     assert max(abs(d) for d in diffs) < 1e-9
 
 
-@pytest.mark.parametrize("extra, message", [
-    ([], "at least two structures"),
-    (["{wt}", "--reference", "resname ZZZ"], "matches no atoms"),
-    (["{wt}", "--step-A", "0"], "step_A"),
-])
+@pytest.mark.parametrize(
+    "extra, message",
+    [
+        ([], "at least two structures"),
+        (["{wt}", "--reference", "resname ZZZ"], "matches no atoms"),
+        (["{wt}", "--step-A", "0"], "step_A"),
+    ],
+)
 def test_bad_input_exits_2_with_one_line(files, capsys, extra, message):
     out = files / "never.json"
-    argv = ["compare", str(files / "wt.pdb")] + [a.replace("{wt}", str(files / "wt.pdb"))
-                                                  for a in extra] + ["--json", str(out)]
+    argv = (
+        ["compare", str(files / "wt.pdb")]
+        + [a.replace("{wt}", str(files / "wt.pdb")) for a in extra]
+        + ["--json", str(out)]
+    )
     assert main(argv) == 2
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and err.startswith("poreprobe: error:") and message in err

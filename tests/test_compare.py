@@ -46,7 +46,7 @@ def test_rigidly_moved_copy_is_realigned(channel):
 
 def test_widened_ring_shows_its_shift_at_its_level(channel):
     prof = poreprobe.radius_profile(channel, poreprobe.find_pore_axis(channel))
-    centre = prof.min_center_A           # on the axis, in the plane of the LEU 12 ring
+    centre = prof.min_center_A  # on the axis, in the plane of the LEU 12 ring
     widen_A = 0.8
 
     def outward(ch, rows):
@@ -99,6 +99,7 @@ def test_bad_input(channel):
     renamed = channel.subset(channel.chain == "A")
     other = renamed.with_coords(renamed.coords_A)
     from dataclasses import replace
+
     other = replace(other, chain=np.full(len(other), "Z"))
     with pytest.raises(InputError, match="at least 3"):
         align_model(other, channel)

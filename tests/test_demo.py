@@ -26,9 +26,20 @@ def test_demo_writes_its_outputs(demo_out):
     summary = json.loads((demo_out / "summary.json").read_text())
     for name in summary["files"]:
         assert (demo_out / name).stat().st_size > 0, name
-    for name in ("profile.json", "scan_channel.json", "scan_widened.json", "match.json",
-                 "resistance.json", "check.json", "check_closed.json", "compare.json",
-                 "trajectory.json", "profile.png", "capture.png", "overlay.png"):
+    for name in (
+        "profile.json",
+        "scan_channel.json",
+        "scan_widened.json",
+        "match.json",
+        "resistance.json",
+        "check.json",
+        "check_closed.json",
+        "compare.json",
+        "trajectory.json",
+        "profile.png",
+        "capture.png",
+        "overlay.png",
+    ):
         assert name in summary["files"]
     assert "invented" in summary["note"] and "not measurements" in summary["note"]
 
@@ -62,8 +73,12 @@ def test_demo_models_are_clean(demo_out):
 
 def test_build_reproduces_committed_files_byte_for_byte():
     pytest.importorskip("biotite")
-    result = subprocess.run([sys.executable, os.path.join(ROOT, "structures_demo", "build.py"),
-                             "--check"], capture_output=True, text=True, cwd=ROOT)
+    result = subprocess.run(
+        [sys.executable, os.path.join(ROOT, "structures_demo", "build.py"), "--check"],
+        capture_output=True,
+        text=True,
+        cwd=ROOT,
+    )
     assert result.returncode == 0, result.stdout + result.stderr
 
 

@@ -10,7 +10,7 @@ from poreprobe.lining import find_constrictions, lining_contacts, pore_lining
 from poreprobe.synthetic import expected_radius_A, ring_stack
 
 AXIS = poreprobe.PoreAxis([0, 0, 0], [0, 0, 1], "user")
-CARBON_A = 1.70   # Bondi 1964, Table I (carbon)
+CARBON_A = 1.70  # Bondi 1964, Table I (carbon)
 
 
 @pytest.fixture(scope="module")
@@ -26,9 +26,9 @@ def hourglass4():
 def test_profile_matches_closed_form(hourglass4):
     atoms, radii, z, prof = hourglass4
     inner = np.abs(prof.s_A) <= 9.0
-    np.testing.assert_allclose(prof.radius_A[inner],
-                               expected_radius_A(radii, z, prof.s_A[inner], CARBON_A),
-                               atol=0.05)
+    np.testing.assert_allclose(
+        prof.radius_A[inner], expected_radius_A(radii, z, prof.s_A[inner], CARBON_A), atol=0.05
+    )
 
 
 def test_waist_is_the_only_constriction(hourglass4):
@@ -56,8 +56,11 @@ def test_per_residue_table(hourglass4):
         assert r.closest_A >= (radii[r.resid - 1] - CARBON_A) - 1e-6
     # every lining contact obeys the definition
     centres = prof.center_A[lining.plane_index]
-    gaps = (np.linalg.norm(atoms.coords_A[lining.atom_index] - centres, axis=1) - CARBON_A
-            - prof.radius_A[lining.plane_index])
+    gaps = (
+        np.linalg.norm(atoms.coords_A[lining.atom_index] - centres, axis=1)
+        - CARBON_A
+        - prof.radius_A[lining.plane_index]
+    )
     np.testing.assert_allclose(gaps, lining.gap_A, atol=1e-12)
     assert gaps.max() <= 0.5 + 1e-12 and gaps.min() >= -1e-6
     # level by level: at the waist plane the ring at z = 0 (residue 11) lines it first
@@ -91,15 +94,19 @@ def test_helix_tetramer_rings():
     prof = poreprobe.radius_profile(atoms, axis)
     lining = pore_lining(atoms, prof)
     texts = [c.groups[0].text for c in lining.constrictions]
-    assert texts == ["ring of 4 x SER 1 side chains", "ring of 4 x LEU 12 side chains",
-                     "ring of 4 x VAL 19 side chains"]
+    assert texts == [
+        "ring of 4 x SER 1 side chains",
+        "ring of 4 x LEU 12 side chains",
+        "ring of 4 x VAL 19 side chains",
+    ]
     assert min(c.radius_A for c in lining.constrictions) == prof.min_radius_A
     # atom-order invariance: reversing the atoms gives the same residue table
     rev = atoms.subset(np.arange(len(atoms))[::-1])
     lining_rev = pore_lining(rev, poreprobe.radius_profile(rev, axis))
     key = lambda r: (r.chain, r.resid)  # noqa: E731
-    for a, b in zip(sorted(lining.residues, key=key), sorted(lining_rev.residues, key=key),
-                    strict=True):
+    for a, b in zip(
+        sorted(lining.residues, key=key), sorted(lining_rev.residues, key=key), strict=True
+    ):
         assert (a.label, a.part, a.closest_atom) == (b.label, b.part, b.closest_atom)
         assert a.closest_A == pytest.approx(b.closest_A, abs=1e-6)
 

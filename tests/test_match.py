@@ -12,7 +12,7 @@ from poreprobe.errors import InputError, QualityWarning
 from poreprobe.ions import get_ion
 from poreprobe.match import match_capture_radius, match_scan
 
-P = np.linspace(0.0, 5.0, 11)          # probe radii 0, 0.5, ..., 5 Å
+P = np.linspace(0.0, 5.0, 11)  # probe radii 0, 0.5, ..., 5 Å
 
 
 def quiet_match(*args, **kwargs):
@@ -83,7 +83,7 @@ def test_no_overlap_gives_nearest_point():
 
 
 def test_band_reaching_scan_end_is_flagged():
-    m = match_capture_radius(P, 6.0 - P, 1.5, 0.6)   # p in [3.9, 5.1] -> clipped at 5
+    m = match_capture_radius(P, 6.0 - P, 1.5, 0.6)  # p in [3.9, 5.1] -> clipped at 5
     assert m.intervals_A[0] == pytest.approx((3.9, 5.0), abs=1e-12)
     assert m.intervals_at_scan_end == ((False, True),)
 
@@ -123,8 +123,11 @@ def test_ion_radius_outside_scan():
 
 
 @settings(max_examples=60, deadline=None)
-@given(values=st.lists(st.floats(0.0, 10.0), min_size=2, max_size=12),
-       r=st.floats(0.1, 10.0), sd=st.floats(0.0, 2.0))
+@given(
+    values=st.lists(st.floats(0.0, 10.0), min_size=2, max_size=12),
+    r=st.floats(0.1, 10.0),
+    sd=st.floats(0.0, 2.0),
+)
 def test_intervals_equal_brute_force(values, r, sd):
     # Property: a point is inside a reported interval iff the interpolated curve is in
     # the band (checked on a dense grid away from interval edges).
@@ -142,22 +145,26 @@ def test_intervals_equal_brute_force(values, r, sd):
     assert (inside_band == inside_iv)[~near_edge].all()
     for x0 in m.crossings_A:
         assert np.interp(x0, p, c) == pytest.approx(r, abs=1e-9)
-    assert np.interp(m.best_probe_radius_A, p, c) == pytest.approx(m.best_capture_radius_A,
-                                                                   abs=1e-9)
+    assert np.interp(m.best_probe_radius_A, p, c) == pytest.approx(
+        m.best_capture_radius_A, abs=1e-9
+    )
     if not m.best_exact:
         assert np.abs(y - r).min() >= abs(m.best_capture_radius_A - r) - 1e-9
 
 
-@pytest.mark.parametrize("p, c, r, sd, message", [
-    ([0, 1, 2], [3, 2], 1.0, 0.1, "same length"),
-    ([0], [3], 1.0, 0.1, "at least 2"),
-    ([0, 2, 1], [3, 2, 1], 1.0, 0.1, "strictly increasing"),
-    ([0, 1, 2], [3, np.nan, 1], 1.0, 0.1, "NaN"),
-    ([0, 1, 2], [3, -2, 1], 1.0, 0.1, ">= 0"),
-    ([0, 1, 2], [3, 2, 1], 0.0, 0.1, "measured_A"),
-    ([0, 1, 2], [3, 2, 1], -1.0, 0.1, "measured_A"),
-    ([0, 1, 2], [3, 2, 1], 1.0, -0.1, "sd_A"),
-])
+@pytest.mark.parametrize(
+    "p, c, r, sd, message",
+    [
+        ([0, 1, 2], [3, 2], 1.0, 0.1, "same length"),
+        ([0], [3], 1.0, 0.1, "at least 2"),
+        ([0, 2, 1], [3, 2, 1], 1.0, 0.1, "strictly increasing"),
+        ([0, 1, 2], [3, np.nan, 1], 1.0, 0.1, "NaN"),
+        ([0, 1, 2], [3, -2, 1], 1.0, 0.1, ">= 0"),
+        ([0, 1, 2], [3, 2, 1], 0.0, 0.1, "measured_A"),
+        ([0, 1, 2], [3, 2, 1], -1.0, 0.1, "measured_A"),
+        ([0, 1, 2], [3, 2, 1], 1.0, -0.1, "sd_A"),
+    ],
+)
 def test_bad_input(p, c, r, sd, message):
     with pytest.raises(InputError, match=message):
         match_capture_radius(p, c, r, sd)

@@ -4,8 +4,7 @@ import os
 
 import pytest
 
-NOTEBOOKS = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))),
-                         "notebooks")
+NOTEBOOKS = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "notebooks")
 
 
 @pytest.mark.parametrize("name", sorted(f for f in os.listdir(NOTEBOOKS) if f.endswith(".ipynb")))
@@ -13,12 +12,22 @@ def test_notebook_executes(name):
     nbformat = pytest.importorskip("nbformat")
     nbclient = pytest.importorskip("nbclient")
     nb = nbformat.read(os.path.join(NOTEBOOKS, name), as_version=4)
-    client = nbclient.NotebookClient(nb, timeout=300, kernel_name="python3",
-                                     resources={"metadata": {"path": NOTEBOOKS}})
+    client = nbclient.NotebookClient(
+        nb, timeout=300, kernel_name="python3", resources={"metadata": {"path": NOTEBOOKS}}
+    )
     client.execute()
-    errors = [out for cell in nb.cells if cell.cell_type == "code"
-              for out in cell.get("outputs", []) if out.get("output_type") == "error"]
+    errors = [
+        out
+        for cell in nb.cells
+        if cell.cell_type == "code"
+        for out in cell.get("outputs", [])
+        if out.get("output_type") == "error"
+    ]
     assert not errors
-    text = "".join(out.get("text", "") for cell in nb.cells if cell.cell_type == "code"
-                   for out in cell.get("outputs", []))
+    text = "".join(
+        out.get("text", "")
+        for cell in nb.cells
+        if cell.cell_type == "code"
+        for out in cell.get("outputs", [])
+    )
     assert "narrowest" in text and "pS" in text

@@ -20,14 +20,24 @@ from poreprobe.errors import InputError
 from poreprobe.parallel import DaskClientBackend, open_backend
 from poreprobe.trajectory import PoreProfileAnalysis, profile_trajectory
 
-pytestmark = pytest.mark.filterwarnings("ignore:Reader has no dt information",
-                                        "ignore:.*gives no time step")
+pytestmark = pytest.mark.filterwarnings(
+    "ignore:Reader has no dt information", "ignore:.*gives no time step"
+)
 
-RESULT_KEYS = ("radius_A", "min_radius_A", "min_s_A", "fit_rmsd_A", "capture_radius_A",
-               "axis_point_A",
-               "axis_direction", "mean_radius_A", "sd_radius_A", "percentile_radius_A",
-               "n_enclosed", "closed_frames")
-
+RESULT_KEYS = (
+    "radius_A",
+    "min_radius_A",
+    "min_s_A",
+    "fit_rmsd_A",
+    "capture_radius_A",
+    "axis_point_A",
+    "axis_direction",
+    "mean_radius_A",
+    "sd_radius_A",
+    "percentile_radius_A",
+    "n_enclosed",
+    "closed_frames",
+)
 
 
 @pytest.fixture(scope="module")
@@ -36,9 +46,14 @@ def cluster():
 
     from distributed import LocalCluster
 
-    with LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                      dashboard_address=None, scheduler_kwargs={"dashboard": False},
-                      silence_logs=logging.ERROR) as local:
+    with LocalCluster(
+        n_workers=2,
+        threads_per_worker=1,
+        processes=True,
+        dashboard_address=None,
+        scheduler_kwargs={"dashboard": False},
+        silence_logs=logging.ERROR,
+    ) as local:
         yield local
 
 
@@ -68,8 +83,7 @@ def run_all_backends(files, client, selection, step=None, **options):
         "serial": {},
         "multiprocessing": {"backend": "multiprocessing", "n_workers": 2},
         "dask": {"backend": "dask", "n_workers": 2},
-        "client": {"backend": DaskClientBackend(client), "unsupported_backend": True,
-                   "n_parts": 3},
+        "client": {"backend": DaskClientBackend(client), "unsupported_backend": True, "n_parts": 3},
     }
     out = {}
     for name, kwargs in runs.items():
@@ -83,8 +97,9 @@ def assert_same_results(runs):
     for name, ana in runs.items():
         np.testing.assert_array_equal(ana.frames, ref.frames, err_msg=name)
         for key in RESULT_KEYS:
-            np.testing.assert_array_equal(ana.results[key], ref.results[key],
-                                          err_msg=f"{name}: {key}")
+            np.testing.assert_array_equal(
+                ana.results[key], ref.results[key], err_msg=f"{name}: {key}"
+            )
         assert ana.results.min_radius_mean_A == ref.results.min_radius_mean_A
 
 
@@ -134,8 +149,9 @@ def test_client_backend_needs_unsupported_flag(client, breathing):
 def test_profile_trajectory_through_scheduler_address(cluster, breathing):
     options = {"step_A": 0.5, "stop": 4, "capture_probe_radius_A": 1.0}
     serial = profile_trajectory(*breathing, **options)
-    remote = profile_trajectory(*breathing, backend="dask", scheduler=cluster.scheduler_address,
-                                n_workers=None, **options)
+    remote = profile_trajectory(
+        *breathing, backend="dask", scheduler=cluster.scheduler_address, n_workers=None, **options
+    )
     np.testing.assert_array_equal(remote.radius_A, serial.radius_A)
     np.testing.assert_array_equal(remote.capture_radius_A, serial.capture_radius_A)
     assert np.isfinite(serial.capture_radius_A).all()
@@ -161,8 +177,21 @@ def test_batch_same_on_every_backend(client, tmp_path):
 
 def test_cli_traj_with_scheduler(cluster, breathing, tmp_path, capsys):
     out = tmp_path / "remote.json"
-    code = main(["traj", *breathing, "--step-A", "0.5", "--stop", "4", "--scheduler",
-                 cluster.scheduler_address, "--json", str(out), "--quiet"])
+    code = main(
+        [
+            "traj",
+            *breathing,
+            "--step-A",
+            "0.5",
+            "--stop",
+            "4",
+            "--scheduler",
+            cluster.scheduler_address,
+            "--json",
+            str(out),
+            "--quiet",
+        ]
+    )
     assert code == 0
     assert out.exists()
     assert capsys.readouterr().err == ""

@@ -19,10 +19,21 @@ from poreprobe.structure import make_atoms
 from poreprobe.superpose import rotate_about
 from poreprobe.writer import write_structure
 
-PLANTED_CODES = {"missing-side-chain-atoms", "missing-backbone-atoms", "alternate-locations",
-                 "chain-break", "asymmetry", "steric-clash", "water-in-pore", "zero-occupancy",
-                 "partial-occupancy", "high-b-factor", "nonstandard-residue", "hetero-in-pore",
-                 "ion-in-pore"}
+PLANTED_CODES = {
+    "missing-side-chain-atoms",
+    "missing-backbone-atoms",
+    "alternate-locations",
+    "chain-break",
+    "asymmetry",
+    "steric-clash",
+    "water-in-pore",
+    "zero-occupancy",
+    "partial-occupancy",
+    "high-b-factor",
+    "nonstandard-residue",
+    "hetero-in-pore",
+    "ion-in-pore",
+}
 
 
 def _mask(atoms, chain, resid, names=None):
@@ -58,7 +69,7 @@ def test_undamaged_model_has_no_planted_findings(clean_report):
     assert codes == {"hydrogens-absent"}
     assert not codes & PLANTED_CODES
     assert clean_report.symmetry is not None
-    assert np.nanmax(clean_report.symmetry.deviation_A) < 0.01   # PDB rounding only
+    assert np.nanmax(clean_report.symmetry.deviation_A) < 0.01  # PDB rounding only
 
 
 def test_lining_and_constrictions_of_the_undamaged_model(clean_report):
@@ -104,15 +115,22 @@ def test_alternate_location(clean, tmp_path):
             occ.append(1.0)
             coords.append(clean.coords_A[i])
     rows = np.array(rows)
-    damaged = make_atoms(np.array(coords), element=clean.element[rows], name=clean.name[rows],
-                         resname=clean.resname[rows], resid=clean.resid[rows],
-                         chain=clean.chain[rows], altloc=alt, occupancy=occ,
-                         b_factor=clean.b_factor[rows])
+    damaged = make_atoms(
+        np.array(coords),
+        element=clean.element[rows],
+        name=clean.name[rows],
+        resname=clean.resname[rows],
+        resid=clean.resid[rows],
+        chain=clean.chain[rows],
+        altloc=alt,
+        occupancy=occ,
+        b_factor=clean.b_factor[rows],
+    )
     report = check_model(_roundtrip(damaged, tmp_path, "altloc"), warn=False)
     found = report.by_code("alternate-locations")
     assert [f.residues for f in found] == [("B:VAL19",)]
     assert found[0].details["kept_altlocs"] == ["A"]
-    assert not report.by_code("partial-occupancy")     # partial occupancy of altlocs is normal
+    assert not report.by_code("partial-occupancy")  # partial occupancy of altlocs is normal
 
 
 def test_chain_break(clean, tmp_path):
@@ -121,7 +139,7 @@ def test_chain_break(clean, tmp_path):
     found = report.by_code("chain-break")
     assert [f.residues for f in found] == [("C:LEU12", "C:ARG14")]
     assert found[0].details["missing_by_numbering"] == 1
-    assert found[0].severity == "high"                  # LEU 12 lines the pore
+    assert found[0].severity == "high"  # LEU 12 lines the pore
     # the gap neither hides chain C from the symmetry analysis nor fakes an asymmetry
     assert report.profile.axis.method == "symmetry C4"
     assert not report.by_code("asymmetry")
@@ -156,17 +174,26 @@ def test_steric_clash(clean, tmp_path):
     planted = [f for f in found if set(f.details["atoms"]) == {"A:LEU12:CD1", "B:LEU12:CD1"}]
     assert len(planted) == 1
     assert planted[0].details["distance_A"] == pytest.approx(2.2, abs=0.002)
-    assert planted[0].details["radius_sum_A"] == pytest.approx(3.4)   # Bondi 1964 C: 1.70 Å
+    assert planted[0].details["radius_sum_A"] == pytest.approx(3.4)  # Bondi 1964 C: 1.70 Å
 
 
 def test_water_in_pore(clean, tmp_path):
-    waters = make_atoms([[0.0, 0.0, 5.0], [30.0, 0.0, 0.0]], element=["O", "O"],
-                        name=["O", "O"], resname=["HOH", "HOH"], resid=[101, 102],
-                        chain=["W", "W"], kind=["water", "water"])
+    waters = make_atoms(
+        [[0.0, 0.0, 5.0], [30.0, 0.0, 0.0]],
+        element=["O", "O"],
+        name=["O", "O"],
+        resname=["HOH", "HOH"],
+        resid=[101, 102],
+        chain=["W", "W"],
+        kind=["water", "water"],
+    )
     damaged = make_atoms(
         np.vstack([clean.coords_A, waters.coords_A]),
-        **{f: np.concatenate([getattr(clean, f), getattr(waters, f)]) for f in
-           ("element", "name", "resname", "resid", "chain", "b_factor", "kind")})
+        **{
+            f: np.concatenate([getattr(clean, f), getattr(waters, f)])
+            for f in ("element", "name", "resname", "resid", "chain", "b_factor", "kind")
+        },
+    )
     atoms = _roundtrip(damaged, tmp_path, "water")
     assert (atoms.kind == "water").sum() == 2
     report = check_model(atoms, warn=False)
@@ -187,14 +214,14 @@ def test_occupancy_b_factor_and_nonstandard(clean, tmp_path):
     b = clean.b_factor.copy()
     b[_mask(clean, "C", 5)] = 200.0
     resname = clean.resname.copy()
-    resname[_mask(clean, "B", 8)] = "AIB"      # a non-standard amino acid
+    resname[_mask(clean, "B", 8)] = "AIB"  # a non-standard amino acid
     damaged = replace(clean, occupancy=occ, b_factor=b, resname=resname)
     report = check_model(_roundtrip(damaged, tmp_path, "misc"), warn=False)
     assert _residues(report, "zero-occupancy") == {"D:SER1"}
     assert _residues(report, "partial-occupancy") == {"A:THR5"}
     assert _residues(report, "high-b-factor") == {"C:THR5"}
     assert _residues(report, "nonstandard-residue") == {"B:AIB8"}
-    assert report.by_code("zero-occupancy")[0].severity == "high"   # SER 1 lines the pore
+    assert report.by_code("zero-occupancy")[0].severity == "high"  # SER 1 lines the pore
 
 
 def test_findings_sorted_by_severity_and_warning(clean, tmp_path):
@@ -223,10 +250,11 @@ def test_verdict_and_sensitivity(clean_report):
     verdict = clean_report.verdict
     assert verdict.ion == "K+"
     assert verdict.verdict == classify(clean_report.profile.min_radius_A, get_ion("K"))
-    assert verdict.verdict == "dehydrated"          # 1.38 <= 2.77 < 3.31 Å
+    assert verdict.verdict == "dehydrated"  # 1.38 <= 2.77 < 3.31 Å
     rows = clean_report.sensitivity
-    assert {(r.radius_set, r.hydrogens) for r in rows} == {(n, h) for n in RADIUS_SETS
-                                                          for h in ("in", "out")}
+    assert {(r.radius_set, r.hydrogens) for r in rows} == {
+        (n, h) for n in RADIUS_SETS for h in ("in", "out")
+    }
     main = [r for r in rows if r.note == "main profile"]
     assert len(main) == 1 and main[0].min_radius_A == clean_report.profile.min_radius_A
     assert all(r.min_radius_A is None for r in rows if r.hydrogens == "in")  # no H in model
@@ -285,9 +313,12 @@ def test_rigid_motion_leaves_the_report_unchanged(clean, clean_report):
     moved = clean.with_coords(clean.coords_A @ rot.T + [40.0, -3.0, 11.0])
     report = check_model(moved, warn=False)
     assert [f.code for f in report.findings] == [f.code for f in clean_report.findings]
-    assert report.profile.min_radius_A == pytest.approx(clean_report.profile.min_radius_A,
-                                                        abs=0.01)   # PDB rounding in one
-    assert [r.label for r in report.lining.residues] == [r.label for r in
-                                                         clean_report.lining.residues]
+    assert report.profile.min_radius_A == pytest.approx(
+        clean_report.profile.min_radius_A, abs=0.01
+    )  # PDB rounding in one
+    assert [r.label for r in report.lining.residues] == [
+        r.label for r in clean_report.lining.residues
+    ]
     assert [g.text for c in report.lining.constrictions for g in c.groups] == [
-        g.text for c in clean_report.lining.constrictions for g in c.groups]
+        g.text for c in clean_report.lining.constrictions for g in c.groups
+    ]

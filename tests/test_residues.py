@@ -52,6 +52,7 @@ def test_missing_heavy_atoms_splits_backbone_and_side_chain():
 
 
 def test_is_backbone():
-    mask = is_backbone(["N", "CA", "CB", "HA", "HB2", "OXT", "H"],
-                       ["N", "C", "C", "H", "H", "O", "H"])
+    mask = is_backbone(
+        ["N", "CA", "CB", "HA", "HB2", "OXT", "H"], ["N", "C", "C", "H", "H", "O", "H"]
+    )
     np.testing.assert_array_equal(mask, [True, True, False, True, False, True, True])

@@ -16,8 +16,11 @@ from poreprobe.superpose import (
 
 
 @settings(max_examples=25, deadline=None)
-@given(angle=st.floats(-3.1, 3.1), axis=st.tuples(*[st.floats(-1, 1)] * 3).filter(
-    lambda v: np.linalg.norm(v) > 0.1), shift=st.tuples(*[st.floats(-50, 50)] * 3))
+@given(
+    angle=st.floats(-3.1, 3.1),
+    axis=st.tuples(*[st.floats(-1, 1)] * 3).filter(lambda v: np.linalg.norm(v) > 0.1),
+    shift=st.tuples(*[st.floats(-50, 50)] * 3),
+)
 def test_recovers_a_known_motion(angle, axis, shift):
     rng = np.random.default_rng(7)
     pts = rng.normal(size=(30, 3)) * 5

@@ -56,7 +56,7 @@ def test_one_side_chain_rotated(channel):
 
 def test_swapped_equivalent_atoms_are_not_a_deviation(channel):
     names = channel.name.copy()
-    res = (channel.chain == "B") & (channel.resid == 7)      # PHE 7
+    res = (channel.chain == "B") & (channel.resid == 7)  # PHE 7
     i1 = np.flatnonzero(res & (names == "CD1"))[0]
     i2 = np.flatnonzero(res & (names == "CD2"))[0]
     names[i1], names[i2] = "CD2", "CD1"
@@ -65,21 +65,25 @@ def test_swapped_equivalent_atoms_are_not_a_deviation(channel):
 
 
 @settings(max_examples=8, deadline=None)
-@given(angle=st.floats(0.1, 6.2), axis=st.tuples(*[st.floats(-1, 1)] * 3).filter(
-    lambda v: np.linalg.norm(v) > 0.1), offset=st.tuples(*[st.floats(-20, 20)] * 3))
+@given(
+    angle=st.floats(0.1, 6.2),
+    axis=st.tuples(*[st.floats(-1, 1)] * 3).filter(lambda v: np.linalg.norm(v) > 0.1),
+    offset=st.tuples(*[st.floats(-20, 20)] * 3),
+)
 def test_rigid_motion_invariance(channel, angle, axis, offset):
     moved_d = _shift_chain(channel, "D", np.array([1.0, 0.0, 0.5]))
     rot = rotation_matrix(np.array(axis) / np.linalg.norm(axis), angle)
     moved = moved_d.with_coords(moved_d.coords_A @ rot.T + np.array(offset))
-    np.testing.assert_allclose(subunit_deviation(moved).deviation_A,
-                               subunit_deviation(moved_d).deviation_A, atol=1e-8)
+    np.testing.assert_allclose(
+        subunit_deviation(moved).deviation_A, subunit_deviation(moved_d).deviation_A, atol=1e-8
+    )
 
 
 def test_missing_residue_keeps_chain_equivalent(channel):
     gap = channel.subset(~((channel.chain == "B") & (channel.resid == 13)))
     chains, matched = equivalent_chains(gap)
     assert chains == ["A", "B", "C", "D"]
-    assert matched.shape == (4, 3 * 24, 3)          # 24 residues common to all chains
+    assert matched.shape == (4, 3 * 24, 3)  # 24 residues common to all chains
     columns = aligned_residues(gap, chains)
     assert (13, "") not in columns[1] and len(columns[0]) == 24
     axis = find_pore_axis(gap)

@@ -37,7 +37,6 @@ CARBON_A = 1.70
 K_CRYSTAL_A = 1.38
 
 
-
 @pytest.fixture(scope="module")
 def breathing(tmp_path_factory):
     return write_trajectory(tmp_path_factory.mktemp("breathing"))
@@ -61,8 +60,9 @@ def test_breathing_minimum_follows_geometry(breathing_fixed):
     # is R(t) - r_C; every other plane is farther from its rings.
     t = np.arange(N_FRAMES)
     waist_A = ring_radii(t[:, None])[:, RING_Z_A == 0][:, 0]
-    np.testing.assert_allclose(waist_A, 4.0 - AMPLITUDE_A * np.sin(2 * np.pi * t / PERIOD),
-                               rtol=0, atol=1e-12)
+    np.testing.assert_allclose(
+        waist_A, 4.0 - AMPLITUDE_A * np.sin(2 * np.pi * t / PERIOD), rtol=0, atol=1e-12
+    )
     res = breathing_fixed.results
     np.testing.assert_allclose(res.min_radius_A, waist_A - CARBON_A, rtol=0, atol=1e-4)
     np.testing.assert_allclose(res.min_s_A, 0.0, rtol=0, atol=1e-9)
@@ -74,8 +74,7 @@ def test_breathing_profile_matches_closed_form(breathing_fixed):
     inside = np.abs(ana.s_A) <= RING_Z_A.max()
     for t in range(N_FRAMES):
         expected = expected_radius_A(ring_radii(t), RING_Z_A, ana.s_A[inside], CARBON_A)
-        np.testing.assert_allclose(ana.results.radius_A[t, inside], expected, rtol=0,
-                                   atol=1e-4)
+        np.testing.assert_allclose(ana.results.radius_A[t, inside], expected, rtol=0, atol=1e-4)
 
 
 def test_closed_frames_use_k_crystal_radius(breathing_fixed):
@@ -104,8 +103,7 @@ def test_statistics_over_frames(breathing_fixed):
     res = breathing_fixed.results
     np.testing.assert_allclose(res.mean_radius_A, res.radius_A.mean(0), rtol=1e-12)
     np.testing.assert_allclose(res.sd_radius_A, res.radius_A.std(0, ddof=1), rtol=1e-12)
-    np.testing.assert_allclose(res.percentile_radius_A[2], np.median(res.radius_A, 0),
-                               rtol=1e-12)
+    np.testing.assert_allclose(res.percentile_radius_A[2], np.median(res.radius_A, 0), rtol=1e-12)
     # mean of 2.3 - 1.2 sin(pi t / 4) over t = 0..11: the sines of t = 8..11 repeat 0..3
     sines = np.sin(np.pi * np.arange(N_FRAMES) / 4)
     assert res.min_radius_mean_A == pytest.approx(2.3 - 1.2 * sines.mean(), abs=1e-4)
@@ -123,8 +121,9 @@ def test_per_frame_axis_equals_single_structure_profile(breathing):
         atoms = atoms_from_atomgroup(ag)
         radii = atom_radii_A(atoms)
         axis = find_pore_axis(atoms, radii_A=radii)
-        prof = radius_profile(atoms, axis, radii_A=radii, step_A=0.5,
-                              s_range_A=(ana.s_A[0], ana.s_A[-1]))
+        prof = radius_profile(
+            atoms, axis, radii_A=radii, step_A=0.5, s_range_A=(ana.s_A[0], ana.s_A[-1])
+        )
         np.testing.assert_array_equal(prof.s_A, ana.s_A)
         np.testing.assert_array_equal(ana.results.radius_A[row], prof.radius_A)
         assert ana.results.min_radius_A[row] == prof.min_radius_A
@@ -142,8 +141,9 @@ def test_grm_per_frame_equals_single_structure_profile():
         axis = find_pore_axis(atoms, radii_A=radii)
         if axis.direction @ ana.reference_axis.direction < 0:
             axis = axis.flipped("test")
-        prof = radius_profile(atoms, axis, radii_A=radii, step_A=0.5,
-                              s_range_A=(ana.s_A[0], ana.s_A[-1]))
+        prof = radius_profile(
+            atoms, axis, radii_A=radii, step_A=0.5, s_range_A=(ana.s_A[0], ana.s_A[-1])
+        )
         np.testing.assert_array_equal(ana.results.radius_A[row], prof.radius_A)
         assert ana.results.min_s_A[row] == prof.min_s_A
 
@@ -153,16 +153,21 @@ def test_grm_fixed_axis_equals_profile_of_aligned_frame():
 
     u = universe(grm_models_path())
     ref = universe(grm_models_path())
-    ana = PoreProfileAnalysis(u.select_atoms("all"), step_A=0.5,
-                              align_selection="name CA").run(step=5)
+    ana = PoreProfileAnalysis(u.select_atoms("all"), step_A=0.5, align_selection="name CA").run(
+        step=5
+    )
     for row, frame in enumerate(ana.frames):
         u.trajectory[frame]
         _, rmsd_after = alignto(u.atoms, ref.atoms, select="name CA", match_atoms=False)
         atoms = atoms_from_atomgroup(u.atoms)
-        prof = radius_profile(atoms, ana.reference_axis, radii_A=atom_radii_A(atoms),
-                              step_A=0.5, s_range_A=(ana.s_A[0], ana.s_A[-1]))
-        np.testing.assert_allclose(ana.results.radius_A[row], prof.radius_A, rtol=0,
-                                   atol=1e-4)
+        prof = radius_profile(
+            atoms,
+            ana.reference_axis,
+            radii_A=atom_radii_A(atoms),
+            step_A=0.5,
+            s_range_A=(ana.s_A[0], ana.s_A[-1]),
+        )
+        np.testing.assert_allclose(ana.results.radius_A[row], prof.radius_A, rtol=0, atol=1e-4)
         assert ana.results.fit_rmsd_A[row] == pytest.approx(rmsd_after, abs=1e-4)
 
 
@@ -180,8 +185,7 @@ def test_summary_and_exports(breathing_fixed, tmp_path):
     lines = [ln for ln in text.splitlines() if not ln.startswith("#")]
     assert lines[0].split(",")[:3] == ["s_A", "mean_radius_A", "sd_radius_A"]
     assert len(lines) == 1 + len(summary.s_A)
-    frames = [ln.split(",") for ln in frames_csv(summary).splitlines()
-              if not ln.startswith("#")]
+    frames = [ln.split(",") for ln in frames_csv(summary).splitlines() if not ln.startswith("#")]
     assert frames[0] == ["frame", "time_ps", "min_radius_A", "min_s_A", "fit_rmsd_A", "closed"]
     assert [row[0] for row in frames[1:] if row[-1] == "1"] == ["2", "10"]
 
@@ -208,16 +212,19 @@ def test_profile_trajectory_serial(breathing):
     np.testing.assert_allclose(result.min_radius_A, 2.3, atol=1e-4)  # sin(pi t / 4) = 0
 
 
-@pytest.mark.parametrize(("kwargs", "match"), [
-    ({"axis_mode": "sideways"}, "axis_mode must be one of fixed, per-frame"),
-    ({"step_A": 0.0}, "step_A must be > 0"),
-    ({"reference_frame": 99}, "reference_frame must be between 0 and 11"),
-    ({"percentiles": (50, 150)}, "percentiles must be between 0"),
-    ({"closed_below_A": -1}, "closed_below_A must be >= 0"),
-    ({"align_selection": "name XYZ"}, "matches no atoms"),
-    ({"s_range_A": (5, -5)}, "high > low"),
-    ({"radii": "nonesuch"}, "radii must be one of"),
-])
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"axis_mode": "sideways"}, "axis_mode must be one of fixed, per-frame"),
+        ({"step_A": 0.0}, "step_A must be > 0"),
+        ({"reference_frame": 99}, "reference_frame must be between 0 and 11"),
+        ({"percentiles": (50, 150)}, "percentiles must be between 0"),
+        ({"closed_below_A": -1}, "closed_below_A must be >= 0"),
+        ({"align_selection": "name XYZ"}, "matches no atoms"),
+        ({"s_range_A": (5, -5)}, "high > low"),
+        ({"radii": "nonesuch"}, "radii must be one of"),
+    ],
+)
 def test_bad_options_are_named(breathing, kwargs, match):
     ag = universe(*breathing).select_atoms("protein")
     with pytest.raises(InputError, match=match):
@@ -253,8 +260,9 @@ def test_capture_radius_per_frame_equals_scan_of_that_frame(breathing):
     from poreprobe.probes import capture_radius_at, probe_scan
 
     u = universe(*breathing)
-    ana = PoreProfileAnalysis(u.select_atoms("protein"), step_A=0.5,
-                              capture_probe_radius_A=1.0).run(step=2)
+    ana = PoreProfileAnalysis(
+        u.select_atoms("protein"), step_A=0.5, capture_probe_radius_A=1.0
+    ).run(step=2)
     assert list(ana.frames) == [0, 2, 4, 6, 8, 10]
     for row, frame in enumerate(ana.frames):
         u.trajectory[frame]
@@ -265,8 +273,9 @@ def test_capture_radius_per_frame_equals_scan_of_that_frame(breathing):
     # R(t) - r_C (Bondi 1964, Table I), so c = R(t) - r_C - p; 0.01 Å covers the
     # scalloped wall of 32 atoms per ring
     waist_A = ring_radii(ana.frames[:, None])[:, RING_Z_A == 0][:, 0]
-    np.testing.assert_allclose(ana.results.capture_radius_A, waist_A - CARBON_A - 1.0,
-                               rtol=0, atol=0.01)
+    np.testing.assert_allclose(
+        ana.results.capture_radius_A, waist_A - CARBON_A - 1.0, rtol=0, atol=0.01
+    )
     summary = ana.summary()
     assert summary.capture_mean_A == pytest.approx(np.mean(summary.capture_radius_A))
     assert frames_csv(summary).splitlines()[3].split(",")[4] == "capture_radius_A_p1"
@@ -278,11 +287,14 @@ def test_no_capture_unless_asked(breathing_fixed):
     assert summary.capture_radius_A is None and summary.to_dict()["capture"] is None
 
 
-@pytest.mark.parametrize(("kwargs", "match"), [
-    ({"capture_probe_radius_A": 0}, "capture_probe_radius_A must be > 0"),
-    ({"capture_from_end": "middle"}, "capture_from_end must be one of low, high"),
-    ({"capture_spacing_A": -1}, "capture_spacing_A must be > 0"),
-])
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"capture_probe_radius_A": 0}, "capture_probe_radius_A must be > 0"),
+        ({"capture_from_end": "middle"}, "capture_from_end must be one of low, high"),
+        ({"capture_spacing_A": -1}, "capture_spacing_A must be > 0"),
+    ],
+)
 def test_bad_capture_options(breathing, kwargs, match):
     with pytest.raises(InputError, match=match):
         PoreProfileAnalysis(universe(*breathing).atoms, **kwargs)

@@ -38,10 +38,12 @@ class Case:
         self.atoms, self.axis = _placed(atoms, _rotation(seed), np.array(shift))
         self.radii_A = atom_radii_A(self.atoms)
         self.spheres = AtomSpheres(self.atoms.coords_A, self.radii_A)
-        self.profile = poreprobe.radius_profile(self.atoms, self.axis, radii="bondi",
-                                                step_A=0.5, margin_A=2.0, max_radius_A=8.0)
-        self.grid = ve.clearance_grid(self.atoms, self.profile, radii_A=self.radii_A,
-                                      spacing_A=SPACING_A)
+        self.profile = poreprobe.radius_profile(
+            self.atoms, self.axis, radii="bondi", step_A=0.5, margin_A=2.0, max_radius_A=8.0
+        )
+        self.grid = ve.clearance_grid(
+            self.atoms, self.profile, radii_A=self.radii_A, spacing_A=SPACING_A
+        )
 
 
 @pytest.fixture(scope="module")
@@ -71,8 +73,15 @@ def _read_map(path):
     axes = [m.header_i32(w) for w in (17, 18, 19)]
     origin = np.array([m.header_float(w) for w in (50, 51, 52)])
     values = np.array(m.grid, copy=True)
-    return m, {"n": n, "start": start, "sampling": sampling, "cell": cell, "axes": axes,
-               "origin": origin, "values": values}
+    return m, {
+        "n": n,
+        "start": start,
+        "sampling": sampling,
+        "cell": cell,
+        "axes": axes,
+        "origin": origin,
+        "values": values,
+    }
 
 
 def test_map_value_at_grid_point_equals_clearance_there(hourglass, tmp_path):
@@ -85,7 +94,7 @@ def test_map_value_at_grid_point_equals_clearance_there(hourglass, tmp_path):
     np.testing.assert_allclose(step, SPACING_A, rtol=1e-6)
     rng = np.random.default_rng(0)
     idx = np.column_stack([rng.integers(0, n, 400) for n in h["n"]])
-    positions = (h["start"] + idx) * step                 # where a viewer puts each voxel
+    positions = (h["start"] + idx) * step  # where a viewer puts each voxel
     direct = hourglass.spheres.clearance_A(positions)
     np.testing.assert_allclose(h["values"][tuple(idx.T)], direct, rtol=1e-6, atol=1e-5)
 
@@ -94,16 +103,16 @@ def test_map_puts_pore_voxels_inside_the_pore(hourglass, tmp_path):
     path = tmp_path / "pore.mrc"
     ve.write_map(hourglass.grid, path)
     m, _ = _read_map(path)
-    m.setup(float("nan"))                                 # gemmi's own placement of the box
+    m.setup(float("nan"))  # gemmi's own placement of the box
     prof = hourglass.profile
     ok = np.isfinite(prof.radius_A)
-    at_centres = np.array([m.grid.interpolate_value(gemmi.Position(*c))
-                           for c in prof.center_A[ok]])
+    at_centres = np.array([m.grid.interpolate_value(gemmi.Position(*c)) for c in prof.center_A[ok]])
     # the clearance is 1-Lipschitz: trilinear values lie within a grid diagonal of the radius
     np.testing.assert_allclose(at_centres, prof.radius_A[ok], atol=SPACING_A * np.sqrt(3))
-    assert np.all(at_centres > 1.0)                       # open space, not inside atoms
-    at_atoms = np.array([m.grid.interpolate_value(gemmi.Position(*a))
-                         for a in hourglass.atoms.coords_A[::7]])
+    assert np.all(at_centres > 1.0)  # open space, not inside atoms
+    at_atoms = np.array(
+        [m.grid.interpolate_value(gemmi.Position(*a)) for a in hourglass.atoms.coords_A[::7]]
+    )
     # inside an atom the clearance is -r at its centre (carbon 1.7 Å, Bondi 1964)
     np.testing.assert_allclose(at_atoms, -1.7, atol=SPACING_A * np.sqrt(3))
 
@@ -131,8 +140,7 @@ def test_map_file_name_and_grid_size_are_checked(hourglass, tmp_path):
     with pytest.raises(InputError, match="spacing_A must be between"):
         ve.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.0)
     with pytest.raises(InputError, match="use a larger spacing_A"):
-        ve.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.05,
-                          region_radius_A=60.0)
+        ve.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.05, region_radius_A=60.0)
 
 
 def test_reach_map_equals_the_reach_field_where_the_grids_coincide(tmp_path):
@@ -149,15 +157,22 @@ def test_reach_map_equals_the_reach_field_where_the_grids_coincide(tmp_path):
     xyz = field.index_to_xyz(voxels)
     index = np.rint(xyz / step).astype(np.int64) - h["start"]
     np.testing.assert_allclose(index * step + h["start"] * step, xyz, atol=1e-9)
-    np.testing.assert_allclose(h["values"][tuple(index.T)], field.reach_A[tuple(voxels.T)],
-                               atol=1e-5)
+    np.testing.assert_allclose(
+        h["values"][tuple(index.T)], field.reach_A[tuple(voxels.T)], atol=1e-5
+    )
     assert len(voxels) > 100
 
 
 def test_reach_map_shows_how_far_each_probe_gets_from_the_entry(hourglass, tmp_path):
     """General pose: {reach >= p} reaches past the 2.3 Å waist only for p below it."""
-    field = poreprobe.reach_field(hourglass.atoms, hourglass.axis, radii_A=hourglass.radii_A,
-                                  spacing_A=SPACING_A, pore_radius_A=9.0, from_end="low")
+    field = poreprobe.reach_field(
+        hourglass.atoms,
+        hourglass.axis,
+        radii_A=hourglass.radii_A,
+        spacing_A=SPACING_A,
+        pore_radius_A=9.0,
+        from_end="low",
+    )
     path = tmp_path / "reach.ccp4"
     ve.write_map(ve.reach_grid(field), path)
     _, h = _read_map(path)
@@ -166,8 +181,8 @@ def test_reach_map_shows_how_far_each_probe_gets_from_the_entry(hourglass, tmp_p
     for probe, passes in ((waist - 0.5, True), (waist + 0.5, False)):
         idx = np.argwhere(h["values"] >= probe)
         s = hourglass.axis.s_A((h["start"] + idx) * step)
-        assert s.min() < -6                                 # in from the low (entry) end
-        assert bool(s.max() > 6) == passes                  # through the waist or not
+        assert s.min() < -6  # in from the low (entry) end
+        assert bool(s.max() > 6) == passes  # through the waist or not
         # a probe centre only sits where it fits: clearance >= p, to interpolation error
         c = hourglass.spheres.clearance_A((h["start"] + idx) * step)
         assert c.min() >= probe - SPACING_A
@@ -203,33 +218,33 @@ def test_mesh_is_open_only_at_the_mouths_when_the_probe_passes(hourglass):
     s_lo, s_hi = hourglass.profile.s_A[0], hourglass.profile.s_A[-1]
     assert len(edges) > 0
     assert np.all((s_open < s_lo + SPACING_A * 2) | (s_open > s_hi - SPACING_A * 2))
-    assert _components(surface.faces)[0] == 1            # one tube through the waist
+    assert _components(surface.faces)[0] == 1  # one tube through the waist
     assert surface.s_A.min() < -5 and surface.s_A.max() > 5
 
 
 def test_mesh_closes_where_the_pore_is_closed_to_the_probe(hourglass):
-    probe = 3.0                                           # wider than the 2.3 Å waist
+    probe = 3.0  # wider than the 2.3 Å waist
     assert hourglass.profile.min_radius_A < probe
     surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=probe)
     s_open = surface.s_A[surface.boundary_edges().ravel()]
     s_lo, s_hi = hourglass.profile.s_A[0], hourglass.profile.s_A[-1]
     assert np.all((s_open < s_lo + 2 * SPACING_A) | (s_open > s_hi - 2 * SPACING_A))
     n_parts, labels = _components(surface.faces)
-    assert n_parts == 2                                   # two pockets, one from each end
-    blocked = np.abs(surface.s_A) < 1.0                   # no surface at the waist itself
+    assert n_parts == 2  # two pockets, one from each end
+    blocked = np.abs(surface.s_A) < 1.0  # no surface at the waist itself
     assert not blocked.any()
     sides = {np.sign(np.median(surface.s_A[labels == k])) for k in range(n_parts)}
     assert sides == {-1.0, 1.0}
 
 
 def test_mesh_of_a_closed_cavity_is_watertight(cavity):
-    probe = 2.5                    # end rings admit 3.2 - 1.7 = 1.5 Å; the chamber 5.3 Å
+    probe = 2.5  # end rings admit 3.2 - 1.7 = 1.5 Å; the chamber 5.3 Å
     assert cavity.profile.min_radius_A < probe
     surface = ve.pore_surface(cavity.grid, cavity.profile, probe_radius_A=probe)
     assert len(surface.boundary_edges()) == 0
     n_v, n_f = len(surface.vertices_A), len(surface.faces)
     n_e = 3 * n_f // 2
-    assert n_v - n_e + n_f == 2                           # a sphere-like closed surface
+    assert n_v - n_e + n_f == 2  # a sphere-like closed surface
     c = cavity.spheres.clearance_A(surface.vertices_A)
     assert np.max(np.abs(c - probe)) <= SPACING_A
 
@@ -247,10 +262,9 @@ def _read_ply(path):
     header = lines[:end]
     n_v = int(next(ln for ln in header if ln.startswith("element vertex")).split()[-1])
     n_f = int(next(ln for ln in header if ln.startswith("element face")).split()[-1])
-    props = [ln.split()[-1] for ln in header if ln.startswith("property ")
-             and "list" not in ln]
-    vertices = np.loadtxt(lines[end + 1:end + 1 + n_v], ndmin=2)
-    faces = np.loadtxt(lines[end + 1 + n_v:end + 1 + n_v + n_f], dtype=np.int64, ndmin=2)
+    props = [ln.split()[-1] for ln in header if ln.startswith("property ") and "list" not in ln]
+    vertices = np.loadtxt(lines[end + 1 : end + 1 + n_v], ndmin=2)
+    faces = np.loadtxt(lines[end + 1 + n_v : end + 1 + n_v + n_f], dtype=np.int64, ndmin=2)
     return props, vertices, faces
 
 
@@ -262,8 +276,19 @@ def test_mesh_files_read_back(hourglass, tmp_path):
     ve.write_mesh(surface, ply, radius_range_A=(2.0, 6.0))
     ve.write_mesh(surface, obj, radius_range_A=(2.0, 6.0))
     props, v, f = _read_ply(ply)
-    assert props == ["x", "y", "z", "nx", "ny", "nz", "red", "green", "blue", "s_A",
-                     "local_radius_A"]
+    assert props == [
+        "x",
+        "y",
+        "z",
+        "nx",
+        "ny",
+        "nz",
+        "red",
+        "green",
+        "blue",
+        "s_A",
+        "local_radius_A",
+    ]
     np.testing.assert_allclose(v[:, :3], surface.vertices_A, atol=1e-4)
     np.testing.assert_array_equal(f[:, 0], 3)
     np.testing.assert_array_equal(f[:, 1:], surface.faces)
@@ -274,8 +299,9 @@ def test_mesh_files_read_back(hourglass, tmp_path):
     np.testing.assert_allclose(v[:, 9], hourglass.axis.s_A(surface.vertices_A), atol=1e-3)
     text = obj.read_text().splitlines()
     vs = np.array([ln.split()[1:] for ln in text if ln.startswith("v ")], dtype=float)
-    fs = np.array([[int(t.split("//")[0]) for t in ln.split()[1:]]
-                   for ln in text if ln.startswith("f ")])
+    fs = np.array(
+        [[int(t.split("//")[0]) for t in ln.split()[1:]] for ln in text if ln.startswith("f ")]
+    )
     np.testing.assert_allclose(vs[:, :3], surface.vertices_A, atol=1e-4)
     np.testing.assert_allclose(vs[:, 3:], colours / 255.0, atol=1e-4)
     np.testing.assert_array_equal(fs - 1, surface.faces)
@@ -293,9 +319,10 @@ def test_center_line_mmcif_reads_back(hourglass, tmp_path):
     ve.write_center_line(line, path)
     ok = np.isfinite(prof.radius_A)
     block = gemmi.cif.read(str(path)).sole_block()
-    table = block.find("_poreprobe_center_line_point.",
-                       ["id", "s", "cartn_x", "cartn_y", "cartn_z", "radius",
-                        "lining_residues"])
+    table = block.find(
+        "_poreprobe_center_line_point.",
+        ["id", "s", "cartn_x", "cartn_y", "cartn_z", "radius", "lining_residues"],
+    )
     assert len(table) == ok.sum()
     s = np.array([float(v) for v in table.column(1)])
     radius = np.array([float(v) for v in table.column(5)])
@@ -319,12 +346,14 @@ def test_center_line_mmcif_reads_back(hourglass, tmp_path):
 
 
 def test_center_line_lining_matches_a_direct_search(hourglass):
-    line = ve.center_line(hourglass.atoms, hourglass.profile, radii_A=hourglass.radii_A,
-                          contact_tol_A=0.5)
+    line = ve.center_line(
+        hourglass.atoms, hourglass.profile, radii_A=hourglass.radii_A, contact_tol_A=0.5
+    )
     labels = hourglass.atoms.residue_labels()
     for k in (0, len(line.s_A) // 2, len(line.s_A) - 1):
-        gap = (np.linalg.norm(hourglass.atoms.coords_A - line.center_A[k], axis=1)
-               - hourglass.radii_A)
+        gap = (
+            np.linalg.norm(hourglass.atoms.coords_A - line.center_A[k], axis=1) - hourglass.radii_A
+        )
         assert set(line.lining[k]) == set(labels[gap <= line.radius_A[k] + 0.5])
 
 
@@ -345,11 +374,30 @@ AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
 
 @pytest.mark.parametrize("field", ["reach", "clearance"])
 def test_export_command_writes_all_three(model_file, tmp_path, capsys, field):
-    out = {k: tmp_path / name for k, name in
-           [("map", "p.ccp4"), ("mesh", "p.ply"), ("centerline", "p.cif")]}
-    assert main(["export", str(model_file), *AXIS, "--map", str(out["map"]),
-                 "--map-field", field, "--mesh", str(out["mesh"]), "--probe-radius-A", "1.0",
-                 "--centerline", str(out["centerline"])]) == 0
+    out = {
+        k: tmp_path / name
+        for k, name in [("map", "p.ccp4"), ("mesh", "p.ply"), ("centerline", "p.cif")]
+    }
+    assert (
+        main(
+            [
+                "export",
+                str(model_file),
+                *AXIS,
+                "--map",
+                str(out["map"]),
+                "--map-field",
+                field,
+                "--mesh",
+                str(out["mesh"]),
+                "--probe-radius-A",
+                "1.0",
+                "--centerline",
+                str(out["centerline"]),
+            ]
+        )
+        == 0
+    )
     text = capsys.readouterr().out
     assert "model-based estimate" in text and "centre-line points" in text
     assert f"p.ccp4: {field}" in text
@@ -357,23 +405,29 @@ def test_export_command_writes_all_three(model_file, tmp_path, capsys, field):
     m, h = _read_map(out["map"])
     assert m.header_float(11) / m.header_i32(8) == pytest.approx(0.5)
     # the narrowest point (ring radius 4 Å less carbon 1.7 Å) holds 2.3 Å in either field
-    centre = (np.rint(np.zeros(3) / 0.5).astype(int) - h["start"])
+    centre = np.rint(np.zeros(3) / 0.5).astype(int) - h["start"]
     assert h["values"][tuple(centre)] == pytest.approx(2.3, abs=0.05)
 
 
-@pytest.mark.parametrize("argv, message", [
-    ([], "nothing to export"),
-    (["--mesh", "{d}/p.ply"], "--mesh needs --probe-radius-A"),
-    (["--map", "{d}/p.txt"], "--map file must end in"),
-    (["--map", "{d}/p.map", "--mesh", "{d}/p.ply", "--probe-radius-A", "9"],
-     "admits a probe of radius 9"),
-    (["--map", "{d}/p.map", "--spacing-A", "-1"], "spacing_A must be between"),
-])
-def test_export_bad_input_is_one_line_exit_2_and_no_file(model_file, tmp_path, argv, message,
-                                                          capsys):
+@pytest.mark.parametrize(
+    "argv, message",
+    [
+        ([], "nothing to export"),
+        (["--mesh", "{d}/p.ply"], "--mesh needs --probe-radius-A"),
+        (["--map", "{d}/p.txt"], "--map file must end in"),
+        (
+            ["--map", "{d}/p.map", "--mesh", "{d}/p.ply", "--probe-radius-A", "9"],
+            "admits a probe of radius 9",
+        ),
+        (["--map", "{d}/p.map", "--spacing-A", "-1"], "spacing_A must be between"),
+    ],
+)
+def test_export_bad_input_is_one_line_exit_2_and_no_file(
+    model_file, tmp_path, argv, message, capsys
+):
     argv = [a.format(d=tmp_path) for a in argv]
     assert main(["export", str(model_file), *AXIS, "--quiet", *argv]) == 2
     err = capsys.readouterr().err
     assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
     assert message in err
-    assert list(tmp_path.iterdir()) == []                 # not even the map before the mesh
+    assert list(tmp_path.iterdir()) == []  # not even the map before the mesh

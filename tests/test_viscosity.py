@@ -19,6 +19,7 @@ from poreprobe.viscosity import (
 
 # --- water --------------------------------------------------------------------------
 
+
 def test_water_table_points_reproduced():
     for t, eta in WATER_VISCOSITY_TABLE:
         assert water_viscosity_mPa_s(t) == pytest.approx(eta, rel=1e-12)
@@ -36,8 +37,10 @@ def test_water_reference_points():
     assert water_viscosity_mPa_s(25.0) == pytest.approx(0.8900, rel=1e-3)
 
 
-@pytest.mark.parametrize("t_C, eta_ict", [(5, 1.5188), (15, 1.1447), (22, 0.9608),
-                                          (28, 0.8363), (33, 0.7511), (37, 0.6925)])
+@pytest.mark.parametrize(
+    "t_C, eta_ict",
+    [(5, 1.5188), (15, 1.1447), (22, 0.9608), (28, 0.8363), (33, 0.7511), (37, 0.6925)],
+)
 def test_water_interpolation_between_points(t_C, eta_ict):
     # International Critical Tables (1928-29), as tabulated in the Encyclopedia of
     # Environmental Science and Engineering, Appendix Table 2 ("Viscosity and density
@@ -60,9 +63,20 @@ def test_water_viscosity_out_of_range(t_C):
 
 # --- viscogens ----------------------------------------------------------------------
 
-@pytest.mark.parametrize("percent, eta", [(10, 1.336), (20, 1.945), (30, 3.187), (32, 3.762),
-                                          (40, 6.162), (50, 15.431), (60, 58.487),
-                                          (70, 481.561)])
+
+@pytest.mark.parametrize(
+    "percent, eta",
+    [
+        (10, 1.336),
+        (20, 1.945),
+        (30, 3.187),
+        (32, 3.762),
+        (40, 6.162),
+        (50, 15.431),
+        (60, 58.487),
+        (70, 481.561),
+    ],
+)
 def test_sucrose_crc_points(percent, eta):
     # CRC Handbook 102nd ed. (2021), Concentrative properties of aqueous solutions,
     # sucrose at 20 °C (REFERENCE_VALUES §4, seen).
@@ -92,14 +106,16 @@ def test_sucrose_relative_viscosity_20_percent():
     assert viscogen_relative_viscosity("sucrose", 20) == pytest.approx(1.945 / 1.002, rel=1e-12)
 
 
-@pytest.mark.parametrize("name, percent", [("sucrose", 71.0), ("sucrose", -1.0),
-                                           ("glycerol", 101.0), ("honey", 10.0)])
+@pytest.mark.parametrize(
+    "name, percent", [("sucrose", 71.0), ("sucrose", -1.0), ("glycerol", 101.0), ("honey", 10.0)]
+)
 def test_viscogen_bad_input(name, percent):
     with pytest.raises(InputError):
         viscogen_viscosity_mPa_s(name, percent)
 
 
 # --- Stokes-Einstein -----------------------------------------------------------------
+
 
 def test_scaling_identity_at_reference():
     k = get_ion("K")
@@ -120,15 +136,20 @@ def test_scaling_follows_t_over_eta(rel, t_C):
 
 
 def test_stokes_einstein_function_explicit_reference():
-    d = stokes_einstein_diffusion_m2_per_s(2e-9, temperature_K=300.0, viscosity_mPa_s=2.0,
-                                           reference_temperature_K=250.0,
-                                           reference_viscosity_mPa_s=1.0)
+    d = stokes_einstein_diffusion_m2_per_s(
+        2e-9,
+        temperature_K=300.0,
+        viscosity_mPa_s=2.0,
+        reference_temperature_K=250.0,
+        reference_viscosity_mPa_s=1.0,
+    )
     assert d == pytest.approx(2e-9 * (300 / 250) * (1 / 2), rel=1e-14)
 
 
 def test_viscogen_sets_relative_viscosity():
-    est = diffusion_coefficient("K", temperature_C=20.0, viscogen="sucrose",
-                                viscogen_percent_w_w=20.0)
+    est = diffusion_coefficient(
+        "K", temperature_C=20.0, viscogen="sucrose", viscogen_percent_w_w=20.0
+    )
     assert est.relative_viscosity == pytest.approx(1.945 / 1.002, rel=1e-12)
     assert est.viscogen == "sucrose"
     assert any("temperature-independent" in n for n in est.notes)
@@ -140,25 +161,32 @@ def test_relative_viscosity_sd_propagates():
 
 
 def test_explicit_diffusion_used_as_is_outside_table():
-    est = diffusion_coefficient(None, temperature_C=45.0, diffusion_m2_per_s=1.5e-9,
-                                diffusion_sd_m2_per_s=1e-10)
+    est = diffusion_coefficient(
+        None, temperature_C=45.0, diffusion_m2_per_s=1.5e-9, diffusion_sd_m2_per_s=1e-10
+    )
     assert est.diffusion_m2_per_s == 1.5e-9 and est.diffusion_sd_m2_per_s == 1e-10
     assert est.method == "explicit"
     assert est.to_dict()["water_viscosity_mPa_s"] is None
 
 
-@pytest.mark.parametrize("kwargs, message", [
-    ({"temperature_C": 45.0}, "outside the water-viscosity table"),
-    ({"relative_viscosity": 0.0}, "relative_viscosity"),
-    ({"relative_viscosity": -2.0}, "relative_viscosity"),
-    ({"relative_viscosity": 2.0, "viscogen": "sucrose", "viscogen_percent_w_w": 10}, "not both"),
-    ({"viscogen": "sucrose"}, "viscogen_percent_w_w"),
-    ({"viscogen_percent_w_w": 10.0}, "needs a viscogen"),
-    ({"diffusion_m2_per_s": 1e-9, "relative_viscosity": 2.0}, "used as is"),
-    ({"diffusion_m2_per_s": 0.0}, "diffusion_m2_per_s"),
-    ({"diffusion_sd_m2_per_s": 1e-10}, "explicit"),
-    ({"temperature_C": -300.0}, "absolute zero"),
-])
+@pytest.mark.parametrize(
+    "kwargs, message",
+    [
+        ({"temperature_C": 45.0}, "outside the water-viscosity table"),
+        ({"relative_viscosity": 0.0}, "relative_viscosity"),
+        ({"relative_viscosity": -2.0}, "relative_viscosity"),
+        (
+            {"relative_viscosity": 2.0, "viscogen": "sucrose", "viscogen_percent_w_w": 10},
+            "not both",
+        ),
+        ({"viscogen": "sucrose"}, "viscogen_percent_w_w"),
+        ({"viscogen_percent_w_w": 10.0}, "needs a viscogen"),
+        ({"diffusion_m2_per_s": 1e-9, "relative_viscosity": 2.0}, "used as is"),
+        ({"diffusion_m2_per_s": 0.0}, "diffusion_m2_per_s"),
+        ({"diffusion_sd_m2_per_s": 1e-10}, "explicit"),
+        ({"temperature_C": -300.0}, "absolute zero"),
+    ],
+)
 def test_diffusion_coefficient_bad_input(kwargs, message):
     with pytest.raises(InputError, match=message):
         diffusion_coefficient("K", **kwargs)

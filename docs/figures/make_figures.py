@@ -29,8 +29,11 @@ AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
 
 def ring_radii_A(z: np.ndarray, gate_A: float) -> np.ndarray:
     """Ring radius along z: inner vestibule, gate, cavity, filter, outer vestibule."""
-    r = np.interp(z, [-15, -10, -8, -6, -4, 2, 4, 8, 10, 15],
-                  [9.5, 6.5, gate_A, gate_A, 7.0, 7.0, 3.3, 3.3, 6.0, 9.5])
+    r = np.interp(
+        z,
+        [-15, -10, -8, -6, -4, 2, 4, 8, 10, 15],
+        [9.5, 6.5, gate_A, gate_A, 7.0, 7.0, 3.3, 3.3, 6.0, 9.5],
+    )
     return r
 
 
@@ -60,7 +63,7 @@ def build_breathing(folder: str, n_frames: int = 40) -> tuple[str, str]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         universe = MDAnalysis.Universe(pdb)
-        with MDAnalysis.Writer(dcd, n_atoms=len(atoms), dt=50.0) as out:   # 50 ps per frame
+        with MDAnalysis.Writer(dcd, n_atoms=len(atoms), dt=50.0) as out:  # 50 ps per frame
             for coords in frames:
                 universe.atoms.positions = coords
                 out.write(universe.atoms)
@@ -81,20 +84,51 @@ def main_script() -> None:
     with tempfile.TemporaryDirectory() as tmp:
         channel = build(tmp, "invented_channel", gate_A=4.3)
         widened = build(tmp, "widened_gate", gate_A=5.6)
-        js = {k: os.path.join(tmp, f"{k}.json") for k in
-              ("channel", "widened", "check", "resistance", "scan", "match")}
+        js = {
+            k: os.path.join(tmp, f"{k}.json")
+            for k in ("channel", "widened", "check", "resistance", "scan", "match")
+        }
         run(["profile", channel, *AXIS, "--step-A", "0.25", "--json", js["channel"]])
         run(["profile", widened, *AXIS, "--step-A", "0.25", "--json", js["widened"]])
         run(["check", channel, *AXIS, "--step-A", "0.25", "--json", js["check"]])
-        run(["resistance", channel, *AXIS, "--segments", "gate:-9:-5", "cavity:-5:3",
-             "filter:3:9", "--json", js["resistance"]])
+        run(
+            [
+                "resistance",
+                channel,
+                *AXIS,
+                "--segments",
+                "gate:-9:-5",
+                "cavity:-5:3",
+                "filter:3:9",
+                "--json",
+                js["resistance"],
+            ]
+        )
         run(["scan", channel, *AXIS, "--probes", "0.5:4:0.25", "--json", js["scan"]])
         # invented bench numbers: 6 pA at 150 mM K+ in plain water
-        run(["match", channel, *AXIS, "--probes", "0.5:4:0.25", "--current-pA", "6",
-             "--current-sd-pA", "0.6", "--conc-mM", "150", "--ion", "K", "--json", js["match"]])
+        run(
+            [
+                "match",
+                channel,
+                *AXIS,
+                "--probes",
+                "0.5:4:0.25",
+                "--current-pA",
+                "6",
+                "--current-sd-pA",
+                "0.6",
+                "--conc-mM",
+                "150",
+                "--ion",
+                "K",
+                "--json",
+                js["match"],
+            ]
+        )
         figure("profile", [js["check"]], "--ion", "K", "--ion-radii", "crystal,hydrated")
-        figure("overlay", [js["channel"], js["widened"]], "--labels",
-               "invented channel,widened gate")
+        figure(
+            "overlay", [js["channel"], js["widened"]], "--labels", "invented channel,widened gate"
+        )
         figure("probes", [js["scan"]])
         figure("capture", [js["scan"], js["match"]])
         figure("resistance", [js["resistance"]])
@@ -103,8 +137,20 @@ def main_script() -> None:
         run(["traj", pdb, dcd, *AXIS, "--step-A", "0.25", "--json", traj])
         figure("kymograph", [traj])
         mesh = os.path.join(tmp, "pore.ply")
-        run(["export", channel, *AXIS, "--mesh", mesh, "--probe-radius-A", "1.0",
-             "--radius-range-A", "1.5", "8"])
+        run(
+            [
+                "export",
+                channel,
+                *AXIS,
+                "--mesh",
+                mesh,
+                "--probe-radius-A",
+                "1.0",
+                "--radius-range-A",
+                "1.5",
+                "8",
+            ]
+        )
         render_mesh(mesh, os.path.join(HERE, "export_mesh.png"))
 
 
@@ -115,8 +161,8 @@ def read_ply(path: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     end = lines.index("end_header")
     n_v = int(next(ln for ln in lines if ln.startswith("element vertex")).split()[-1])
     n_f = int(next(ln for ln in lines if ln.startswith("element face")).split()[-1])
-    v = np.loadtxt(lines[end + 1:end + 1 + n_v])
-    f = np.loadtxt(lines[end + 1 + n_v:end + 1 + n_v + n_f], dtype=int)[:, 1:]
+    v = np.loadtxt(lines[end + 1 : end + 1 + n_v])
+    f = np.loadtxt(lines[end + 1 + n_v : end + 1 + n_v + n_f], dtype=int)[:, 1:]
     return v[:, :3], v[:, 6:9] / 255.0, f
 
 
@@ -134,9 +180,16 @@ def render_mesh(ply: str, png: str) -> None:
     from matplotlib.colors import LightSource
 
     colours = rgb[faces[back]].mean(1)
-    ax.add_collection3d(Poly3DCollection(xyz[faces[back]], facecolors=colours,
-                                         edgecolors=colours, linewidths=0.3, shade=True,
-                                         lightsource=LightSource(azdeg=60, altdeg=30)))
+    ax.add_collection3d(
+        Poly3DCollection(
+            xyz[faces[back]],
+            facecolors=colours,
+            edgecolors=colours,
+            linewidths=0.3,
+            shade=True,
+            lightsource=LightSource(azdeg=60, altdeg=30),
+        )
+    )
     half = np.ptp(xyz, axis=0).max() / 2
     mid = (xyz.max(0) + xyz.min(0)) / 2
     for k, setter in enumerate((ax.set_xlim, ax.set_ylim, ax.set_zlim)):
@@ -144,8 +197,7 @@ def render_mesh(ply: str, png: str) -> None:
     ax.view_init(elev=8, azim=-90)
     ax.set_box_aspect(None, zoom=1.9)
     ax.set_axis_off()
-    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)",
-                 fontsize=plots.FONT_PT)
+    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)", fontsize=plots.FONT_PT)
     fig.savefig(png, dpi=int(DPI))
 
 
