@@ -58,13 +58,18 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
     g.add_argument(
         "--select", metavar="SEL", help="MDAnalysis selection limiting the atoms that count"
     )
-    g.add_argument(
+    add_radii_args(g)
+
+
+def add_radii_args(group) -> None:
+    """--radii and --radii-file."""
+    group.add_argument(
         "--radii",
         default=DEFAULT_RADIUS_SET,
         choices=sorted(RADIUS_SETS),
         help="van der Waals radius set (Å), default bondi (Bondi 1964)",
     )
-    g.add_argument(
+    group.add_argument(
         "--radii-file",
         metavar="TOML",
         help="TOML file overriding radii ([elements] / [atoms] tables, Å)",

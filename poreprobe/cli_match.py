@@ -27,7 +27,7 @@ from poreprobe.cli_common import (
     save_figure,
     say,
 )
-from poreprobe.cli_scan import DEFAULT_PROBES, parse_probe_range
+from poreprobe.cli_scan import add_scan_args, parse_probe_range
 from poreprobe.errors import InputError
 from poreprobe.export import to_json
 from poreprobe.ions import IONS, get_ion
@@ -56,32 +56,7 @@ def register(sub) -> None:
     )
     add_structure_args(p, positional=False)
     add_axis_args(p)
-    g = p.add_argument_group("probe-size scan (with STRUCTURE)")
-    g.add_argument(
-        "--probes",
-        default=DEFAULT_PROBES,
-        metavar="START:STOP:STEP",
-        help=f"probe radii in Å, STOP included (default {DEFAULT_PROBES})",
-    )
-    g.add_argument(
-        "--from",
-        "--from-end",
-        dest="from_end",
-        choices=("low", "high"),
-        default="low",
-        help="end of the axis (in s) where probes enter; default low, "
-        "which is the --entry end when --entry is given",
-    )
-    g.add_argument(
-        "--spacing-A", type=float, default=0.5, help="scan grid spacing in Å (default 0.5)"
-    )
-    g.add_argument(
-        "--pore-radius-A",
-        type=float,
-        default=15.0,
-        help="radius in Å of the region around the axis searched; sections "
-        "reaching it count as open bulk (default 15)",
-    )
+    add_scan_args(p.add_argument_group("probe-size scan (with STRUCTURE)"))
 
     b = p.add_argument_group("bench measurement")
     b.add_argument(

@@ -68,7 +68,19 @@ def register(sub) -> None:
     )
     add_structure_args(p)
     add_axis_args(p)
-    g = p.add_argument_group("scan")
+    add_scan_args(p.add_argument_group("scan"))
+    add_output_args(p)
+    p.add_argument(
+        "--profiles-csv",
+        metavar="FILE",
+        help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
+    )
+    add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
+    p.set_defaults(func=run)
+
+
+def add_scan_args(g) -> None:
+    """--probes, --from, --spacing-A and --pore-radius-A (shared with ``match``)."""
     g.add_argument(
         "--probes",
         default=DEFAULT_PROBES,
@@ -92,14 +104,6 @@ def register(sub) -> None:
         help="radius in Å of the region around the axis searched; sections "
         "reaching it count as open bulk (default 15)",
     )
-    add_output_args(p)
-    p.add_argument(
-        "--profiles-csv",
-        metavar="FILE",
-        help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
-    )
-    add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
-    p.set_defaults(func=run)
 
 
 def _check_outputs(*paths) -> None:

@@ -10,6 +10,7 @@ from poreprobe.cli_common import (
     add_capture_args,
     add_figure_args,
     add_output_args,
+    add_radii_args,
     backend_from_args,
     check_figure_path,
     radius_set_from_args,
@@ -17,7 +18,6 @@ from poreprobe.cli_common import (
     say,
 )
 from poreprobe.export import to_json
-from poreprobe.radii import DEFAULT_RADIUS_SET, RADIUS_SETS
 from poreprobe.trajectory import (
     AXIS_MODES,
     DEFAULT_PERCENTILES,
@@ -72,17 +72,7 @@ def register(sub) -> None:
         metavar="N",
         help="use every N-th frame (frames; default 1)",
     )
-    g.add_argument(
-        "--radii",
-        default=DEFAULT_RADIUS_SET,
-        choices=sorted(RADIUS_SETS),
-        help="van der Waals radius set (Å), default bondi (Bondi 1964)",
-    )
-    g.add_argument(
-        "--radii-file",
-        metavar="TOML",
-        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
-    )
+    add_radii_args(g)
     add_axis_args(p)
     g = p.add_argument_group("axis over frames")
     g.add_argument(
