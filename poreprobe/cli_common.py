@@ -181,6 +181,14 @@ def load_axis(args: argparse.Namespace, atoms: Atoms, radii_A=None) -> PoreAxis:
     )
 
 
+def load_model(args: argparse.Namespace):
+    """Atoms, radius set, per-atom radii and pore axis, as the command-line options ask."""
+    atoms = load_atoms(args)
+    rset = radius_set_from_args(args)
+    radii_A = atom_radii_A(atoms, rset)
+    return atoms, rset, radii_A, load_axis(args, atoms, radii_A)
+
+
 def say(args: argparse.Namespace, text: str = "") -> None:
     """Print a summary line unless --quiet."""
     if not getattr(args, "quiet", False):

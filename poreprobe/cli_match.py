@@ -21,19 +21,15 @@ from poreprobe.cli_common import (
     add_output_args,
     add_structure_args,
     check_figure_path,
-    load_atoms,
-    load_axis,
-    radius_set_from_args,
     save_figure,
     say,
 )
-from poreprobe.cli_scan import add_scan_args, parse_probe_range
+from poreprobe.cli_scan import add_scan_args
+from poreprobe.cli_scan import compute as scan_compute
 from poreprobe.errors import InputError
 from poreprobe.export import to_json
 from poreprobe.ions import IONS, get_ion
 from poreprobe.match import match_scan
-from poreprobe.probes import probe_scan
-from poreprobe.radii import atom_radii_A
 from poreprobe.viscosity import VISCOGENS, diffusion_coefficient
 
 
@@ -193,27 +189,6 @@ def register(sub) -> None:
     p.set_defaults(func=run)
 
 
-def _scan_structure(args):
-    """Read the structure, find its axis and run the probe-size scan as the options ask."""
-    probes = parse_probe_range(args.probes)
-    atoms = load_atoms(args)
-    rset = radius_set_from_args(args)
-    radii_A = atom_radii_A(atoms, rset)
-    axis = load_axis(args, atoms, radii_A)
-    scan = probe_scan(
-        atoms,
-        axis,
-        probe_radii_A=probes,
-        radii=rset,
-        radii_A=radii_A,
-        spacing_A=args.spacing_A,
-        from_end=args.from_end,
-        pore_radius_A=args.pore_radius_A,
-        quiet=args.quiet,
-    )
-    return atoms, scan
-
-
 def compute(args) -> dict:
     """Everything ``poreprobe match`` reports, as a JSON-ready dictionary."""
     ion = get_ion(args.ion)
@@ -263,7 +238,7 @@ def compute(args) -> dict:
         "diffusion": diff.to_dict(),
     }
     if args.structure:
-        atoms, scan = _scan_structure(args)
+        atoms, scan = scan_compute(args)
         match = match_scan(scan, est.capture_radius_A, est.capture_radius_sd_A, ion=ion)
         out["probe_radius_A_best"] = match.best_probe_radius_A
         out["probe_radius_A_intervals"] = [list(iv) for iv in match.intervals_A]

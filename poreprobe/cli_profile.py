@@ -9,15 +9,12 @@ from poreprobe.cli_common import (
     add_profile_args,
     add_structure_args,
     check_figure_path,
-    load_atoms,
-    load_axis,
-    radius_set_from_args,
+    load_model,
     save_figure,
     say,
 )
 from poreprobe.export import profile_csv, to_json
 from poreprobe.profile import radius_profile
-from poreprobe.radii import atom_radii_A
 
 
 def register(sub) -> None:
@@ -37,10 +34,7 @@ def register(sub) -> None:
 
 def compute(args):
     """Atoms, axis and profile as the options ask (shared with other commands)."""
-    atoms = load_atoms(args)
-    rset = radius_set_from_args(args)
-    radii_A = atom_radii_A(atoms, rset)
-    axis = load_axis(args, atoms, radii_A)
+    atoms, rset, radii_A, axis = load_model(args)
     prof = radius_profile(
         atoms,
         axis,

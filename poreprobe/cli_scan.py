@@ -13,16 +13,13 @@ from poreprobe.cli_common import (
     add_output_args,
     add_structure_args,
     check_figure_path,
-    load_atoms,
-    load_axis,
-    radius_set_from_args,
+    load_model,
     save_figure,
     say,
 )
 from poreprobe.errors import InputError
 from poreprobe.export import to_json, write_atomic
 from poreprobe.probes import probe_scan, profiles_csv, scan_csv
-from poreprobe.radii import atom_radii_A
 
 DEFAULT_PROBES = "0.5:6:0.25"
 MAX_PROBES = 1000
@@ -149,14 +146,10 @@ def _num(value: float, width: int) -> str:
     return f"{value:{width}.2f}" if math.isfinite(value) else f"{'-':>{width}}"
 
 
-def run(args) -> int:
+def compute(args):
+    """Atoms and probe-size scan as the options ask (shared with ``match``)."""
     probes = parse_probe_range(args.probes)
-    _check_outputs(args.json, args.csv, args.profiles_csv)
-    check_figure_path(args)
-    atoms = load_atoms(args)
-    rset = radius_set_from_args(args)
-    radii_A = atom_radii_A(atoms, rset)
-    axis = load_axis(args, atoms, radii_A)
+    atoms, rset, radii_A, axis = load_model(args)
     scan = probe_scan(
         atoms,
         axis,
@@ -168,6 +161,14 @@ def run(args) -> int:
         pore_radius_A=args.pore_radius_A,
         quiet=args.quiet,
     )
+    return atoms, scan
+
+
+def run(args) -> int:
+    parse_probe_range(args.probes)
+    _check_outputs(args.json, args.csv, args.profiles_csv)
+    check_figure_path(args)
+    atoms, scan = compute(args)
     texts = []
     if args.json:
         texts.append((args.json, to_json(scan)))
