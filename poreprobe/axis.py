@@ -2,10 +2,12 @@
 
 ``method="auto"`` (default):
 
-1. Chains with the same residue sequence form a group of equivalent subunits
-   (the largest group wins). Their matched backbone atoms (N, CA, C) give, by
-   least-squares superposition of the first subunit onto each other one, a set
-   of rotations; the common rotation axis through the group's centroid is the
+1. Chains with the same residue sequence (at least 90 % of the shorter chain
+   aligned with identical residue names, so a missing loop in one subunit is
+   tolerated) form a group of equivalent subunits (the largest group wins).
+   Their matched backbone atoms (N, CA, C) give, by least-squares
+   superposition of the first subunit onto each other one, a set of
+   rotations; the common rotation axis through the group's centroid is the
    n-fold symmetry axis. ``symmetry_rmsd_A`` is the RMSD between each subunit
    and the first subunit carried onto it by the ideal n-fold rotation about
    that axis (the deviation from perfect C_n symmetry).
@@ -24,6 +26,7 @@ centroid of the atoms projected onto the axis, so s = 0 at the protein's centre.
 
 from __future__ import annotations
 
+import difflib
 from dataclasses import dataclass
 
 import numpy as np
@@ -31,6 +34,7 @@ import numpy as np
 from poreprobe._validate import as_unit_vector, as_vector3, check_choice
 from poreprobe.errors import InputError
 from poreprobe.structure import Atoms, select_indices
+from poreprobe.superpose import kabsch_rotation, rotate_about, rotation_axis_angle
 
 AXIS_METHODS = ("auto", "symmetry", "principal", "user", "selections")
 BACKBONE = ("N", "CA", "C")
@@ -92,76 +96,146 @@ class PoreAxis:
         """Cartesian coordinates from axis-frame (u, v, s) coordinates."""
         e1, e2 = self.basis()
         uvs = np.asarray(uvs_A, dtype=np.float64)
-        return (self.point_A + uvs[..., :1] * e1 + uvs[..., 1:2] * e2
-                + uvs[..., 2:3] * self.direction)
+        return (
+            self.point_A + uvs[..., :1] * e1 + uvs[..., 1:2] * e2 + uvs[..., 2:3] * self.direction
+        )
 
     def flipped(self, oriented_by: str) -> PoreAxis:
         """The same line with the opposite direction."""
-        return PoreAxis(self.point_A, -self.direction, self.method, self.n_fold,
-                        self.symmetry_rmsd_A, oriented_by)
+        return PoreAxis(
+            self.point_A,
+            -self.direction,
+            self.method,
+            self.n_fold,
+            self.symmetry_rmsd_A,
+            oriented_by,
+        )
 
     def to_dict(self) -> dict:
-        return {"point_A": self.point_A.tolist(), "direction": self.direction.tolist(),
-                "method": self.method, "n_fold": self.n_fold,
-                "symmetry_rmsd_A": self.symmetry_rmsd_A, "oriented_by": self.oriented_by}
+        return {
+            "point_A": self.point_A.tolist(),
+            "direction": self.direction.tolist(),
+            "method": self.method,
+            "n_fold": self.n_fold,
+            "symmetry_rmsd_A": self.symmetry_rmsd_A,
+            "oriented_by": self.oriented_by,
+        }
 
 
-def _kabsch(mobile: np.ndarray, target: np.ndarray) -> np.ndarray:
-    """Rotation R minimising |R (mobile - mean) - (target - mean)|."""
-    a = mobile - mobile.mean(0)
-    b = target - target.mean(0)
-    u, _, vt = np.linalg.svd(a.T @ b)
-    sign = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
-    return vt.T @ np.diag([1.0, 1.0, sign]) @ u.T
+SEQUENCE_MATCH = 0.9
 
 
-def _rotation_axis(rot: np.ndarray) -> tuple[np.ndarray, float]:
-    """Unit axis and angle (rad) of a rotation matrix (robust at 180 degrees)."""
-    vals, vecs = np.linalg.eigh(0.5 * (rot + rot.T))
-    axis = vecs[:, int(np.argmax(vals))]
-    angle = float(np.arccos(np.clip((np.trace(rot) - 1) / 2, -1, 1)))
-    return axis, angle
+def chain_residues(atoms: Atoms, chain: str) -> tuple[list[tuple[int, str]], list[str]]:
+    """(resid, icode) keys and names of a chain's polymer residues that have a CA, in order."""
+    mask = (atoms.kind == "polymer") & (atoms.chain == chain) & (atoms.name == "CA")
+    keys = list(
+        dict.fromkeys(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True))
+    )
+    first = {}
+    for key, name in zip(
+        zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True),
+        atoms.resname[mask].tolist(),
+        strict=True,
+    ):
+        first.setdefault(key, name)
+    return keys, [first[k] for k in keys]
 
 
-def _rotate_about(points, point, axis, angle):
-    k = axis / np.linalg.norm(axis)
-    rel = points - point
-    cos, sin = np.cos(angle), np.sin(angle)
-    return (point + rel * cos + np.cross(k, rel) * sin + np.outer(rel @ k, k) * (1 - cos))
+def _alignment(ref_names: list[str], names: list[str]) -> dict[int, int]:
+    """Residue index in ``ref_names`` -> index in ``names`` for the matching blocks."""
+    if ref_names == names:
+        return dict(zip(range(len(names)), range(len(names)), strict=True))
+    matcher = difflib.SequenceMatcher(None, ref_names, names, autojunk=False)
+    return {a + t: b + t for a, b, size in matcher.get_matching_blocks() for t in range(size)}
+
+
+def aligned_residues(atoms: Atoms, chains: list[str]) -> list[list[tuple[int, str]]]:
+    """Residue keys of equivalent chains, aligned column by column.
+
+    The sequences (residue names of residues with a CA) are aligned to the first
+    chain's with :class:`difflib.SequenceMatcher`, so missing residues and
+    different numbering are tolerated; only residues present in every chain are
+    kept.
+
+    Returns
+    -------
+    list of list of (int, str)
+        ``out[k][j]``: (resid, icode) of column j in chain ``chains[k]``.
+    """
+    ref_keys, ref_names = chain_residues(atoms, chains[0])
+    common = set(range(len(ref_keys)))
+    maps = []
+    for ch in chains[1:]:
+        keys, names = chain_residues(atoms, ch)
+        mapping = _alignment(ref_names, names)
+        maps.append((keys, mapping))
+        common &= set(mapping)
+    cols = sorted(common)
+    return [[ref_keys[j] for j in cols]] + [[keys[m[j]] for j in cols] for keys, m in maps]
 
 
 def equivalent_chains(atoms: Atoms) -> tuple[list[str], np.ndarray]:
-    """The largest group of chains with identical polymer sequence.
+    """The largest group of chains with the same polymer sequence.
+
+    Two chains are equivalent when at least 90 % of the shorter one's residues
+    (those with a CA) align with identical names to the other's (a missing loop
+    or a different numbering in one subunit is tolerated).
 
     Returns
     -------
     chains : list of str
         Chain ids of the group (at least 2), or an empty list.
     matched : ndarray of shape (n_chains, m, 3)
-        Coordinates of the backbone atoms present in every chain of the group.
+        Coordinates of the backbone atoms present in every chain of the group
+        (residues matched through the alignment).
     """
     poly = atoms.kind == "polymer"
-    sequences: dict[str, list[str]] = {}
+    seqs = {}
     for ch in dict.fromkeys(atoms.chain[poly].tolist()):
-        in_chain = poly & (atoms.chain == ch) & (atoms.name == "CA")
-        seq = "-".join(atoms.resname[in_chain].tolist())
-        if seq:
-            sequences.setdefault(seq, []).append(ch)
-    groups = [g for g in sequences.values() if len(g) >= 2]
+        keys, names = chain_residues(atoms, ch)
+        if names:
+            seqs[ch] = names
+    groups: list[list[str]] = []
+    for ch, names in seqs.items():
+        for group in groups:
+            ref = seqs[group[0]]
+            shorter = min(len(ref), len(names))
+            if len(_alignment(ref, names)) >= SEQUENCE_MATCH * shorter:
+                group.append(ch)
+                break
+        else:
+            groups.append([ch])
+    groups = [g for g in groups if len(g) >= 2]
     if not groups:
         return [], np.empty((0, 0, 3))
-    group = max(groups, key=lambda g: (len(g), -list(sequences.values()).index(g)))
-    keys_per_chain = []
+    group = max(groups, key=lambda g: (len(g), -groups.index(g)))
+    columns = aligned_residues(atoms, group)
+    coords_per_chain = []
     for ch in group:
         mask = poly & (atoms.chain == ch) & np.isin(atoms.name, BACKBONE)
-        order = np.cumsum(np.r_[True, np.diff(atoms.resid[mask]) != 0]) - 1
-        keys = [f"{i}|{n}" for i, n in zip(order, atoms.name[mask], strict=True)]
-        keys_per_chain.append(dict(zip(keys, atoms.coords_A[mask], strict=True)))
-    common = [k for k in keys_per_chain[0] if all(k in kc for kc in keys_per_chain[1:])]
-    if len(common) < 3:
+        coords_per_chain.append(
+            {
+                (r, i, n): xyz
+                for r, i, n, xyz in zip(
+                    atoms.resid[mask].tolist(),
+                    atoms.icode[mask].tolist(),
+                    atoms.name[mask].tolist(),
+                    atoms.coords_A[mask],
+                    strict=True,
+                )
+            }
+        )
+    matched_rows = []
+    for j in range(len(columns[0])):
+        for name in BACKBONE:
+            keys = [(*columns[k][j], name) for k in range(len(group))]
+            if all(key in kc for key, kc in zip(keys, coords_per_chain, strict=True)):
+                matched_rows.append(
+                    [kc[key] for key, kc in zip(keys, coords_per_chain, strict=True)]
+                )
+    if len(matched_rows) < 3:
         return [], np.empty((0, 0, 3))
-    matched = np.array([[kc[k] for k in common] for kc in keys_per_chain])
-    return group, matched
+    return group, np.array(matched_rows).transpose(1, 0, 2)
 
 
 def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
@@ -173,7 +247,7 @@ def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
     centre = matched.reshape(-1, 3).mean(0)
     axes, weights = [], []
     for k in range(1, n):
-        axis, angle = _rotation_axis(_kabsch(matched[0], matched[k]))
+        axis, angle = rotation_axis_angle(kabsch_rotation(matched[0], matched[k]))
         axes.append(axis)
         weights.append(max(np.sin(angle / 2), 1e-6))
     ref = axes[int(np.argmax(weights))]
@@ -183,11 +257,12 @@ def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
     for k in range(1, n):
         best = np.inf
         for m in range(1, n):
-            moved = _rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
+            moved = rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
             best = min(best, float(np.sqrt(((moved - matched[k]) ** 2).sum(1).mean())))
         deviations.append(best)
-    return PoreAxis(centre, direction, f"symmetry C{n}", n_fold=n,
-                    symmetry_rmsd_A=float(np.mean(deviations)))
+    return PoreAxis(
+        centre, direction, f"symmetry C{n}", n_fold=n, symmetry_rmsd_A=float(np.mean(deviations))
+    )
 
 
 def principal_axes(atoms: Atoms) -> list[PoreAxis]:
@@ -212,8 +287,9 @@ def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray) -> float:
 def _recentre(axis: PoreAxis, atoms: Atoms) -> PoreAxis:
     centre = atoms.coords_A.mean(0)
     point = axis.point_A + ((centre - axis.point_A) @ axis.direction) * axis.direction
-    return PoreAxis(point, axis.direction, axis.method, axis.n_fold, axis.symmetry_rmsd_A,
-                    axis.oriented_by)
+    return PoreAxis(
+        point, axis.direction, axis.method, axis.n_fold, axis.symmetry_rmsd_A, axis.oriented_by
+    )
 
 
 def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreAxis:
@@ -240,14 +316,22 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
         lo, hi = float(s.min()), float(s.max())
         third = (hi - lo) / 3
         if lo + third < s_entry < hi - third:
-            raise InputError(f"entry selection {entry!r} lies in the middle of the pore "
-                             f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
-                             "select atoms at one end")
+            raise InputError(
+                f"entry selection {entry!r} lies in the middle of the pore "
+                f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
+                "select atoms at one end"
+            )
         mid = 0.5 * (lo + hi)
         if s_entry > mid:
             return axis.flipped(f"entry {entry!r}")
-        return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                        axis.symmetry_rmsd_A, f"entry {entry!r}")
+        return PoreAxis(
+            axis.point_A,
+            axis.direction,
+            axis.method,
+            axis.n_fold,
+            axis.symmetry_rmsd_A,
+            f"entry {entry!r}",
+        )
     poly = atoms.kind == "polymer"
     firsts = []
     for ch in np.unique(atoms.chain[poly]):
@@ -258,17 +342,36 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
     if abs(mean_first) >= 1.0:
         if mean_first > 0:
             return axis.flipped("N-termini at negative s")
-        return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                        axis.symmetry_rmsd_A, "N-termini at negative s")
+        return PoreAxis(
+            axis.point_A,
+            axis.direction,
+            axis.method,
+            axis.n_fold,
+            axis.symmetry_rmsd_A,
+            "N-termini at negative s",
+        )
     if axis.direction[int(np.argmax(np.abs(axis.direction)))] < 0:
         return axis.flipped("largest component positive")
-    return PoreAxis(axis.point_A, axis.direction, axis.method, axis.n_fold,
-                    axis.symmetry_rmsd_A, "largest component positive")
+    return PoreAxis(
+        axis.point_A,
+        axis.direction,
+        axis.method,
+        axis.n_fold,
+        axis.symmetry_rmsd_A,
+        "largest component positive",
+    )
 
 
-def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, direction=None,
-                   selections: tuple[str, str] | None = None, entry: str | None = None,
-                   radii_A: np.ndarray | None = None) -> PoreAxis:
+def find_pore_axis(
+    atoms: Atoms,
+    *,
+    method: str = "auto",
+    point_A=None,
+    direction=None,
+    selections: tuple[str, str] | None = None,
+    entry: str | None = None,
+    radii_A: np.ndarray | None = None,
+) -> PoreAxis:
     """Find the pore axis of a channel model.
 
     Parameters
@@ -324,8 +427,9 @@ def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, directio
             raise InputError("the two axis selections have the same centroid")
         axis = _recentre(PoreAxis(a, b - a, "selections"), atoms)
         if entry is None:
-            return PoreAxis(axis.point_A, axis.direction, "selections",
-                            oriented_by="first to second selection")
+            return PoreAxis(
+                axis.point_A, axis.direction, "selections", oriented_by="first to second selection"
+            )
         return orient_axis(axis, atoms, entry)
     if radii_A is None:
         from poreprobe.radii import atom_radii_A
@@ -334,8 +438,10 @@ def find_pore_axis(atoms: Atoms, *, method: str = "auto", point_A=None, directio
     sym = symmetry_axis(atoms)
     if method == "symmetry":
         if sym is None:
-            raise InputError("no group of two or more chains with identical sequence found; "
-                             "use method 'principal' or give the axis")
+            raise InputError(
+                "no group of two or more chains with identical sequence found; "
+                "use method 'principal' or give the axis"
+            )
         chosen = sym
     elif method == "principal":
         chosen = max(principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A))

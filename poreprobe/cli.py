@@ -19,7 +19,17 @@ from poreprobe.errors import PoreprobeError
 
 #: Command modules, in the order ``poreprobe --help`` lists them.
 COMMAND_MODULES = (
+    "poreprobe.cli_demo",
     "poreprobe.cli_profile",
+    "poreprobe.cli_scan",
+    "poreprobe.cli_match",
+    "poreprobe.cli_resistance",
+    "poreprobe.cli_check",
+    "poreprobe.cli_compare",
+    "poreprobe.cli_plot",
+    "poreprobe.cli_export",
+    "poreprobe.cli_traj",
+    "poreprobe.cli_batch",
 )
 
 
@@ -40,7 +50,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = OneLineParser(
         prog="poreprobe",
         description="Ion-channel pore geometry from structural models. All numbers are "
-                    "model-based estimates (they depend on the radius set and the model).",
+        "model-based estimates (they depend on the radius set and the model).",
     )
     parser.add_argument("--version", action="version", version=f"poreprobe {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=OneLineParser)
@@ -52,11 +62,16 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv=None) -> int:
     """Run the command line; returns the exit code."""
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # --help, --version, or a one-line usage error
+        return int(exc.code or 0)
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
     logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
+    # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
+    logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
     with warnings.catch_warnings():
         warnings.showwarning = _show_warning
         if getattr(args, "quiet", False):
@@ -67,8 +82,7 @@ def main(argv=None) -> int:
             sys.stderr.write(f"poreprobe: error: {exc}\n")
             return 2
         except OSError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: "
-                             f"{exc.filename or ''}\n")
+            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: {exc.filename or ''}\n")
             return 2
 
 

@@ -4,42 +4,45 @@ from __future__ import annotations
 
 from poreprobe.cli_common import (
     add_axis_args,
+    add_figure_args,
     add_output_args,
+    add_profile_args,
     add_structure_args,
-    load_atoms,
-    load_axis,
-    radius_set_from_args,
+    check_figure_path,
+    load_model,
+    save_figure,
     say,
 )
 from poreprobe.export import profile_csv, to_json
 from poreprobe.profile import radius_profile
-from poreprobe.radii import atom_radii_A
 
 
 def register(sub) -> None:
-    p = sub.add_parser("profile", help="radius profile along the pore axis (Å)",
-                       description="Largest empty sphere per plane along the pore axis. "
-                                   "A model-based estimate: it depends on the radius set.")
+    p = sub.add_parser(
+        "profile",
+        help="radius profile along the pore axis (Å)",
+        description="Largest empty sphere per plane along the pore axis. "
+        "A model-based estimate: it depends on the radius set.",
+    )
     add_structure_args(p)
     add_axis_args(p)
-    g = p.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.2, help="plane spacing in Å (default 0.2)")
-    g.add_argument("--margin-A", type=float, default=2.0,
-                   help="extension beyond the protein along the axis, Å (default 2)")
-    g.add_argument("--max-radius-A", type=float, default=20.0,
-                   help="planes wider than this (Å) count as open bulk (default 20)")
+    add_profile_args(p)
     add_output_args(p)
+    add_figure_args(p, ion_bands=True)
     p.set_defaults(func=run)
 
 
 def compute(args):
     """Atoms, axis and profile as the options ask (shared with other commands)."""
-    atoms = load_atoms(args)
-    rset = radius_set_from_args(args)
-    radii_A = atom_radii_A(atoms, rset)
-    axis = load_axis(args, atoms, radii_A)
-    prof = radius_profile(atoms, axis, radii_A=radii_A, step_A=args.step_A,
-                          margin_A=args.margin_A, max_radius_A=args.max_radius_A)
+    atoms, rset, radii_A, axis = load_model(args)
+    prof = radius_profile(
+        atoms,
+        axis,
+        radii_A=radii_A,
+        step_A=args.step_A,
+        margin_A=args.margin_A,
+        max_radius_A=args.max_radius_A,
+    )
     prof = _with_set_name(prof, rset.name)
     return atoms, axis, prof
 
@@ -56,10 +59,10 @@ def summary_lines(atoms, prof) -> list[str]:
     lines = [
         f"poreprobe {prof.version}: radius profile of {atoms.source} ({len(atoms)} atoms) "
         "- a model-based estimate",
-        f"axis: {ax.method}" + (f" (symmetry RMSD {ax.symmetry_rmsd_A:.2f} Å)"
-                                if ax.symmetry_rmsd_A is not None else "")
+        f"axis: {ax.method}"
+        + (f" (symmetry RMSD {ax.symmetry_rmsd_A:.2f} Å)" if ax.symmetry_rmsd_A is not None else "")
         + f", point {_fmt(ax.point_A)} Å, direction {_fmt(ax.direction, 3)}, "
-          f"oriented by {ax.oriented_by}",
+        f"oriented by {ax.oriented_by}",
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
         f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
@@ -74,6 +77,7 @@ def _fmt(vec, digits=2):
 
 
 def run(args) -> int:
+    check_figure_path(args)
     atoms, _, prof = compute(args)
     if args.json:
         to_json(prof, args.json)
@@ -81,4 +85,5 @@ def run(args) -> int:
         profile_csv(prof, args.csv)
     for line in summary_lines(atoms, prof):
         say(args, line)
+    save_figure(args, "profile", prof)
     return 0

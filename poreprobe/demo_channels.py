@@ -41,10 +41,12 @@ breathing trajectory
 
 Files
 -----
-:func:`write_demo_files` writes the models as PDB and mmCIF (and the
-trajectory as XTC with the open model's PDB as topology) with fixed number
-formatting, so the same package version writes the same bytes on every run.
-``structures_demo/build.py`` in the source tree uses it.
+:func:`write_demo_files` writes the models as PDB and mmCIF
+(``demo_channel``, ``demo_widened``, ``demo_closed``) and the trajectory as XTC
+(``demo_breathing.xtc``, topology ``demo_channel.pdb``) with fixed number
+formatting and no dates, so the same package version writes the same bytes on
+every run. ``structures_demo/build.py`` writes the committed copies, which ship
+inside the package (:func:`poreprobe.demo.demo_path`).
 """
 
 from __future__ import annotations
@@ -77,37 +79,177 @@ JITTER_A = 0.15
 #: Largest hinge swing of the breathing trajectory, as a fraction of the closed state's.
 BREATHING_AMPLITUDE = 0.7
 _JITTER_SEED = 20250808
-B_FACTOR_A2 = 20.0
+#: Invented B-factors (Å²): 15 + 0.5 |z| (z in Å from the membrane centre), plus 6 in
+#: the two extracellular loops, so that they vary as a real model's do.
+_LOOPS = ((25, 30), (48, 53))
 
 # The design below was found once by placing ideal helices and the filter strand,
 # closing the loops between them by least squares on the loop dihedrals and
 # choosing clash-free side-chain rotamers; the numbers are the result, kept
 # here so that building is fast and exactly reproducible.
 
-SEQUENCE = 'MAKELALVALIVALFAALIGAWAYSGDGNSDELARLATLTAGSLGFGDGKNGSLVVASLVAALITGLVAALIFMARSKN'
+SEQUENCE = "MAKELALVALIVALFAALIGAWAYSGDGNSDELARLATLTAGSLGFGDGKNGSLVVASLVAALITGLVAALIFMARSKN"
 _PHI_DEG = (
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -58.818, -62.664, -46.915, -119.053, -87.853, -60.140, -70.460, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -57.000, 31.399, -112.402, -80.922, 76.900, -77.410, 119.951, -117.844,
-    -141.073, -120.497, -128.417, 97.941, -79.658, -45.123, -57.000, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
-    -57.000, -57.000, -57.000, -57.000, -57.000, -57.000, -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -58.818,
+    -62.664,
+    -46.915,
+    -119.053,
+    -87.853,
+    -60.140,
+    -70.460,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    31.399,
+    -112.402,
+    -80.922,
+    76.900,
+    -77.410,
+    119.951,
+    -117.844,
+    -141.073,
+    -120.497,
+    -128.417,
+    97.941,
+    -79.658,
+    -45.123,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
 )
 _PSI_DEG = (
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -38.979,
-    -38.341, 156.286, -52.683, 103.541, 153.938, 111.418, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
-    -59.815, 49.155, -76.839, -79.144, 84.076, -80.325, 22.072, -21.207,
-    137.050, 17.174, 156.222, 174.005, 21.988, -47.000, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
-    -47.000, -47.000, -47.000, -47.000, -47.000, -47.000, -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -38.979,
+    -38.341,
+    156.286,
+    -52.683,
+    103.541,
+    153.938,
+    111.418,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -59.815,
+    49.155,
+    -76.839,
+    -79.144,
+    84.076,
+    -80.325,
+    22.072,
+    -21.207,
+    137.050,
+    17.174,
+    156.222,
+    174.005,
+    21.988,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
 )
 _ROTAMERS_DEG = {
     1: (-90, 180, 180),
@@ -170,9 +312,8 @@ _CLOSED_DELTA_DEG = {65: (4.443, -3.056), 66: (3.369, 5.975), 67: (5.852, 1.886)
 _CLOSED_ROTAMERS_DEG = {74: (-90, -150, 65), 79: (-90, 120)}
 
 
-_FILE_STEMS = {"open": "demo_channel", "widened": "demo_channel_widened",
-               "closed": "demo_channel_closed"}
-TRAJECTORY_FILE = "demo_channel_breathing.xtc"
+_FILE_STEMS = {"open": "demo_channel", "widened": "demo_widened", "closed": "demo_closed"}
+TRAJECTORY_FILE = "demo_breathing.xtc"
 
 
 def _c4_copies(chain_atoms: Atoms) -> Atoms:
@@ -181,11 +322,23 @@ def _c4_copies(chain_atoms: Atoms) -> Atoms:
     parts = []
     xyz = chain_atoms.coords_A
     for chain in CHAINS:
-        parts.append(replace(chain_atoms, coords_A=xyz.copy(),
-                             chain=np.full(len(chain_atoms), chain)))
+        parts.append(
+            replace(chain_atoms, coords_A=xyz.copy(), chain=np.full(len(chain_atoms), chain))
+        )
         xyz = xyz @ quarter.T
-    fields = ("coords_A", "element", "name", "resname", "resid", "icode", "chain", "altloc",
-              "occupancy", "b_factor", "kind")
+    fields = (
+        "coords_A",
+        "element",
+        "name",
+        "resname",
+        "resid",
+        "icode",
+        "chain",
+        "altloc",
+        "occupancy",
+        "b_factor",
+        "kind",
+    )
     merged = {f: np.concatenate([getattr(p, f) for p in parts]) for f in fields}
     return replace(parts[0], **merged)
 
@@ -198,8 +351,11 @@ def _pose(coords_A: np.ndarray) -> np.ndarray:
 
 
 def _subunit(sequence: str, phi_deg, psi_deg, rotamers: dict[int, tuple]) -> Atoms:
-    chi = {resid - 1: chis for resid, chis in rotamers.items()
-           if ONE_TO_THREE[sequence[resid - 1]] not in ("ALA", "GLY", "PRO")}
+    chi = {
+        resid - 1: chis
+        for resid, chis in rotamers.items()
+        if ONE_TO_THREE[sequence[resid - 1]] not in ("ALA", "GLY", "PRO")
+    }
     chain = build_chain(sequence, phi_deg, psi_deg, chi_deg=chi, chain="A")
     return replace(chain, coords_A=_pose(chain.coords_A))
 
@@ -240,15 +396,23 @@ def demo_channel(variant: str = "open") -> Atoms:
     fraction = 0.0
     if variant == "widened":
         i = ENTRANCE_RESIDUE - 1
-        sequence = sequence[:i] + "A" + sequence[i + 1:]
+        sequence = sequence[:i] + "A" + sequence[i + 1 :]
         rotamers.pop(ENTRANCE_RESIDUE)
     elif variant == "closed":
         fraction = 1.0
         rotamers.update(_CLOSED_ROTAMERS_DEG)
     phi, psi = _hinge_dihedrals(fraction)
     atoms = _c4_copies(_subunit(sequence, phi, psi, rotamers))
-    return replace(atoms, b_factor=np.full(len(atoms), B_FACTOR_A2),
-                   source=f"{CHANNEL_NAME} {variant} (invented)")
+    return replace(
+        atoms, b_factor=_b_factors_A2(atoms), source=f"{CHANNEL_NAME} {variant} (invented)"
+    )
+
+
+def _b_factors_A2(atoms: Atoms) -> np.ndarray:
+    loop = np.zeros(len(atoms), dtype=bool)
+    for first, last in _LOOPS:
+        loop |= (atoms.resid >= first) & (atoms.resid <= last)
+    return np.round(15.0 + 0.5 * np.abs(atoms.coords_A[:, 2]) + 6.0 * loop, 2)
 
 
 def demo_trajectory(n_frames: int = N_FRAMES) -> tuple[Atoms, np.ndarray]:
@@ -338,11 +502,14 @@ def pdb_text(atoms: Atoms, *, title: str = "") -> str:
             f"{atoms.resid[i]:4d}{atoms.icode[i] or ' ':1s}   "
             f"{xyz[i, 0]:8.3f}{xyz[i, 1]:8.3f}{xyz[i, 2]:8.3f}"
             f"{atoms.occupancy[i]:6.2f}{atoms.b_factor[i]:6.2f}          "
-            f"{atoms.element[i].capitalize():>2s}  ")
+            f"{atoms.element[i].capitalize():>2s}  "
+        )
         if i == n - 1 or atoms.chain[i + 1] != atoms.chain[i]:
             serial += 1
-            lines.append(f"TER   {serial:5d}      {atoms.resname[i]:>3s} {atoms.chain[i]:1s}"
-                         f"{atoms.resid[i]:4d}{atoms.icode[i] or ' ':1s}")
+            lines.append(
+                f"TER   {serial:5d}      {atoms.resname[i]:>3s} {atoms.chain[i]:1s}"
+                f"{atoms.resid[i]:4d}{atoms.icode[i] or ' ':1s}"
+            )
     lines.append("END")
     return "\n".join(lines) + "\n"
 
@@ -365,19 +532,48 @@ def mmcif_text(atoms: Atoms, *, name: str = "HALK", title: str = "") -> str:
     chains = list(dict.fromkeys(atoms.chain.tolist()))
     out = [f"data_{name}", "#", f"_entry.id {name}", "#"]
     out.append(f"_struct.title '{title or 'invented model'}'")
-    out += ["#", "_entity.id 1", "_entity.type polymer",
-            f"_entity.pdbx_description '{CHANNEL_NAME} subunit (invented)'", "#"]
-    out += ["_entity_poly.entity_id 1", "_entity_poly.type polypeptide(L)",
-            f"_entity_poly.pdbx_strand_id {','.join(chains)}", "#"]
-    out += ["loop_", "_entity_poly_seq.entity_id", "_entity_poly_seq.num",
-            "_entity_poly_seq.mon_id"]
+    out += [
+        "#",
+        "_entity.id 1",
+        "_entity.type polymer",
+        f"_entity.pdbx_description '{CHANNEL_NAME} subunit (invented)'",
+        "#",
+    ]
+    out += [
+        "_entity_poly.entity_id 1",
+        "_entity_poly.type polypeptide(L)",
+        f"_entity_poly.pdbx_strand_id {','.join(chains)}",
+        "#",
+    ]
+    out += [
+        "loop_",
+        "_entity_poly_seq.entity_id",
+        "_entity_poly_seq.num",
+        "_entity_poly_seq.mon_id",
+    ]
     out += [f"1 {resid} {resname}" for resid, resname in residues]
     out += ["#", "loop_", "_struct_asym.id", "_struct_asym.entity_id"]
     out += [f"{chain} 1" for chain in chains]
-    columns = ("group_PDB", "id", "type_symbol", "label_atom_id", "label_alt_id",
-               "label_comp_id", "label_asym_id", "label_entity_id", "label_seq_id",
-               "pdbx_PDB_ins_code", "Cartn_x", "Cartn_y", "Cartn_z", "occupancy",
-               "B_iso_or_equiv", "auth_seq_id", "auth_asym_id", "pdbx_PDB_model_num")
+    columns = (
+        "group_PDB",
+        "id",
+        "type_symbol",
+        "label_atom_id",
+        "label_alt_id",
+        "label_comp_id",
+        "label_asym_id",
+        "label_entity_id",
+        "label_seq_id",
+        "pdbx_PDB_ins_code",
+        "Cartn_x",
+        "Cartn_y",
+        "Cartn_z",
+        "occupancy",
+        "B_iso_or_equiv",
+        "auth_seq_id",
+        "auth_asym_id",
+        "pdbx_PDB_model_num",
+    )
     out += ["#", "loop_"] + [f"_atom_site.{c}" for c in columns]
     xyz = _fixed(atoms.coords_A)
     for i in range(len(atoms)):
@@ -386,20 +582,21 @@ def mmcif_text(atoms: Atoms, *, name: str = "HALK", title: str = "") -> str:
             f"{atoms.altloc[i] or '.'} {atoms.resname[i]} {atoms.chain[i]} 1 {atoms.resid[i]} "
             f"{atoms.icode[i] or '?'} {xyz[i, 0]:.3f} {xyz[i, 1]:.3f} {xyz[i, 2]:.3f} "
             f"{atoms.occupancy[i]:.2f} {atoms.b_factor[i]:.2f} {atoms.resid[i]} "
-            f"{atoms.chain[i]} 1")
+            f"{atoms.chain[i]} 1"
+        )
     out.append("#")
     return "\n".join(out) + "\n"
 
 
 def write_demo_files(folder, *, trajectory: bool = True) -> dict[str, str]:
-    """Write the demo models (PDB and mmCIF) and the breathing trajectory (XTC).
+    """Write the demo models (PDB and mmCIF) and the breathing trajectory (XTC), atomically.
 
     Parameters
     ----------
     folder : str or os.PathLike
         An existing folder.
     trajectory : bool
-        Also write ``demo_channel_breathing.xtc`` (topology: ``demo_channel.pdb``).
+        Also write ``demo_breathing.xtc`` (topology: ``demo_channel.pdb``).
 
     Returns
     -------
@@ -412,8 +609,10 @@ def write_demo_files(folder, *, trajectory: bool = True) -> dict[str, str]:
         atoms = demo_channel(variant)
         stem = _FILE_STEMS[variant]
         title = f"{CHANNEL_NAME} {variant} state, an invented K+ channel (poreprobe demo)"
-        for suffix, text in (("pdb", pdb_text(atoms, title=title)),
-                             ("cif", mmcif_text(atoms, name=stem.upper(), title=title))):
+        for suffix, text in (
+            ("pdb", pdb_text(atoms, title=title)),
+            ("cif", mmcif_text(atoms, name=stem.upper(), title=title)),
+        ):
             path = os.path.join(folder, f"{stem}.{suffix}")
             write_atomic(path, text)
             paths[f"{variant}.{suffix}"] = path
@@ -430,17 +629,14 @@ def write_trajectory(path, n_frames: int = N_FRAMES) -> str:
 
     path = os.fspath(path)
     universe = demo_universe(n_frames)
-    folder = os.path.dirname(os.path.abspath(path))
-    fd, tmp = tempfile.mkstemp(prefix=".poreprobe-", suffix=".xtc", dir=folder)
-    os.close(fd)
-    try:
+    with tempfile.TemporaryDirectory() as tmp:
+        scratch = os.path.join(tmp, "frames.xtc")
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            with MDAnalysis.Writer(tmp, n_atoms=len(universe.atoms)) as writer:
+            with MDAnalysis.Writer(scratch, n_atoms=len(universe.atoms)) as writer:
                 for _ in universe.trajectory:
                     writer.write(universe.atoms)
-        os.replace(tmp, path)
-    finally:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
+        with open(scratch, "rb") as fh:
+            data = fh.read()
+    write_atomic(path, data)
     return path

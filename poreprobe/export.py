@@ -35,6 +35,12 @@ def _jsonable(obj):
     return obj
 
 
+def _current_umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def write_atomic(path, text: str | bytes) -> None:
     """Write ``text`` to ``path`` through a temporary file and a rename."""
     path = os.fspath(path)
@@ -43,9 +49,11 @@ def write_atomic(path, text: str | bytes) -> None:
         raise InputError(f"cannot write {path}: folder {folder} does not exist")
     mode = "wb" if isinstance(text, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".poreprobe-", dir=folder)
+    os.chmod(tmp, 0o666 & ~_current_umask())  # mkstemp makes 0600; give the usual mode
     try:
-        with os.fdopen(fd, mode, **({} if mode == "wb" else {"encoding": "utf-8",
-                                                             "newline": ""})) as fh:
+        with os.fdopen(
+            fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})
+        ) as fh:
             fh.write(text)
         os.replace(tmp, path)
     except BaseException:
@@ -66,8 +74,9 @@ def to_json(result, path=None, *, indent: int = 2) -> str:
     return text
 
 
-def to_csv(header: Sequence[str], rows: Iterable[Sequence], path=None,
-           comments: Sequence[str] = ()) -> str:
+def to_csv(
+    header: Sequence[str], rows: Iterable[Sequence], path=None, comments: Sequence[str] = ()
+) -> str:
     """Serialise rows as CSV (NaN as empty cells), optionally written atomically.
 
     ``comments`` become leading ``# ...`` lines (units, radius set, caveats).
@@ -78,8 +87,14 @@ def to_csv(header: Sequence[str], rows: Iterable[Sequence], path=None,
     writer = csv.writer(buf, lineterminator="\n")
     writer.writerow(header)
     for row in rows:
-        writer.writerow(["" if isinstance(v, float) and not math.isfinite(v) else
-                         (f"{v:.6g}" if isinstance(v, float) else v) for v in row])
+        writer.writerow(
+            [
+                ""
+                if isinstance(v, float) and not math.isfinite(v)
+                else (f"{v:.6g}" if isinstance(v, float) else v)
+                for v in row
+            ]
+        )
     text = buf.getvalue()
     if path is not None:
         write_atomic(path, text)
@@ -88,10 +103,15 @@ def to_csv(header: Sequence[str], rows: Iterable[Sequence], path=None,
 
 def profile_csv(profile, path=None) -> str:
     """CSV of a :class:`~poreprobe.profile.RadiusProfile`: s, radius, centre (Å)."""
-    rows = ((float(s), float(r), *map(float, c)) for s, r, c in
-            zip(profile.s_A, profile.radius_A, profile.center_A, strict=True))
-    comments = (f"poreprobe {profile.version} radius profile of {profile.source}",
-                f"radius set: {profile.radius_set}; model-based estimate; lengths in Å",
-                f"axis method: {profile.axis.method}")
-    return to_csv(("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path,
-                  comments)
+    rows = (
+        (float(s), float(r), *map(float, c))
+        for s, r, c in zip(profile.s_A, profile.radius_A, profile.center_A, strict=True)
+    )
+    comments = (
+        f"poreprobe {profile.version} radius profile of {profile.source}",
+        f"radius set: {profile.radius_set}; model-based estimate; lengths in Å",
+        f"axis method: {profile.axis.method}",
+    )
+    return to_csv(
+        ("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path, comments
+    )

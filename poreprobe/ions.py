@@ -88,9 +88,14 @@ def get_ion(name: str) -> Ion:
     return IONS[key]
 
 
-def nernst_einstein_diffusion_m2_per_s(limiting_conductivity_S_cm2_per_mol: float, charge: int,
-                                       temperature_K: float = T_REF_K) -> float:
+def nernst_einstein_diffusion_m2_per_s(
+    limiting_conductivity_S_cm2_per_mol: float, charge: int, temperature_K: float = T_REF_K
+) -> float:
     """D = R T λ / (z² F²), with λ converted from S cm² mol⁻¹ to S m² mol⁻¹."""
     lam = limiting_conductivity_S_cm2_per_mol * 1e-4
-    return constants.R * temperature_K * lam / (charge**2 * constants.physical_constants[
-        "Faraday constant"][0] ** 2)
+    return (
+        constants.R
+        * temperature_K
+        * lam
+        / (charge**2 * constants.physical_constants["Faraday constant"][0] ** 2)
+    )

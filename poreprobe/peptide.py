@@ -39,9 +39,26 @@ CA_C_OXT_DEG = 117.0
 
 #: One-letter codes of the 20 standard amino acids.
 ONE_TO_THREE = {
-    "A": "ALA", "R": "ARG", "N": "ASN", "D": "ASP", "C": "CYS", "Q": "GLN", "E": "GLU",
-    "G": "GLY", "H": "HIS", "I": "ILE", "L": "LEU", "K": "LYS", "M": "MET", "F": "PHE",
-    "P": "PRO", "S": "SER", "T": "THR", "W": "TRP", "Y": "TYR", "V": "VAL",
+    "A": "ALA",
+    "R": "ARG",
+    "N": "ASN",
+    "D": "ASP",
+    "C": "CYS",
+    "Q": "GLN",
+    "E": "GLU",
+    "G": "GLY",
+    "H": "HIS",
+    "I": "ILE",
+    "L": "LEU",
+    "K": "LYS",
+    "M": "MET",
+    "F": "PHE",
+    "P": "PRO",
+    "S": "SER",
+    "T": "THR",
+    "W": "TRP",
+    "Y": "TYR",
+    "V": "VAL",
 }
 
 
@@ -72,8 +89,9 @@ def place_atom(a, b, c, bond_A: float, angle_deg: float, dihedral_deg: float) ->
     m = np.cross(n, bc)
     theta = np.radians(angle_deg)
     tau = np.radians(dihedral_deg)
-    return c + bond_A * (-np.cos(theta) * bc + np.sin(theta) * np.cos(tau) * m
-                         + np.sin(theta) * np.sin(tau) * n)
+    return c + bond_A * (
+        -np.cos(theta) * bc + np.sin(theta) * np.cos(tau) * m + np.sin(theta) * np.sin(tau) * n
+    )
 
 
 def dihedral_deg(a, b, c, d) -> float:
@@ -91,8 +109,9 @@ def three_letter(sequence: str | Sequence[str]) -> list[str]:
     if isinstance(sequence, str):
         bad = sorted({ch for ch in sequence if ch not in ONE_TO_THREE})
         if bad:
-            raise InputError(f"sequence holds unknown one-letter codes {bad}; "
-                             f"allowed: {''.join(ONE_TO_THREE)}")
+            raise InputError(
+                f"sequence holds unknown one-letter codes {bad}; allowed: {''.join(ONE_TO_THREE)}"
+            )
         return [ONE_TO_THREE[ch] for ch in sequence]
     names = [str(s).upper() for s in sequence]
     bad = sorted(set(names) - set(SIDE_CHAINS))
@@ -114,8 +133,9 @@ def _per_residue(values, n: int, default: float, name: str) -> np.ndarray:
     return arr
 
 
-def side_chain_atoms(resname: str, backbone: dict[str, np.ndarray],
-                     chi_deg: Sequence[float] | None = None) -> list[tuple[str, str, np.ndarray]]:
+def side_chain_atoms(
+    resname: str, backbone: dict[str, np.ndarray], chi_deg: Sequence[float] | None = None
+) -> list[tuple[str, str, np.ndarray]]:
     """Side-chain heavy atoms of one residue from its N, CA and C positions.
 
     Parameters
@@ -147,9 +167,17 @@ def side_chain_atoms(resname: str, backbone: dict[str, np.ndarray],
     return out
 
 
-def build_chain(sequence: str | Sequence[str], phi_deg, psi_deg, omega_deg=None, *,
-                chi_deg: dict[int, Sequence[float]] | None = None, chain: str = "A",
-                first_resid: int = 1, oxt: bool = True) -> Atoms:
+def build_chain(
+    sequence: str | Sequence[str],
+    phi_deg,
+    psi_deg,
+    omega_deg=None,
+    *,
+    chi_deg: dict[int, Sequence[float]] | None = None,
+    chain: str = "A",
+    first_resid: int = 1,
+    oxt: bool = True,
+) -> Atoms:
     """Build a polypeptide chain (heavy atoms) from its dihedral angles.
 
     Parameters
@@ -211,20 +239,27 @@ def build_chain(sequence: str | Sequence[str], phi_deg, psi_deg, omega_deg=None,
         residue = [("N", "N", n_at), ("CA", "C", ca_at), ("C", "C", c_at), ("O", "O", o_at)]
         residue += side_chain_atoms(res, {"N": n_at, "CA": ca_at, "C": c_at}, chi_deg.get(i))
         if oxt and i == n - 1:
-            residue.append(("OXT", "O", place_atom(n_at, ca_at, c_at, 1.25, CA_C_OXT_DEG,
-                                                   psi[i])))
+            residue.append(("OXT", "O", place_atom(n_at, ca_at, c_at, 1.25, CA_C_OXT_DEG, psi[i])))
         for name, element, xyz in residue:
             names.append(name)
             elements.append(element)
             coords.append(xyz)
             resnames.append(res)
             resids.append(first_resid + i)
-    return make_atoms(np.array(coords), element=elements, name=names, resname=resnames,
-                      resid=resids, chain=[chain] * len(names), source="built chain")
+    return make_atoms(
+        np.array(coords),
+        element=elements,
+        name=names,
+        resname=resnames,
+        resid=resids,
+        chain=[chain] * len(names),
+        source="built chain",
+    )
 
 
 def backbone_dihedrals_deg(atoms: Atoms) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """phi, psi and omega (degrees) per residue of one chain; NaN where undefined."""
+
     def pick(name):
         return atoms.coords_A[atoms.name == name]
 

@@ -9,19 +9,19 @@ sphere, i.e. the maximum over the plane of the clearance
 ``min_i (|x - a_i| - r_i)``, restricted to the pore:
 
 * **Continuity.** The centre is the local maximum of the clearance reached by
-  hill-climbing in the plane from the axis point. If that maximum lies more
+  hill-climbing in the plane from the axis point (every fourth plane) or from the
+  straight line between those planes' centres (the planes in between). If that maximum lies more
   than ``1 Å + step`` from the previous plane's centre (a jump into a side
-  pocket or outside the protein), the climb is repeated from the previous
-  centre, so the centre follows the pore. Planes are visited outwards from the
-  plane at s = 0.
+  pocket), or escapes to the bulk while the previous plane is enclosed, the
+  climb is repeated from the previous centre, so the centre follows the pore.
+  Planes are visited outwards from the plane at s = 0.
 * **Open planes.** Where the sphere grows beyond ``max_radius_A`` the plane is
   open to the bulk: its radius and centre are NaN.
 
-The climb is a compass search on all planes at once (16 fixed directions plus
-the ridge directions of the two nearest atoms, step halved until 1e-5 Å), on
-the nearest atoms of each plane, and every centre is re-checked against all
-atoms with the exact KD-tree kernel, so the radius at the returned centre is
-exact and the centre is within ~1e-5 Å of the local maximum.
+The climb runs on all planes at once: a trust-region sequence of small linear
+programs on the clearance of the nearest atoms (:mod:`poreprobe.planemax`),
+each step checked against all atoms with the exact KD-tree kernel, so the
+radius reported at the returned centre is exact.
 """
 
 from __future__ import annotations
@@ -29,19 +29,15 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 from poreprobe import __version__
 from poreprobe._validate import check_positive
 from poreprobe.axis import PoreAxis
 from poreprobe.errors import InputError, PoreNotFoundError
 from poreprobe.kernel import AtomSpheres
+from poreprobe.planemax import maximise_in_planes
 from poreprobe.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.structure import Atoms
-
-_N_NEIGHBOURS = 48
-_TOL_A = 1e-5
-_DIRECTIONS = np.stack([np.cos(np.arange(16) * np.pi / 8), np.sin(np.arange(16) * np.pi / 8)], 1)
 
 
 @dataclass(frozen=True)
@@ -96,6 +92,7 @@ class RadiusProfile:
 
     def to_dict(self) -> dict:
         """JSON-ready dictionary (NaN becomes None)."""
+
         def clean(arr):
             arr = np.asarray(arr, dtype=float)
             return np.where(np.isfinite(arr), arr, np.nan).tolist()
@@ -112,8 +109,11 @@ class RadiusProfile:
             "min_center_A": clean(self.min_center_A),
             "min_residues": list(self.min_residues),
             "contact_tol_A": self.contact_tol_A,
-            "profile": {"s_A": clean(self.s_A), "radius_A": clean(self.radius_A),
-                        "center_A": clean(self.center_A)},
+            "profile": {
+                "s_A": clean(self.s_A),
+                "radius_A": clean(self.radius_A),
+                "center_A": clean(self.center_A),
+            },
         }
 
 
@@ -129,88 +129,50 @@ def plane_positions_A(s_atoms_A: np.ndarray, step_A: float, margin_A: float) -> 
 
 
 class _PlaneClimber:
-    """Batched compass-search climber on the clearance within planes."""
+    """Climbs planes to their local clearance maxima (see :mod:`poreprobe.planemax`)."""
 
-    def __init__(self, frame_A: np.ndarray, radii_A: np.ndarray, max_radius_A: float):
-        self.frame = frame_A                  # atoms as (u, v, s)
-        self.radii = radii_A
-        self.tree = cKDTree(frame_A)
+    def __init__(self, spheres: AtomSpheres, max_radius_A: float):
+        self.spheres = spheres  # atoms in the axis frame (u, v, s)
         self.cap = max_radius_A
-        self.k = min(_N_NEIGHBOURS, len(frame_A))
 
-    def neighbours(self, uvs: np.ndarray) -> np.ndarray:
-        _, idx = self.tree.query(uvs, k=self.k)
-        return idx.reshape(len(uvs), self.k)
+    def solve(self, s: np.ndarray, start: np.ndarray, delta_A: float = 1.0):
+        """Climb from ``start`` (P, 2) in the planes ``s`` (P,); returns centres and radii."""
+        return maximise_in_planes(self.spheres, s, start, self.cap, delta_A=delta_A)
 
-    @staticmethod
-    def _values(pts, q, dz2, r):
-        # pts (P, M, 2); q (P, K, 2); dz2, r (P, K) -> clearance (P, M, K)
-        diff = pts[:, :, None, :] - q[:, None, :, :]
-        return np.sqrt((diff**2).sum(-1) + dz2[:, None, :]) - r[:, None, :]
+    def solve_all(self, s: np.ndarray, every: int = 4):
+        """Climb every plane: every ``every``-th from the axis point, the others warm-started.
 
-    def climb(self, s: np.ndarray, start: np.ndarray, nbr: np.ndarray):
-        """Climb from ``start`` (P, 2) in planes ``s`` (P,) using atoms ``nbr`` (P, K)."""
-        q = self.frame[nbr, :2]
-        dz2 = (self.frame[nbr, 2] - s[:, None]) ** 2
-        r = self.radii[nbr]
-        c = start.copy()
-        val = self._values(c[:, None, :], q, dz2, r)[:, 0, :].min(1)
-        h = np.full(len(s), 0.5)
-        active = np.ones(len(s), dtype=bool)
-        for _ in range(2000):
-            idx = np.flatnonzero(active)
-            if idx.size == 0:
-                break
-            ci, qi = c[idx], q[idx]
-            per_atom = self._values(ci[:, None, :], qi, dz2[idx], r[idx])[:, 0, :]
-            two = np.argpartition(per_atom, 1, axis=1)[:, :2] if self.k > 1 else np.zeros(
-                (len(idx), 2), dtype=int)
-            rows = np.arange(len(idx))[:, None]
-            grads = ci[:, None, :] - qi[rows, two]
-            grads /= np.maximum(np.linalg.norm(grads, axis=-1, keepdims=True), 1e-12)
-            ridge = grads[:, 0] - grads[:, 1]
-            ridge = np.stack([-ridge[:, 1], ridge[:, 0]], 1)
-            ridge /= np.maximum(np.linalg.norm(ridge, axis=1, keepdims=True), 1e-12)
-            up = grads[:, 0] + grads[:, 1]
-            up /= np.maximum(np.linalg.norm(up, axis=1, keepdims=True), 1e-12)
-            dirs = np.concatenate([np.broadcast_to(_DIRECTIONS, (len(idx), 16, 2)),
-                                   ridge[:, None], -ridge[:, None], up[:, None]], axis=1)
-            trial = ci[:, None, :] + h[idx, None, None] * dirs
-            tv = self._values(trial, qi, dz2[idx], r[idx]).min(2)
-            best = np.argmax(tv, axis=1)
-            best_val = tv[np.arange(len(idx)), best]
-            improved = best_val > val[idx] + 1e-12
-            moved = idx[improved]
-            c[moved] = trial[improved, best[improved]]
-            val[moved] = best_val[improved]
-            h[moved] = np.minimum(h[moved] * 2.0, 2.0)
-            h[idx[~improved]] *= 0.5
-            active = (h > _TOL_A) & (val <= self.cap)
-        return c, val
-
-    def solve(self, s: np.ndarray, start: np.ndarray, spheres: AtomSpheres):
-        """Climb, then verify against all atoms and re-climb where a neighbour was missed."""
-        uvs = np.column_stack([start, s])
-        nbr = self.neighbours(uvs)
-        c, val = self.climb(s, start, nbr)
-        todo = np.arange(len(s))
-        for _ in range(6):
-            exact = spheres.clearance_A(np.column_stack([c[todo], s[todo]]))
-            missed = (exact < val[todo] - 1e-9) & (val[todo] <= self.cap)
-            val[todo] = np.minimum(val[todo], exact)
-            if not missed.any():
-                break
-            todo = todo[missed]
-            nbr = self.neighbours(np.column_stack([c[todo], s[todo]]))
-            c[todo], val[todo] = self.climb(s[todo], c[todo], nbr)
-        return c, val
+        Planes between two enclosed anchor planes start from the straight line between
+        the anchors' centres (with a smaller first step); the rest from the axis point.
+        """
+        centres = np.zeros((len(s), 2))
+        values = np.empty(len(s))
+        anchors = np.unique(np.r_[np.arange(0, len(s), every), len(s) - 1])
+        centres[anchors], values[anchors] = self.solve(s[anchors], centres[anchors])
+        rest = np.setdiff1d(np.arange(len(s)), anchors)
+        if rest.size:
+            right = np.searchsorted(anchors, rest)
+            lo, hi = anchors[right - 1], anchors[right]
+            weight = ((rest - lo) / (hi - lo))[:, None]
+            start = (1 - weight) * centres[lo] + weight * centres[hi]
+            enclosed = (values[lo] <= self.cap) & (values[hi] <= self.cap)
+            start[~enclosed] = 0.0
+            centres[rest], values[rest] = self.solve(s[rest], start, delta_A=0.25)
+        return centres, values
 
 
-def radius_profile(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEFAULT_RADIUS_SET,
-                   radii_A: np.ndarray | None = None, step_A: float = 0.2,
-                   margin_A: float = 2.0, max_radius_A: float = 20.0,
-                   s_range_A: tuple[float, float] | None = None,
-                   contact_tol_A: float = 0.3) -> RadiusProfile:
+def radius_profile(
+    atoms: Atoms,
+    axis: PoreAxis,
+    *,
+    radii: str | RadiusSet = DEFAULT_RADIUS_SET,
+    radii_A: np.ndarray | None = None,
+    step_A: float = 0.2,
+    margin_A: float = 2.0,
+    max_radius_A: float = 20.0,
+    s_range_A: tuple[float, float] | None = None,
+    contact_tol_A: float = 0.3,
+) -> RadiusProfile:
     """Compute the pore radius profile along an axis.
 
     Parameters
@@ -287,10 +249,11 @@ def radius_profile(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEF
     if len(s_planes) > 200_000:
         raise InputError(f"{len(s_planes)} planes requested; increase step_A")
     spheres_frame = AtomSpheres(frame, radii_A)
-    climber = _PlaneClimber(frame, radii_A, max_radius_A)
-    centres, values = climber.solve(s_planes, np.zeros((len(s_planes), 2)), spheres_frame)
-    centres, values = _enforce_continuity(s_planes, centres, values, climber, spheres_frame,
-                                          max_radius_A, jump_A=1.0 + step_A)
+    climber = _PlaneClimber(spheres_frame, max_radius_A)
+    centres, values = climber.solve_all(s_planes)
+    centres, values = _enforce_continuity(
+        s_planes, centres, values, climber, max_radius_A, jump_A=1.0 + step_A
+    )
     open_plane = values > max_radius_A
     radius = np.where(open_plane, np.nan, values)
     uvs = np.column_stack([centres, s_planes])
@@ -299,32 +262,48 @@ def radius_profile(atoms: Atoms, axis: PoreAxis, *, radii: str | RadiusSet = DEF
     centre_xyz = axis.from_frame(uvs)
     centre_xyz[open_plane] = np.nan
     if np.all(open_plane):
-        raise PoreNotFoundError("every plane along the axis is open: no enclosed pore "
-                                f"(max_radius_A = {max_radius_A}); check the axis")
+        raise PoreNotFoundError(
+            "every plane along the axis is open: no enclosed pore "
+            f"(max_radius_A = {max_radius_A}); check the axis"
+        )
     k = int(np.nanargmin(radius))
     dist = np.linalg.norm(frame - uvs[k], axis=1) - radii_A
     touching = np.flatnonzero(dist <= radius[k] + contact_tol_A)
     labels = atoms.residue_labels()[touching]
     residues = tuple(dict.fromkeys(labels[np.argsort(dist[touching], kind="stable")].tolist()))
     return RadiusProfile(
-        s_A=s_planes, radius_A=radius, center_A=centre_xyz, axis=axis,
-        radius_set=radius_label, step_A=step_A, max_radius_A=max_radius_A,
-        min_radius_A=float(radius[k]), min_s_A=float(s_planes[k]),
-        min_center_A=centre_xyz[k].copy(), min_residues=residues,
-        contact_tol_A=contact_tol_A, nearest_atom=nearest.astype(np.int64),
+        s_A=s_planes,
+        radius_A=radius,
+        center_A=centre_xyz,
+        axis=axis,
+        radius_set=radius_label,
+        step_A=step_A,
+        max_radius_A=max_radius_A,
+        min_radius_A=float(radius[k]),
+        min_s_A=float(s_planes[k]),
+        min_center_A=centre_xyz[k].copy(),
+        min_residues=residues,
+        contact_tol_A=contact_tol_A,
+        nearest_atom=nearest.astype(np.int64),
         source=atoms.source,
     )
 
 
-def _enforce_continuity(s, centres, values, climber, spheres, cap, jump_A):
-    """Walk outwards from s = 0 and re-climb planes whose centre jumped."""
+def _enforce_continuity(s, centres, values, climber, cap, jump_A):
+    """Walk outwards from s = 0; re-climb planes whose centre jumped or escaped.
+
+    A plane is climbed again from the previous plane's centre when its own centre lies
+    more than ``jump_A`` from it, or when it came out open while the previous plane is
+    enclosed (the axis point lay outside a bent pore).
+    """
     start = int(np.argmin(np.abs(s)))
     for order in (range(start + 1, len(s)), range(start - 1, -1, -1)):
         prev = start
         for k in order:
-            if values[prev] <= cap and values[k] <= cap:
-                if np.linalg.norm(centres[k] - centres[prev]) > jump_A:
-                    c, v = climber.solve(s[k:k + 1], centres[prev][None], spheres)
+            if values[prev] <= cap:
+                escaped = values[k] > cap
+                if escaped or np.linalg.norm(centres[k] - centres[prev]) > jump_A:
+                    c, v = climber.solve(s[k : k + 1], centres[prev][None])
                     centres[k], values[k] = c[0], v[0]
             prev = k
     return centres, values

@@ -40,12 +40,43 @@ from poreprobe.errors import InputError, QualityWarning
 
 #: Bondi 1964, Table I (Å).
 _BONDI = {
-    "H": 1.20, "HE": 1.40, "C": 1.70, "N": 1.55, "O": 1.52, "F": 1.47, "NE": 1.54,
-    "SI": 2.10, "P": 1.80, "S": 1.80, "CL": 1.75, "AR": 1.88, "AS": 1.85, "SE": 1.90,
-    "BR": 1.85, "KR": 2.02, "TE": 2.06, "I": 1.98, "XE": 2.16, "LI": 1.82, "NA": 2.27,
-    "K": 2.75, "MG": 1.73, "NI": 1.63, "CU": 1.40, "ZN": 1.39, "GA": 1.87, "PD": 1.63,
-    "AG": 1.72, "CD": 1.58, "IN": 1.93, "SN": 2.17, "AU": 1.66, "HG": 1.55, "TL": 1.96,
-    "PB": 2.02, "U": 1.86,
+    "H": 1.20,
+    "HE": 1.40,
+    "C": 1.70,
+    "N": 1.55,
+    "O": 1.52,
+    "F": 1.47,
+    "NE": 1.54,
+    "SI": 2.10,
+    "P": 1.80,
+    "S": 1.80,
+    "CL": 1.75,
+    "AR": 1.88,
+    "AS": 1.85,
+    "SE": 1.90,
+    "BR": 1.85,
+    "KR": 2.02,
+    "TE": 2.06,
+    "I": 1.98,
+    "XE": 2.16,
+    "LI": 1.82,
+    "NA": 2.27,
+    "K": 2.75,
+    "MG": 1.73,
+    "NI": 1.63,
+    "CU": 1.40,
+    "ZN": 1.39,
+    "GA": 1.87,
+    "PD": 1.63,
+    "AG": 1.72,
+    "CD": 1.58,
+    "IN": 1.93,
+    "SN": 2.17,
+    "AU": 1.66,
+    "HG": 1.55,
+    "TL": 1.96,
+    "PB": 2.02,
+    "U": 1.86,
 }
 _BONDI["D"] = _BONDI["H"]
 
@@ -106,10 +137,13 @@ def load_radius_overrides(path) -> tuple[dict[str, float], dict[str, float]]:
         raise InputError(f"radius file {path} is not valid TOML: {exc}") from exc
     unknown = set(data) - {"elements", "atoms"}
     if unknown:
-        raise InputError(f"radius file {path}: unknown table(s) {sorted(unknown)}; "
-                         "use [elements] and [atoms]")
-    by_element = {k.strip().upper(): _checked_radius(v, f"element {k}")
-                  for k, v in data.get("elements", {}).items()}
+        raise InputError(
+            f"radius file {path}: unknown table(s) {sorted(unknown)}; use [elements] and [atoms]"
+        )
+    by_element = {
+        k.strip().upper(): _checked_radius(v, f"element {k}")
+        for k, v in data.get("elements", {}).items()
+    }
     by_atom = {}
     for key, val in data.get("atoms", {}).items():
         if key.count(":") != 1:
@@ -119,8 +153,7 @@ def load_radius_overrides(path) -> tuple[dict[str, float], dict[str, float]]:
     return by_element, by_atom
 
 
-def get_radius_set(radii: str | RadiusSet = DEFAULT_RADIUS_SET,
-                   overrides=None) -> RadiusSet:
+def get_radius_set(radii: str | RadiusSet = DEFAULT_RADIUS_SET, overrides=None) -> RadiusSet:
     """Resolve a radius-set name (and an optional TOML override file).
 
     Parameters
@@ -144,9 +177,12 @@ def get_radius_set(radii: str | RadiusSet = DEFAULT_RADIUS_SET,
     if overrides is None:
         return base
     by_element, by_atom = load_radius_overrides(overrides)
-    return RadiusSet(f"{base.name}+{os.path.basename(os.fspath(overrides))}",
-                     {**base.by_element, **by_element}, {**base.by_atom, **by_atom},
-                     base.source + "; user overrides")
+    return RadiusSet(
+        f"{base.name}+{os.path.basename(os.fspath(overrides))}",
+        {**base.by_element, **by_element},
+        {**base.by_atom, **by_atom},
+        base.source + "; user overrides",
+    )
 
 
 def _fallback_radius(element: str) -> tuple[float, str]:
@@ -163,8 +199,9 @@ def _fallback_radius(element: str) -> tuple[float, str]:
     return FALLBACK_RADIUS_A, "default"
 
 
-def atom_radii_A(atoms, radii: str | RadiusSet = DEFAULT_RADIUS_SET, *,
-                 overrides=None) -> np.ndarray:
+def atom_radii_A(
+    atoms, radii: str | RadiusSet = DEFAULT_RADIUS_SET, *, overrides=None
+) -> np.ndarray:
     """Per-atom van der Waals radii in Å.
 
     Parameters
@@ -197,9 +234,12 @@ def atom_radii_A(atoms, radii: str | RadiusSet = DEFAULT_RADIUS_SET, *,
         else:
             values[j], origin = _fallback_radius(elem)
             count = int((inverse == j).sum())
-            warnings.warn(f"radius set {rset.name!r} has no radius for element {elem!r} "
-                          f"({count} atoms); using {values[j]:.2f} Å from {origin}",
-                          QualityWarning, stacklevel=2)
+            warnings.warn(
+                f"radius set {rset.name!r} has no radius for element {elem!r} "
+                f"({count} atoms); using {values[j]:.2f} Å from {origin}",
+                QualityWarning,
+                stacklevel=2,
+            )
     out[:] = values[inverse]
     if rset.by_atom:
         res = np.char.upper(np.asarray(atoms.resname).astype(str))

@@ -24,15 +24,52 @@ from poreprobe.errors import InputError
 log = logging.getLogger("poreprobe")
 
 GEMMI_SUFFIXES = (".pdb", ".ent", ".cif", ".mmcif", ".pdb.gz", ".ent.gz", ".cif.gz", ".mmcif.gz")
-WATER_NAMES = frozenset({"HOH", "WAT", "H2O", "DOD", "SOL", "TIP", "TIP3", "TIP4", "TIP5",
-                         "SPC", "T3P", "T4P", "OH2"})
-ION_ELEMENTS = frozenset({"LI", "NA", "K", "RB", "CS", "MG", "CA", "SR", "BA", "ZN", "MN", "FE",
-                          "CO", "NI", "CU", "CD", "HG", "CL", "BR", "I", "F", "TL", "AG"})
+WATER_NAMES = frozenset(
+    {"HOH", "WAT", "H2O", "DOD", "SOL", "TIP", "TIP3", "TIP4", "TIP5", "SPC", "T3P", "T4P", "OH2"}
+)
+ION_ELEMENTS = frozenset(
+    {
+        "LI",
+        "NA",
+        "K",
+        "RB",
+        "CS",
+        "MG",
+        "CA",
+        "SR",
+        "BA",
+        "ZN",
+        "MN",
+        "FE",
+        "CO",
+        "NI",
+        "CU",
+        "CD",
+        "HG",
+        "CL",
+        "BR",
+        "I",
+        "F",
+        "TL",
+        "AG",
+    }
+)
 ALTLOC_POLICIES = ("occupancy", "first")
 KINDS = ("polymer", "water", "ion", "hetero")
 
-_ARRAY_FIELDS = ("coords_A", "element", "name", "resname", "resid", "icode", "chain",
-                 "altloc", "occupancy", "b_factor", "kind")
+_ARRAY_FIELDS = (
+    "coords_A",
+    "element",
+    "name",
+    "resname",
+    "resid",
+    "icode",
+    "chain",
+    "altloc",
+    "occupancy",
+    "b_factor",
+    "kind",
+)
 
 
 @dataclass(frozen=True)
@@ -116,14 +153,31 @@ class Atoms:
 
     def to_dict(self) -> dict:
         """Summary (not the coordinates) for reports."""
-        return {"source": self.source, "n_atoms": len(self), "altloc_policy": self.altloc_policy,
-                "notes": list(self.notes)}
+        return {
+            "source": self.source,
+            "n_atoms": len(self),
+            "altloc_policy": self.altloc_policy,
+            "notes": list(self.notes),
+        }
 
 
-def make_atoms(coords_A, *, element=None, name=None, resname=None, resid=None, chain=None,
-               icode=None, altloc=None, occupancy=None, b_factor=None, kind=None,
-               source: str = "arrays", altloc_policy: str = "occupancy",
-               notes: tuple[str, ...] = ()) -> Atoms:
+def make_atoms(
+    coords_A,
+    *,
+    element=None,
+    name=None,
+    resname=None,
+    resid=None,
+    chain=None,
+    icode=None,
+    altloc=None,
+    occupancy=None,
+    b_factor=None,
+    kind=None,
+    source: str = "arrays",
+    altloc_policy: str = "occupancy",
+    notes: tuple[str, ...] = (),
+) -> Atoms:
     """Build :class:`Atoms` from arrays; missing columns get neutral defaults.
 
     Parameters
@@ -152,12 +206,20 @@ def make_atoms(coords_A, *, element=None, name=None, resname=None, resid=None, c
 
     elem = np.char.upper(np.char.strip(col(element, "C", object).astype(str)))
     return Atoms(
-        coords_A=coords.copy(), element=elem, name=col(name, "X", object).astype(str),
-        resname=col(resname, "UNK", object).astype(str), resid=col(resid, 1, np.int64),
-        icode=col(icode, "", object).astype(str), chain=col(chain, "A", object).astype(str),
-        altloc=col(altloc, "", object).astype(str), occupancy=col(occupancy, 1.0, np.float64),
-        b_factor=col(b_factor, 0.0, np.float64), kind=col(kind, "polymer", object).astype(str),
-        source=source, altloc_policy=altloc_policy, notes=tuple(notes),
+        coords_A=coords.copy(),
+        element=elem,
+        name=col(name, "X", object).astype(str),
+        resname=col(resname, "UNK", object).astype(str),
+        resid=col(resid, 1, np.int64),
+        icode=col(icode, "", object).astype(str),
+        chain=col(chain, "A", object).astype(str),
+        altloc=col(altloc, "", object).astype(str),
+        occupancy=col(occupancy, 1.0, np.float64),
+        b_factor=col(b_factor, 0.0, np.float64),
+        kind=col(kind, "polymer", object).astype(str),
+        source=source,
+        altloc_policy=altloc_policy,
+        notes=tuple(notes),
     )
 
 
@@ -222,8 +284,9 @@ def _mark_ions(atoms: Atoms) -> Atoms:
     nonpoly = atoms.kind != "polymer"
     if not nonpoly.any():
         return atoms
-    key = np.char.add(np.char.add(atoms.chain, "|"),
-                      np.char.add(atoms.resid.astype(str), atoms.resname))
+    key = np.char.add(
+        np.char.add(atoms.chain, "|"), np.char.add(atoms.resid.astype(str), atoms.resname)
+    )
     _, inverse, counts = np.unique(key, return_inverse=True, return_counts=True)
     single = counts[inverse] == 1
     ion = nonpoly & single & np.isin(atoms.element, list(ION_ELEMENTS))
@@ -273,8 +336,9 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     element = np.char.upper(attr("elements", "").astype(str))
     missing = element == ""
     if missing.any():
-        element[missing] = [_guess_element(a, r) for a, r in zip(names[missing], resnames[missing],
-                                                                 strict=True)]
+        element[missing] = [
+            _guess_element(a, r) for a, r in zip(names[missing], resnames[missing], strict=True)
+        ]
     chain = attr("chainIDs", "").astype(str)
     if (chain == "").all():
         chain = attr("segids", "A").astype(str)
@@ -287,14 +351,17 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     kind = _adopt_caps(kind, chain, resids)
     atoms = Atoms(
         coords_A=np.array(ag.positions, dtype=np.float64),
-        element=element, name=names, resname=resnames,
+        element=element,
+        name=names,
+        resname=resnames,
         resid=resids,
         icode=np.char.strip(attr("icodes", "").astype(str)),
         chain=chain,
         altloc=np.char.strip(attr("altLocs", "").astype(str)),
         occupancy=attr("occupancies", 1.0).astype(np.float64),
         b_factor=attr("tempfactors", 0.0).astype(np.float64),
-        kind=kind.astype(str), source=source,
+        kind=kind.astype(str),
+        source=source,
     )
     return _mark_ions(atoms)
 
@@ -350,14 +417,20 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
         With ``altloc_policy`` recorded.
     """
     if not isinstance(policy, str) or not (policy in ALTLOC_POLICIES or len(policy) == 1):
-        raise InputError(f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}")
+        raise InputError(
+            f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}"
+        )
     has_alt = atoms.altloc != ""
     if not has_alt.any():
         return replace(atoms, altloc_policy=policy)
     idx = np.flatnonzero(has_alt)
-    key = np.char.add(np.char.add(atoms.chain[idx], "|"), np.char.add(
-        np.char.add(atoms.resid[idx].astype(str), atoms.icode[idx]),
-        np.char.add("|", atoms.name[idx])))
+    key = np.char.add(
+        np.char.add(atoms.chain[idx], "|"),
+        np.char.add(
+            np.char.add(atoms.resid[idx].astype(str), atoms.icode[idx]),
+            np.char.add("|", atoms.name[idx]),
+        ),
+    )
     if policy == "occupancy":
         primary = -atoms.occupancy[idx]
     elif policy == "first":
@@ -399,31 +472,41 @@ def select(atoms: Atoms, selection: str) -> Atoms:
 
 def select_indices(atoms: Atoms, selection: str) -> np.ndarray:
     """Indices of the atoms matched by an MDAnalysis selection string."""
+    return np.asarray(select_in_universe(_as_universe(atoms), selection).indices)
+
+
+def select_in_universe(universe, selection: str):
+    """``universe.select_atoms(selection)``, with one clear error for bad or empty selections."""
     if not isinstance(selection, str) or not selection.strip():
         raise InputError(f"selection must be a non-empty string, got {selection!r}")
-    universe = _as_universe(atoms)
     try:
         group = universe.select_atoms(selection)
     except Exception as exc:  # MDAnalysis raises SelectionError, ValueError, ...
         raise InputError(f"bad selection {selection!r}: {exc}") from exc
     if len(group) == 0:
         raise InputError(f"selection {selection!r} matches no atoms")
-    return np.asarray(group.indices)
+    return group
 
 
 def _as_universe(atoms: Atoms):
     import MDAnalysis as mda
 
-    res_key = np.char.add(np.char.add(atoms.chain, "|"),
-                          np.char.add(atoms.resid.astype(str), atoms.icode))
+    res_key = np.char.add(
+        np.char.add(atoms.chain, "|"), np.char.add(atoms.resid.astype(str), atoms.icode)
+    )
     change = np.r_[True, res_key[1:] != res_key[:-1]]
     atom_resindex = np.cumsum(change) - 1
     n_res = int(atom_resindex[-1]) + 1
     res_first = np.flatnonzero(change)
     seg_names, res_segindex = np.unique(atoms.chain[res_first], return_inverse=True)
-    u = mda.Universe.empty(len(atoms), n_residues=n_res, n_segments=len(seg_names),
-                           atom_resindex=atom_resindex, residue_segindex=res_segindex,
-                           trajectory=True)
+    u = mda.Universe.empty(
+        len(atoms),
+        n_residues=n_res,
+        n_segments=len(seg_names),
+        atom_resindex=atom_resindex,
+        residue_segindex=res_segindex,
+        trajectory=True,
+    )
     u.add_TopologyAttr("names", atoms.name)
     u.add_TopologyAttr("types", atoms.element)
     u.add_TopologyAttr("elements", [e.capitalize() for e in atoms.element])
@@ -439,8 +522,14 @@ def _as_universe(atoms: Atoms):
     return u
 
 
-def clean(atoms: Atoms, *, hydrogens: bool = True, waters: bool = False, ions: bool = False,
-          hetero: bool = False) -> Atoms:
+def clean(
+    atoms: Atoms,
+    *,
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
+) -> Atoms:
     """Drop atom kinds the pore calculation should not see, recording counts in ``notes``.
 
     Parameters
@@ -471,10 +560,19 @@ def clean(atoms: Atoms, *, hydrogens: bool = True, waters: bool = False, ions: b
     return out
 
 
-def read_structure(path, *, trajectory: str | None = None, model: int = 0, frame: int = 0,
-                   altloc: str = "occupancy", hydrogens: bool = True, waters: bool = False,
-                   ions: bool = False, hetero: bool = False,
-                   selection: str | None = None) -> Atoms:
+def read_structure(
+    path,
+    *,
+    trajectory: str | None = None,
+    model: int = 0,
+    frame: int = 0,
+    altloc: str = "occupancy",
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
+    selection: str | None = None,
+) -> Atoms:
     """Read a channel model into :class:`Atoms`.
 
     Parameters

@@ -1,37 +1,56 @@
-"""Write the invented demo models into this folder, byte for byte reproducibly.
+"""Build the invented demo channels and write them into this folder (deterministic).
 
-Run from the repository root::
+Run from anywhere: ``python structures_demo/build.py``. ``--check`` rebuilds into a
+temporary folder and compares with the committed files byte for byte instead of
+writing. The channel, HalK, is invented (see ``poreprobe/demo_channels.py``); no part
+comes from a real structure or measurement.
 
-    python structures_demo/build.py
-
-It writes, for the invented HalK channel of :mod:`poreprobe.demo`,
-
-* ``demo_channel.pdb`` / ``.cif``: the open state;
-* ``demo_channel_widened.pdb`` / ``.cif``: the F73A widened-entrance mutant;
-* ``demo_channel_closed.pdb`` / ``.cif``: the closed state;
-* ``demo_channel_breathing.xtc``: 50 frames of invented breathing motion of the
-  open state (topology: ``demo_channel.pdb``).
-
-The numbers are formatted with fixed precision and no dates, so running this
-script again reproduces the committed files exactly (the test suite checks it).
-The models are invented and carry no experimental information.
+Files: ``demo_channel`` (open state), ``demo_widened`` (the F73A entrance mutant) and
+``demo_closed`` (closed state) as mmCIF and PDB, and ``demo_breathing.xtc``, 50 frames
+of invented breathing motion of the open state (topology: ``demo_channel.pdb``). They
+ship inside the package as ``poreprobe.demo_structures``.
 """
 
 from __future__ import annotations
 
+import argparse
+import filecmp
 import os
 import sys
+import tempfile
+
+HERE = os.path.dirname(os.path.abspath(__file__))
 
 
-def main(folder: str | None = None) -> dict[str, str]:
-    """Build the demo files into ``folder`` (default: the folder of this script)."""
-    here = os.path.dirname(os.path.abspath(__file__))
-    sys.path.insert(0, os.path.dirname(here))
-    from poreprobe.demo import write_demo_files
+def build(folder: str) -> list[str]:
+    """Write every demo file into ``folder``; return the file names."""
+    sys.path.insert(0, os.path.dirname(HERE))
+    from poreprobe.demo_channels import write_demo_files
 
-    return write_demo_files(folder or here)
+    return sorted(os.path.basename(p) for p in write_demo_files(folder).values())
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument(
+        "--check", action="store_true", help="compare with the committed files instead of writing"
+    )
+    parser.add_argument(
+        "--out", default=HERE, metavar="FOLDER", help="where to write (default: this folder)"
+    )
+    args = parser.parse_args(argv)
+    if not args.check:
+        print("wrote " + ", ".join(build(args.out)))
+        return 0
+    with tempfile.TemporaryDirectory() as tmp:
+        names = build(tmp)
+        same, differ, missing = filecmp.cmpfiles(HERE, tmp, names, shallow=False)
+    if differ or missing:
+        print("differ from a fresh build: " + ", ".join(differ + missing))
+        return 1
+    print("checked " + ", ".join(same))
+    return 0
 
 
 if __name__ == "__main__":
-    for key, path in main(sys.argv[1] if len(sys.argv) > 1 else None).items():
-        print(f"{key:12s} {os.path.relpath(path)}")
+    raise SystemExit(main())

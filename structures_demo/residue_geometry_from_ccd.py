@@ -17,8 +17,28 @@ from __future__ import annotations
 
 import numpy as np
 
-STANDARD = ("ALA", "ARG", "ASN", "ASP", "CYS", "GLN", "GLU", "GLY", "HIS", "ILE", "LEU", "LYS",
-            "MET", "PHE", "PRO", "SER", "THR", "TRP", "TYR", "VAL")
+STANDARD = (
+    "ALA",
+    "ARG",
+    "ASN",
+    "ASP",
+    "CYS",
+    "GLN",
+    "GLU",
+    "GLY",
+    "HIS",
+    "ILE",
+    "LEU",
+    "LYS",
+    "MET",
+    "PHE",
+    "PRO",
+    "SER",
+    "THR",
+    "TRP",
+    "TYR",
+    "VAL",
+)
 
 #: Atoms that define chi1..chi4 (IUPAC-IUB 1970 convention, common practice): the
 #: dihedral of the bond before each of these atoms is the chi angle.
@@ -31,9 +51,25 @@ CHI_ATOMS = {
 #: Residues whose side-chain dihedrals stay as in the CCD (ring closure, or none).
 FIXED = {"PRO", "ALA", "GLY"}
 #: Residues where the chi-atom names above must not count (an atom beyond the chain).
-CHI_LIMITS = {"HIS": 2, "PHE": 2, "TYR": 2, "TRP": 2, "ASN": 2, "ASP": 2, "ILE": 2, "LEU": 2,
-              "VAL": 1, "THR": 1, "SER": 1, "CYS": 1, "MET": 3, "GLN": 3, "GLU": 3, "LYS": 4,
-              "ARG": 4}
+CHI_LIMITS = {
+    "HIS": 2,
+    "PHE": 2,
+    "TYR": 2,
+    "TRP": 2,
+    "ASN": 2,
+    "ASP": 2,
+    "ILE": 2,
+    "LEU": 2,
+    "VAL": 1,
+    "THR": 1,
+    "SER": 1,
+    "CYS": 1,
+    "MET": 3,
+    "GLN": 3,
+    "GLU": 3,
+    "LYS": 4,
+    "ARG": 4,
+}
 
 
 def dihedral_deg(a, b, c, d) -> float:
@@ -121,9 +157,19 @@ def main() -> None:
     print("SIDE_CHAINS: dict[str, tuple[tuple, ...]] = {")
     for name in STANDARD:
         rows = side_chain_rows(name)
-        print(f'    "{name}": (')
+        if not rows:
+            print(f'    "{name}": (),')
+            continue
+        lines = []
         for atom, elem, key, bond, ang, dih, chi, _ in rows:
-            row = f'("{atom}", "{elem}", {key!r}, {bond:.3f}, {ang:.2f}, {dih:.2f}, {chi})'
+            refs = "(" + ", ".join(f'"{k}"' for k in key) + ")"
+            lines.append(f'("{atom}", "{elem}", {refs}, {bond:.3f}, {ang:.2f}, {dih:.2f}, {chi})')
+        one_line = f'    "{name}": ({lines[0]},),'
+        if len(lines) == 1 and len(one_line) <= 100:  # as ruff format writes it
+            print(one_line)
+            continue
+        print(f'    "{name}": (')
+        for row in lines:
             print(f"        {row},")
         print("    ),")
     print("}")

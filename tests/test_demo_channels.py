@@ -2,23 +2,16 @@
 
 from __future__ import annotations
 
-import filecmp
-import os
-import subprocess
-import sys
-
 import numpy as np
 import pytest
 from scipy.spatial import cKDTree
 
 import poreprobe
-from poreprobe import demo
+from poreprobe import demo_channels as demo
 from poreprobe.errors import InputError
 from poreprobe.ions import get_ion
 from poreprobe.radii import atom_radii_A
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-DEMO_DIR = os.path.join(ROOT, "structures_demo")
 #: Dehydrated K+ radius, Shannon 1976 (Acta Cryst. A32:751), CN 6: 1.38 Å.
 K_CRYSTAL_RADIUS_A = get_ion("K").crystal_radius_A
 
@@ -64,8 +57,9 @@ def test_models_are_tetramers_of_standard_residues(models):
         assert "invented" in atoms.source
         per_chain = atoms.resname[(atoms.chain == "A") & (atoms.name == "CA")]
         assert len(per_chain) == len(demo.SEQUENCE) == 79
-    ca = models["widened"].resname[(models["widened"].name == "CA")
-                                   & (models["widened"].resid == demo.ENTRANCE_RESIDUE)]
+    ca = models["widened"].resname[
+        (models["widened"].name == "CA") & (models["widened"].resid == demo.ENTRANCE_RESIDUE)
+    ]
     assert set(ca.tolist()) == {"ALA"}
 
 
@@ -144,8 +138,9 @@ def test_open_channel_has_entrance_cavity_filter_and_vestibule(models, profiles)
 
 
 def test_widened_entrance_and_closed_gate(models, profiles):
-    open_entrance = _window_min(profiles["open"], *_entrance_window(models["open"],
-                                                                    profiles["open"].axis))[0]
+    open_entrance = _window_min(
+        profiles["open"], *_entrance_window(models["open"], profiles["open"].axis)
+    )[0]
     wide = profiles["widened"]
     wide_entrance = _window_min(wide, *_entrance_window(models["widened"], wide.axis))[0]
     assert wide_entrance > open_entrance + 1.5
@@ -158,7 +153,8 @@ def test_widened_entrance_and_closed_gate(models, profiles):
     # The filter is untouched by the gate.
     lo, hi = _filter_window(atoms, closed.axis)
     assert _window_min(closed, lo, hi)[0] == pytest.approx(
-        _window_min(profiles["open"], lo, hi)[0], abs=0.02)
+        _window_min(profiles["open"], lo, hi)[0], abs=0.02
+    )
 
 
 def test_trajectory_is_deterministic_and_breathes():
@@ -204,15 +200,3 @@ def test_unknown_variant_is_rejected():
         demo.demo_channel("half-open")
     with pytest.raises(InputError, match="n_frames"):
         demo.demo_trajectory(0)
-
-
-@pytest.mark.skipif(not os.path.isdir(DEMO_DIR), reason="needs the source tree")
-def test_build_script_reproduces_the_committed_files_byte_for_byte(tmp_path):
-    subprocess.run([sys.executable, os.path.join(DEMO_DIR, "build.py"), str(tmp_path)],
-                   check=True, capture_output=True)
-    written = sorted(p.name for p in tmp_path.iterdir())
-    committed = sorted(f for f in os.listdir(DEMO_DIR) if f.startswith("demo_channel"))
-    assert written == committed
-    match, mismatch, errors = filecmp.cmpfiles(DEMO_DIR, tmp_path, written, shallow=False)
-    assert mismatch == [] and errors == []
-    assert match == written

@@ -42,8 +42,12 @@ def _screw(ca):
 
 
 @settings(max_examples=50, deadline=None)
-@given(st.lists(st.floats(-10, 10), min_size=9, max_size=9),
-       st.floats(0.8, 2.0), st.floats(60, 170), st.floats(-180, 180))
+@given(
+    st.lists(st.floats(-10, 10), min_size=9, max_size=9),
+    st.floats(0.8, 2.0),
+    st.floats(60, 170),
+    st.floats(-180, 180),
+)
 def test_place_atom_honours_bond_angle_and_dihedral(xyz, bond, angle, dihedral):
     a, b, c = np.reshape(xyz, (3, 3))
     if np.linalg.norm(np.cross(b - a, c - b)) < 1e-2 or np.linalg.norm(c - b) < 0.1:
@@ -107,12 +111,16 @@ def test_side_chains_match_the_chemical_component_dictionary(resname):
 
 def test_chi_angles_are_set_as_asked():
     chain = build_chain("GFG", -60, 140, chi_deg={1: (-170.0, 75.0)})
-    pos = {n: chain.coords_A[(chain.resid == 2) & (chain.name == n)][0]
-           for n in ("N", "CA", "CB", "CG", "CD1")}
-    assert dihedral_deg(pos["N"], pos["CA"], pos["CB"], pos["CG"]) == pytest.approx(-170.0,
-                                                                                    abs=1e-6)
-    assert dihedral_deg(pos["CA"], pos["CB"], pos["CG"], pos["CD1"]) == pytest.approx(75.0,
-                                                                                      abs=1e-6)
+    pos = {
+        n: chain.coords_A[(chain.resid == 2) & (chain.name == n)][0]
+        for n in ("N", "CA", "CB", "CG", "CD1")
+    }
+    assert dihedral_deg(pos["N"], pos["CA"], pos["CB"], pos["CG"]) == pytest.approx(
+        -170.0, abs=1e-6
+    )
+    assert dihedral_deg(pos["CA"], pos["CB"], pos["CG"], pos["CD1"]) == pytest.approx(
+        75.0, abs=1e-6
+    )
 
 
 def test_terminal_oxygen_and_atom_order():

@@ -1,0 +1,115 @@
+"""Tests of ``poreprobe traj`` through cli.main."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from _trajectory_data import write_trajectory
+
+from poreprobe.cli import main
+
+pytestmark = pytest.mark.filterwarnings("ignore:Reader has no dt information")
+
+
+@pytest.fixture(scope="module")
+def breathing(tmp_path_factory):
+    return write_trajectory(tmp_path_factory.mktemp("breathing"))
+
+
+def test_traj_writes_json_and_csv(breathing, tmp_path, capsys):
+    out_json, out_csv, out_frames = (tmp_path / n for n in ("t.json", "p.csv", "f.csv"))
+    code = main(
+        [
+            "traj",
+            *breathing,
+            "--step-A",
+            "0.5",
+            "--json",
+            str(out_json),
+            "--csv",
+            str(out_csv),
+            "--frames-csv",
+            str(out_frames),
+        ]
+    )
+    assert code == 0
+    data = json.loads(out_json.read_text())
+    assert data["n_frames"] == 12 and data["radius_set"] == "bondi"
+    assert data["closed_frames"] == [2, 10]
+    # frame 2: waist ring at 4 - 1.2 Å, minus r_C 1.70 Å (Bondi 1964, Table I)
+    assert data["per_frame"]["min_radius_A"][2] == pytest.approx(4 - 1.2 - 1.70, abs=1e-4)
+    assert len(data["per_frame"]["radius_A"]) == 12
+    planes = [ln for ln in out_csv.read_text().splitlines() if not ln.startswith("#")]
+    assert len(planes) == 1 + len(data["s_A"])
+    frames = [ln.split(",") for ln in out_frames.read_text().splitlines() if not ln.startswith("#")]
+    assert [row[-1] for row in frames[1:]].count("1") == 2
+    stdout = capsys.readouterr().out
+    assert "closed below 1.38 Å: 2 of 12 frames (2, 10)" in stdout
+    assert "model-based estimates" in stdout
+
+
+def test_traj_multiprocessing_same_json(breathing, tmp_path):
+    a, b = tmp_path / "a.json", tmp_path / "b.json"
+    common = [
+        "traj",
+        *breathing,
+        "--step-A",
+        "0.5",
+        "--step",
+        "2",
+        "--axis-mode",
+        "per-frame",
+        "--quiet",
+    ]
+    assert main([*common, "--json", str(a)]) == 0
+    assert (
+        main(
+            [
+                *common,
+                "--json",
+                str(b),
+                "--backend",
+                "multiprocessing",
+                "--workers",
+                "2",
+                "--parts",
+                "3",
+            ]
+        )
+        == 0
+    )
+    assert a.read_text() == b.read_text()
+    data = json.loads(a.read_text())
+    assert data["per_frame"]["frame"] == [0, 2, 4, 6, 8, 10]
+    assert np.isnan(np.array(data["per_frame"]["fit_rmsd_A"], dtype=float)).all()
+
+
+@pytest.mark.parametrize(
+    ("extra", "message"),
+    [
+        (["--step-A", "0"], "step_A must be > 0"),
+        (["--select", "resname HOH"], "matches no atoms"),
+        (
+            ["--backend", "multiprocessing", "--scheduler", "tcp://127.0.0.1:9"],
+            "--scheduler needs --backend dask",
+        ),
+        (["--workers", "0", "--backend", "multiprocessing"], "--workers must be >= 1"),
+        (["--percentiles", "101"], "percentiles must be between 0"),
+        (["--start", "40"], "no frames selected"),
+    ],
+)
+def test_traj_bad_input_is_one_line(breathing, tmp_path, capsys, extra, message):
+    out = tmp_path / "never.json"
+    code = main(["traj", *breathing, "--json", str(out), *extra])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert err.startswith("poreprobe: error: ") and message in err
+    assert err.count("\n") == 1
+    assert not out.exists()
+
+
+def test_traj_missing_file(tmp_path, capsys):
+    assert main(["traj", str(tmp_path / "none.pdb")]) == 2
+    assert "no such file" in capsys.readouterr().err
