@@ -385,7 +385,7 @@ def demo_channel(variant: str = "open") -> Atoms:
 
     Examples
     --------
-    >>> from poreprobe.demo import demo_channel
+    >>> from poreprobe.demo_channels import demo_channel
     >>> atoms = demo_channel("widened")
     >>> len(atoms), sorted(set(atoms.chain.tolist()))
     (2196, ['A', 'B', 'C', 'D'])

@@ -6,7 +6,7 @@ a bond angle and a dihedral. The backbone uses fixed ideal bond lengths and
 angles and the user's dihedrals (phi, psi, omega); side chains use the ideal
 internal coordinates of the standard residues derived from the wwPDB Chemical
 Component Dictionary (``poreprobe._residue_geometry``) with the user's chi
-angles. Used to build the invented demo channels (:mod:`poreprobe.demo`) and
+angles. Used to build the invented demo channels (:mod:`poreprobe.demo_channels`) and
 test structures with real residue and atom names.
 
 Backbone geometry
