@@ -32,7 +32,16 @@ def register(sub) -> None:
 
 
 def run(args) -> int:
-    from poreprobe.demo import DEMO_CONC_MM, DEMO_CURRENT_PA, DEMO_CURRENT_SD_PA, run_demo
+    import os
+
+    from poreprobe.demo import (
+        DEMO_CONC_MM,
+        DEMO_CURRENT_PA,
+        DEMO_CURRENT_SD_PA,
+        ENTRY,
+        demo_path,
+        run_demo,
+    )
 
     start = time.perf_counter()
     say(
@@ -62,6 +71,11 @@ def run(args) -> int:
     lines.append(
         f"wrote {len(out['files'])} files to {args.out}/ in {time.perf_counter() - start:.0f} s"
     )
+    model = demo_path("demo_channel")
+    lines += [
+        f"the invented models are in {os.path.dirname(model)}/ (open them in any viewer)",
+        f'next: poreprobe profile {model} --entry "{ENTRY}" --json profile.json',
+    ]
     for line in lines:
         say(args, line)
     return 0
