@@ -98,7 +98,7 @@ def add_axis_args(parser: argparse.ArgumentParser) -> None:
         nargs=3,
         type=float,
         metavar=("DX", "DY", "DZ"),
-        help="direction of a user axis (any length but zero)",
+        help="direction of a user axis (unitless; any length but zero, only the direction counts)",
     )
     g.add_argument(
         "--axis-selections",

@@ -1,4 +1,4 @@
-"""The demo: the main job end to end on the invented FK1 channels.
+"""The demo: the main job end to end on the invented HalK channels.
 
 ``poreprobe demo`` (and :func:`run_demo`) profiles the invented channel, scans probe
 sizes for it and for its widened-entrance mutant, matches an invented diffusion-limited
@@ -14,22 +14,31 @@ import importlib.resources
 import os
 import warnings
 
+from poreprobe.demo_channels import ENTRY_SELECTION
 from poreprobe.errors import InputError
 
 #: Atoms at the intracellular end of the inner helices, where ions enter.
-ENTRY = "chainID A B C D and resid 1:3"
+ENTRY = ENTRY_SELECTION
 #: Invented bench numbers for the demo's capture match (not a measurement).
 DEMO_CURRENT_PA, DEMO_CURRENT_SD_PA, DEMO_CONC_MM = 20.0, 2.0, 150.0
 DEMO_FILES = ("demo_channel", "demo_widened", "demo_closed", "demo_breathing")
 MIDDLE_PROBE_A = 2.5
 
 
-def demo_path(name: str = "demo_channel", suffix: str = "cif") -> str:
-    """Path of a bundled demo file, e.g. ``demo_path("demo_closed", "pdb")``."""
-    if name not in DEMO_FILES or suffix not in ("cif", "pdb"):
+def demo_path(name: str = "demo_channel", suffix: str | None = None) -> str:
+    """Path of a bundled demo file, e.g. ``demo_path("demo_closed", "pdb")``.
+
+    The models come as ``cif`` (default) or ``pdb``; ``demo_breathing`` is an XTC
+    trajectory (suffix ``xtc``, the default for it) whose topology is
+    ``demo_path("demo_channel", "pdb")``.
+    """
+    if suffix is None:
+        suffix = "xtc" if name == "demo_breathing" else "cif"
+    allowed = ("xtc",) if name == "demo_breathing" else ("cif", "pdb")
+    if name not in DEMO_FILES or suffix not in allowed:
         raise InputError(
             f"demo files are {', '.join(DEMO_FILES)} (.cif or .pdb; the "
-            f"trajectory only .pdb); got {name}.{suffix}"
+            f"trajectory demo_breathing is .xtc); got {name}.{suffix}"
         )
     file_name = f"{name}.{suffix}"
     try:  # installed: the files ship as package data
@@ -163,7 +172,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     summary["closed_verdict"] = closed_report.verdict.verdict
 
     widened, _ = _load("demo_widened")
-    labels = ("channel", "widened F5A", "closed")
+    labels = ("channel", "widened F73A", "closed")
     comparison = compare_models([atoms, widened, closed], labels=labels)
     to_json(comparison, out("compare.json"))
     overlay = [{"profile": {"s_A": comparison.s_A, "radius_A": row}} for row in comparison.radius_A]
@@ -172,10 +181,14 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     if trajectory:
         from poreprobe.trajectory import profile_trajectory
 
-        with warnings.catch_warnings():  # a multi-model PDB has no time step
+        with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             traj = profile_trajectory(
-                demo_path("demo_breathing", "pdb"), step=2, quiet=quiet, entry=ENTRY
+                demo_path("demo_channel", "pdb"),
+                demo_path("demo_breathing"),
+                step=2,
+                quiet=quiet,
+                entry=ENTRY,
             )
         to_json(traj, out("trajectory.json"))
         figure(plots.plot_kymograph(traj), "kymograph.png")

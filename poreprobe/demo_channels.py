@@ -1,295 +1,642 @@
-"""The invented demo channels: a fictional tetrameric K+-selective pore and its variants.
+"""The invented demo channels: HalK, a tetrameric K+ channel that exists only here.
 
-The scenario is our own invention. *Ferrokin-1* ("FK1") is a made-up tetrameric
-K+-selective channel. Each subunit contributes three parts, each a chain of its own so
-that no chain has missing residues:
+Everything in this module is invented: the channel, its name, its story, its
+sequence and its states. The models are built by our own code
+(:mod:`poreprobe.peptide`) from ideal geometry, so they are realistic in form
+(alpha helices at 3.6 residues per turn and 1.5 Å rise, standard residues with
+all heavy atoms named as in the wwPDB Chemical Component Dictionary, no steric
+clashes) but they are not structures of any real protein and carry no
+experimental information. Use them to learn the tool and to test it.
 
-* an **inner helix** (chains A-D, 25 residues, ideal alpha helices from
-  :mod:`poreprobe.helices`): PHE 5 of the four helices forms the narrow **inner
-  entrance** at the intracellular end (low s); small residues line a wide **cavity** above;
-* a **filter** strand (chains E-H, five glycines) whose backbone carbonyl oxygens point at
-  the axis, forming five stacked rings: the narrow **selectivity filter**;
-* a short **turret helix** (chains I-L, 12 residues) farther from the axis, lining a wide
-  **outer vestibule**;
-* an **outer helix** (chains M-P, 25 residues) behind each gap between inner helices and
-  a short **pore helix** (chains Q-T) behind each gap between filter strands, so that the
-  pore is sealed laterally, as the rest of a channel and the membrane seal a real one.
+The scenario
+------------
+HalK ("halcyon K+ channel") is said to come from an imaginary salt-marsh
+microbe. Four identical subunits (chains A-D, 79 residues each) sit around the
+pore axis (the z axis; the intracellular side at negative z). Each subunit has
 
-Variants: ``widened`` (the entrance mutant F5A, an invented "gate-widening" mutant) and
-``closed`` (the inner helices' lower ends pulled towards the axis, pinching the
-entrance below the dehydrated K+ radius). A breathing trajectory scales the inner helices'
-distance from the axis sinusoidally. All geometry is built by this code; no part comes
-from a real structure or measurement.
+* an outer helix (residues 1-24) facing the membrane,
+* a turret loop (25-30) and a pore helix (31-41) pointing at the cavity,
+* the selectivity filter S43-L44-G45-F46-G47, whose backbone carbonyl oxygens
+  (of residues 43-46) form four rings on the pore axis,
+* an outer loop (48-53) whose aspartate D48 lines the outer vestibule,
+* an inner helix (54-79) with a glycine hinge (G66) and, near its C-terminal
+  end, the phenylalanine F73 whose side chains form a ring at the inner
+  entrance, where ions coming from the cell enter.
+
+States and variants (see :data:`VARIANTS`):
+
+``"open"``
+    The reference structure.
+``"widened"``
+    The F73A mutant: the entrance ring of phenylalanines replaced by alanines,
+    so the inner entrance is much wider.
+``"closed"``
+    The inner helices are bent by a few degrees at the G66 hinge, so the F73
+    ring pinches the inner entrance shut for a dehydrated K+ ion.
+breathing trajectory
+    :func:`demo_trajectory`: 50 frames in which the inner helices swing about
+    the hinge between the open state and 70 % of the way to the closed one
+    (two cycles), with small random displacements of every atom. A cartoon of
+    molecular dynamics, not a simulation.
+
+Files
+-----
+:func:`write_demo_files` writes the models as PDB and mmCIF
+(``demo_channel``, ``demo_widened``, ``demo_closed``) and the trajectory as XTC
+(``demo_breathing.xtc``, topology ``demo_channel.pdb``) with fixed number
+formatting and no dates, so the same package version writes the same bytes on
+every run. ``structures_demo/build.py`` writes the committed copies, which ship
+inside the package (:func:`poreprobe.demo.demo_path`).
 """
 
 from __future__ import annotations
 
-import functools
+import os
+import tempfile
 from dataclasses import replace
 
 import numpy as np
-from scipy.optimize import least_squares
 
-from poreprobe.structure import Atoms, make_atoms
+from poreprobe._validate import check_choice, check_int
+from poreprobe.export import write_atomic
+from poreprobe.peptide import ONE_TO_THREE, build_chain
+from poreprobe.structure import Atoms
 
-INNER_SEQUENCE = (
-    "SER",
-    "GLU",
-    "ALA",
-    "ILE",
-    "PHE",
-    "LYS",
-    "LEU",
-    "TRP",
-    "ALA",
-    "ILE",
-    "MET",
-    "ALA",
-    "LEU",
-    "ARG",
-    "VAL",
-    "GLY",
-    "ASN",
-    "LEU",
-    "ALA",
-    "ILE",
-    "TYR",
-    "SER",
-    "THR",
-    "HIS",
-    "ASP",
+CHANNEL_NAME = "HalK"
+VARIANTS = ("open", "widened", "closed")
+#: Residue numbers of landmarks in every chain.
+ENTRANCE_RESIDUE = 73
+HINGE_RESIDUE = 66
+FILTER_RESIDUES = (43, 44, 45, 46, 47)
+VESTIBULE_RESIDUE = 48
+#: Selection of atoms at the inner end, where ions enter (s grows from there).
+ENTRY_SELECTION = "resid 76:79"
+CHAINS = ("A", "B", "C", "D")
+N_FRAMES = 50
+FRAME_TIME_PS = 10.0
+#: Standard deviation of the random per-atom displacement in each frame (Å).
+JITTER_A = 0.15
+#: Largest hinge swing of the breathing trajectory, as a fraction of the closed state's.
+BREATHING_AMPLITUDE = 0.7
+_JITTER_SEED = 20250808
+#: Invented B-factors (Å²): 15 + 0.5 |z| (z in Å from the membrane centre), plus 6 in
+#: the two extracellular loops, so that they vary as a real model's do.
+_LOOPS = ((25, 30), (48, 53))
+
+# The design below was found once by placing ideal helices and the filter strand,
+# closing the loops between them by least squares on the loop dihedrals and
+# choosing clash-free side-chain rotamers; the numbers are the result, kept
+# here so that building is fast and exactly reproducible.
+
+SEQUENCE = "MAKELALVALIVALFAALIGAWAYSGDGNSDELARLATLTAGSLGFGDGKNGSLVVASLVAALITGLVAALIFMARSKN"
+_PHI_DEG = (
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -58.818,
+    -62.664,
+    -46.915,
+    -119.053,
+    -87.853,
+    -60.140,
+    -70.460,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    31.399,
+    -112.402,
+    -80.922,
+    76.900,
+    -77.410,
+    119.951,
+    -117.844,
+    -141.073,
+    -120.497,
+    -128.417,
+    97.941,
+    -79.658,
+    -45.123,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
+    -57.000,
 )
-INNER_FACING = 5
-INNER_OFFSET_A = 9.5
-CLOSED_SQUEEZE = 0.19
-GATE_RESID = 5
-FILTER_LENGTH = 5
-FILTER_O_RADIUS_A = 2.95
-FILTER_RISE_A = 3.4
-TURRET_SEQUENCE = (
-    "SER",
-    "PRO",
-    "GLU",
-    "ALA",
-    "LEU",
-    "LYS",
-    "ALA",
-    "ALA",
-    "GLU",
-    "SER",
-    "ALA",
-    "LYS",
+_PSI_DEG = (
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -38.979,
+    -38.341,
+    156.286,
+    -52.683,
+    103.541,
+    153.938,
+    111.418,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -59.815,
+    49.155,
+    -76.839,
+    -79.144,
+    84.076,
+    -80.325,
+    22.072,
+    -21.207,
+    137.050,
+    17.174,
+    156.222,
+    174.005,
+    21.988,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
+    -47.000,
 )
-TURRET_FACING = 7
-TURRET_OFFSET_A = 15.0
-OUTER_SEQUENCE = (
-    "MET",
-    "ALA",
-    "LEU",
-    "ILE",
-    "GLY",
-    "ALA",
-    "VAL",
-    "LEU",
-    "ALA",
-    "PHE",
-    "ILE",
-    "ALA",
-    "GLY",
-    "LEU",
-    "VAL",
-    "ALA",
-    "ILE",
-    "LEU",
-    "GLY",
-    "ALA",
-    "VAL",
-    "PHE",
-    "LEU",
-    "ALA",
-    "LYS",
-)
-OUTER_FACING = 13
-OUTER_OFFSET_A = 17.0
-POREHELIX_SEQUENCE = ("ALA", "ALA", "GLY", "ALA", "SER", "ALA", "ALA", "GLY", "ALA", "SER")
-POREHELIX_FACING = 6
-POREHELIX_OFFSET_A = 11.5
-MODEL_NAMES = ("channel", "widened", "closed")
+_ROTAMERS_DEG = {
+    1: (-90, 180, 180),
+    3: (-90, 180, 180, 180),
+    4: (-90, 180, 0),
+    5: (-90, 150),
+    7: (-90, 150),
+    8: (180,),
+    10: (-90, 150),
+    11: (-65, 180),
+    12: (180,),
+    14: (-90, 150),
+    15: (-90, 120),
+    18: (-90, 150),
+    19: (-65, 180),
+    22: (-90, 120),
+    24: (-65, 150),
+    25: (-90,),
+    27: (-90, -120),
+    29: (60, -60),
+    30: (-65,),
+    31: (-90, 120),
+    32: (-90, 180, 0),
+    33: (-90, 150),
+    35: (-90, 180, 180, 180),
+    36: (-90, 150),
+    38: (-40,),
+    39: (-90, 150),
+    40: (-65,),
+    43: (-90,),
+    44: (-90, 150),
+    46: (-90, 90),
+    48: (-90, -120),
+    50: (-90, 180, 180, 180),
+    51: (-90, 120),
+    53: (-65,),
+    54: (-90, 150),
+    55: (-65,),
+    56: (180,),
+    58: (-90,),
+    59: (-90, 150),
+    60: (180,),
+    63: (-90, 150),
+    64: (-65, 180),
+    65: (-65,),
+    67: (-90, 150),
+    68: (180,),
+    71: (-90, 150),
+    72: (-65, 180),
+    73: (180, 90),
+    74: (-90, 180, 180),
+    76: (-90, 180, 180, -65),
+    77: (-90,),
+    78: (-90, 180, 180, 180),
+    79: (180, -120),
+}
+_POSE_ROTVEC = (1.1178346693, 0.2815887553, 1.6653486746)
+_POSE_SHIFT_A = (20.479138, 2.551787, -22.770048)
+_CLOSED_DELTA_DEG = {65: (4.443, -3.056), 66: (3.369, 5.975), 67: (5.852, 1.886)}
+_CLOSED_ROTAMERS_DEG = {74: (-90, -150, 65), 79: (-90, 120)}
 
-# Peptide geometry (Engh & Huber 1991, values recalled from memory).
-_C_O, _C_N, _N_CA, _CA_C = 1.231, 1.329, 1.458, 1.525
-_ANGLES_DEG = {"CA-C-N": 116.2, "C-N-CA": 121.7, "N-CA-C": 111.2, "CA-C-O": 120.5}
+
+_FILE_STEMS = {"open": "demo_channel", "widened": "demo_widened", "closed": "demo_closed"}
+TRAJECTORY_FILE = "demo_breathing.xtc"
 
 
-@functools.cache
-def _filter_residue_geometry() -> tuple[np.ndarray, np.ndarray]:
-    """N and CA of a filter residue between two carbonyls one rise apart (local frame).
+def _c4_copies(chain_atoms: Atoms) -> Atoms:
+    """Four copies of chain A rotated by 0, 90, 180 and 270 degrees about z (exactly)."""
+    quarter = np.array([[0.0, -1.0, 0.0], [1.0, 0.0, 0.0], [0.0, 0.0, 1.0]])
+    parts = []
+    xyz = chain_atoms.coords_A
+    for chain in CHAINS:
+        parts.append(
+            replace(chain_atoms, coords_A=xyz.copy(), chain=np.full(len(chain_atoms), chain))
+        )
+        xyz = xyz @ quarter.T
+    fields = (
+        "coords_A",
+        "element",
+        "name",
+        "resname",
+        "resid",
+        "icode",
+        "chain",
+        "altloc",
+        "occupancy",
+        "b_factor",
+        "kind",
+    )
+    merged = {f: np.concatenate([getattr(p, f) for p in parts]) for f in fields}
+    return replace(parts[0], **merged)
 
-    Local frame: x points away from the axis, z up. Carbonyl C_(j-1) at (r, 0, 0) and
-    C_j at (r, 0, rise), both with C=O pointing at -x. N_j and CA_j are fitted so that
-    bond lengths and angles are the ideal ones (least squares).
+
+def _pose(coords_A: np.ndarray) -> np.ndarray:
+    from scipy.spatial.transform import Rotation
+
+    rot = Rotation.from_rotvec(_POSE_ROTVEC).as_matrix()
+    return coords_A @ rot.T + np.asarray(_POSE_SHIFT_A)
+
+
+def _subunit(sequence: str, phi_deg, psi_deg, rotamers: dict[int, tuple]) -> Atoms:
+    chi = {
+        resid - 1: chis
+        for resid, chis in rotamers.items()
+        if ONE_TO_THREE[sequence[resid - 1]] not in ("ALA", "GLY", "PRO")
+    }
+    chain = build_chain(sequence, phi_deg, psi_deg, chi_deg=chi, chain="A")
+    return replace(chain, coords_A=_pose(chain.coords_A))
+
+
+def _hinge_dihedrals(fraction: float) -> tuple[np.ndarray, np.ndarray]:
+    phi = np.array(_PHI_DEG)
+    psi = np.array(_PSI_DEG)
+    for resid, (d_phi, d_psi) in _CLOSED_DELTA_DEG.items():
+        phi[resid - 1] += fraction * d_phi
+        psi[resid - 1] += fraction * d_psi
+    return phi, psi
+
+
+def demo_channel(variant: str = "open") -> Atoms:
+    """Build one state of the invented HalK channel (heavy atoms, about 2,200).
+
+    Parameters
+    ----------
+    variant : {"open", "widened", "closed"}
+        See the module docstring.
+
+    Returns
+    -------
+    Atoms
+        Four chains A-D; the pore axis is the z axis, the inner entrance at
+        negative z. ``source`` names the model, e.g. ``"HalK open (invented)"``.
+
+    Examples
+    --------
+    >>> from poreprobe.demo_channels import demo_channel
+    >>> atoms = demo_channel("widened")
+    >>> len(atoms), sorted(set(atoms.chain.tolist()))
+    (2196, ['A', 'B', 'C', 'D'])
     """
-    c_prev = np.array([0.0, 0.0, 0.0])
-    c_next = np.array([0.0, 0.0, FILTER_RISE_A])
-    o_prev = c_prev + [-_C_O, 0, 0]
-    o_next = c_next + [-_C_O, 0, 0]
-
-    def angle(a, b, c):
-        u, v = a - b, c - b
-        return np.degrees(np.arccos(u @ v / np.linalg.norm(u) / np.linalg.norm(v)))
-
-    def residuals(x):
-        n, ca = x[:3], x[3:]
-        return np.array(
-            [
-                np.linalg.norm(n - c_prev) - _C_N,
-                np.linalg.norm(ca - n) - _N_CA,
-                np.linalg.norm(c_next - ca) - _CA_C,
-                (angle(c_prev, n, ca) - _ANGLES_DEG["C-N-CA"]) / 20,
-                (angle(n, ca, c_next) - _ANGLES_DEG["N-CA-C"]) / 20,
-                (angle(o_prev, c_prev, n) - (360 - _ANGLES_DEG["CA-C-O"] - _ANGLES_DEG["CA-C-N"]))
-                / 20,
-                (angle(o_next, c_next, ca) - _ANGLES_DEG["CA-C-O"]) / 20,
-            ]
-        )
-
-    start = np.array([0.7, 0.5, 1.1, 0.8, -0.4, 2.1])
-    fit = least_squares(residuals, start, xtol=1e-12, ftol=1e-12)
-    return fit.x[:3], fit.x[3:]
-
-
-def filter_ring(
-    *,
-    chains=("E", "F", "G", "H"),
-    z_start_A: float = 20.0,
-    o_radius_A: float = FILTER_O_RADIUS_A,
-    first_resid: int = 1,
-) -> Atoms:
-    """Glycine strands whose carbonyl oxygens form stacked rings around the z axis."""
-    n_local, ca_local = _filter_residue_geometry()
-    rows, names, resids = [], [], []
-    c_radius = o_radius_A + _C_O
-    for j in range(FILTER_LENGTH):
-        z = z_start_A + j * FILTER_RISE_A
-        base = np.array([c_radius, 0.0, z - FILTER_RISE_A])
-        n_at, ca_at = base + n_local, base + ca_local
-        c_at = np.array([c_radius, 0.0, z])
-        o_at = np.array([o_radius_A, 0.0, z])
-        rows += [n_at, ca_at, c_at, o_at]
-        names += ["N", "CA", "C", "O"]
-        resids += [first_resid + j] * 4
-    local = np.array(rows)
-    coords, chain_ids = [], []
-    for k, ch in enumerate(chains):
-        angle = 2 * np.pi * k / len(chains) + np.pi / len(chains)
-        rot = np.array(
-            [[np.cos(angle), -np.sin(angle), 0], [np.sin(angle), np.cos(angle), 0], [0, 0, 1]]
-        )
-        coords.append(local @ rot.T)
-        chain_ids += [ch] * len(local)
-    n = len(chain_ids)
-    return make_atoms(
-        np.vstack(coords),
-        element=[nm[0] for nm in names] * len(chains),
-        name=names * len(chains),
-        resname=["GLY"] * n,
-        resid=resids * len(chains),
-        chain=chain_ids,
-        b_factor=np.full(n, 25.0),
-        source="invented filter ring",
-    )
-
-
-def _merge(parts: list[Atoms], source: str) -> Atoms:
-    from poreprobe.structure import _ARRAY_FIELDS
-
-    cols = {f: np.concatenate([getattr(p, f) for p in parts]) for f in _ARRAY_FIELDS}
-    return replace(parts[0], **cols, source=source, notes=())
-
-
-def _mutate_to_alanine(atoms: Atoms, resid: int, chains) -> Atoms:
-    """Cut the side chains of ``resid`` in ``chains`` back to CB and rename them ALA."""
-    target = (atoms.resid == resid) & np.isin(atoms.chain, list(chains))
-    keep = ~target | np.isin(atoms.name, ("N", "CA", "C", "O", "CB"))
-    out = atoms.subset(keep)
-    resname = out.resname.copy()
-    resname[(out.resid == resid) & np.isin(out.chain, list(chains))] = "ALA"
-    return replace(out, resname=resname)
-
-
-def build_model(variant: str = "channel") -> Atoms:
-    """One invented FK1 model: ``"channel"``, ``"widened"`` (F5A) or ``"closed"``."""
-    from poreprobe.helices import helix_bundle
-
-    if variant not in MODEL_NAMES:
-        raise ValueError(f"variant must be one of {', '.join(MODEL_NAMES)}, got {variant!r}")
-    inner = helix_bundle(
-        INNER_SEQUENCE, facing=INNER_FACING, offset_A=INNER_OFFSET_A, chains=("A", "B", "C", "D")
-    )
-    if variant == "closed":
-        inner = _squeezed(inner, CLOSED_SQUEEZE)
+    variant = check_choice(variant, "variant", VARIANTS)
+    sequence = SEQUENCE
+    rotamers = dict(_ROTAMERS_DEG)
+    fraction = 0.0
     if variant == "widened":
-        inner = _mutate_to_alanine(inner, GATE_RESID, ("A", "B", "C", "D"))
-    top = inner.coords_A[:, 2].max()
-    filt = filter_ring(z_start_A=top + 2.5, first_resid=101)
-    turret = helix_bundle(
-        TURRET_SEQUENCE,
-        facing=TURRET_FACING,
-        offset_A=TURRET_OFFSET_A,
-        chains=("I", "J", "K", "L"),
-        first_resid=201,
+        i = ENTRANCE_RESIDUE - 1
+        sequence = sequence[:i] + "A" + sequence[i + 1 :]
+        rotamers.pop(ENTRANCE_RESIDUE)
+    elif variant == "closed":
+        fraction = 1.0
+        rotamers.update(_CLOSED_ROTAMERS_DEG)
+    phi, psi = _hinge_dihedrals(fraction)
+    atoms = _c4_copies(_subunit(sequence, phi, psi, rotamers))
+    return replace(
+        atoms, b_factor=_b_factors_A2(atoms), source=f"{CHANNEL_NAME} {variant} (invented)"
     )
-    shift = filt.coords_A[:, 2].max() + 3.0 - turret.coords_A[:, 2].min()
-    turret = turret.with_coords(turret.coords_A + [0.0, 0.0, shift])
-    outer = _turned(
-        helix_bundle(
-            OUTER_SEQUENCE,
-            facing=OUTER_FACING,
-            offset_A=OUTER_OFFSET_A,
-            chains=("M", "N", "O", "P"),
-            first_resid=301,
-        )
-    )
-    pore = helix_bundle(
-        POREHELIX_SEQUENCE,
-        facing=POREHELIX_FACING,
-        offset_A=POREHELIX_OFFSET_A,
-        chains=("Q", "R", "S", "T"),
-        first_resid=401,
-    )
-    # the filter strands sit at 45 degrees from the inner helices; the pore helices fill
-    # the gaps between the strands, in line with the inner helices
-    pore = pore.with_coords(pore.coords_A + [0.0, 0.0, filt.coords_A[:, 2].mean() + 1.0])
-    return _merge([inner, filt, turret, outer, pore], f"invented FK1 {variant}")
 
 
-def _squeezed(atoms: Atoms, fraction: float) -> Atoms:
-    """Pull the lower ends towards the axis: x, y scaled from 1 (top) to 1 - fraction (bottom)."""
-    z = atoms.coords_A[:, 2]
-    scale = 1.0 - fraction * (z.max() - z) / (z.max() - z.min())
-    xyz = atoms.coords_A.copy()
-    xyz[:, :2] *= scale[:, None]
-    return atoms.with_coords(xyz)
+def _b_factors_A2(atoms: Atoms) -> np.ndarray:
+    loop = np.zeros(len(atoms), dtype=bool)
+    for first, last in _LOOPS:
+        loop |= (atoms.resid >= first) & (atoms.resid <= last)
+    return np.round(15.0 + 0.5 * np.abs(atoms.coords_A[:, 2]) + 6.0 * loop, 2)
 
 
-def _turned(atoms: Atoms, angle_deg: float = 45.0) -> Atoms:
-    """Rotate about z, so a ring of helices sits behind the gaps of another."""
-    a = np.radians(angle_deg)
-    rot = np.array([[np.cos(a), -np.sin(a), 0], [np.sin(a), np.cos(a), 0], [0, 0, 1]])
-    return atoms.with_coords(atoms.coords_A @ rot.T)
+def demo_trajectory(n_frames: int = N_FRAMES) -> tuple[Atoms, np.ndarray]:
+    """The invented breathing trajectory of the open channel.
 
+    Frame k swings the inner helices about the hinge by the fraction
+    ``BREATHING_AMPLITUDE * (1 - cos(4 pi k / n_frames)) / 2`` of the closed
+    state's hinge change (two cycles), and displaces every atom by a random
+    offset (normal, standard deviation ``JITTER_A`` per axis, fixed seed).
 
-def breathing_coordinates(
-    atoms: Atoms, n_frames: int = 50, *, amplitude: float = 0.06, period_frames: int = 25
-) -> np.ndarray:
-    """Frames of an invented breathing motion, shape (n_frames, n_atoms, 3).
+    Parameters
+    ----------
+    n_frames : int
+        Number of frames (>= 1).
 
-    The inner helices (chains A-D) move away from and towards the axis: their x and y
-    are scaled by ``1 + amplitude * sin(2 pi t / period)``; everything else stays put.
+    Returns
+    -------
+    topology : Atoms
+        The open model (same atoms, same order as every frame).
+    coords_A : ndarray of shape (n_frames, n_atoms, 3)
+        Coordinates of each frame (Å).
     """
-    t = np.arange(n_frames)
-    scale = 1.0 + amplitude * np.sin(2 * np.pi * t / period_frames)
-    inner = np.isin(atoms.chain, ["A", "B", "C", "D"])
-    frames = np.repeat(atoms.coords_A[None], n_frames, axis=0)
-    frames[:, inner, :2] *= scale[:, None, None]
-    return frames
+    n_frames = check_int(n_frames, "n_frames", minimum=1)
+    topology = demo_channel("open")
+    rng = np.random.RandomState(_JITTER_SEED)  # legacy generator: stream frozen across numpy
+    frames = np.empty((n_frames, len(topology), 3))
+    for k in range(n_frames):
+        fraction = BREATHING_AMPLITUDE * 0.5 * (1.0 - np.cos(4.0 * np.pi * k / n_frames))
+        phi, psi = _hinge_dihedrals(fraction)
+        chain = _subunit(SEQUENCE, phi, psi, _ROTAMERS_DEG)
+        frames[k] = _c4_copies(chain).coords_A + rng.normal(0.0, JITTER_A, (len(topology), 3))
+    return topology, frames
+
+
+def breathing_fraction(n_frames: int = N_FRAMES) -> np.ndarray:
+    """Hinge swing of each frame of :func:`demo_trajectory` (fraction of the closed state's)."""
+    k = np.arange(check_int(n_frames, "n_frames", minimum=1))
+    return BREATHING_AMPLITUDE * 0.5 * (1.0 - np.cos(4.0 * np.pi * k / len(k)))
+
+
+def demo_universe(n_frames: int = N_FRAMES):
+    """The breathing trajectory as an in-memory MDAnalysis ``Universe``."""
+    from MDAnalysis.coordinates.memory import MemoryReader
+
+    from poreprobe.structure import _as_universe
+
+    topology, frames = demo_trajectory(n_frames)
+    universe = _as_universe(topology)
+    universe.load_new(frames.astype(np.float32), format=MemoryReader, dt=FRAME_TIME_PS)
+    return universe
+
+
+def _fixed(values: np.ndarray) -> np.ndarray:
+    """Round to 0.001 Å and turn -0.000 into 0.000 (stable text)."""
+    return np.round(values, 3) + 0.0
+
+
+def _pdb_atom_name(name: str, element: str) -> str:
+    if len(name) >= 4 or len(element) == 2:
+        return f"{name:<4s}"
+    return f" {name:<3s}"
+
+
+def pdb_text(atoms: Atoms, *, title: str = "") -> str:
+    """PDB text of a model with fixed formatting (ATOM, TER and END records).
+
+    Parameters
+    ----------
+    atoms : Atoms
+    title : str
+        Written as TITLE and REMARK lines (no dates or versions, so the text is
+        reproducible).
+    """
+    lines = []
+    if title:
+        lines.append(f"TITLE     {title[:70]}")
+    lines.append("REMARK   1 INVENTED MODEL BUILT BY POREPROBE.DEMO; NOT AN EXPERIMENTAL STRUCTURE")
+    xyz = _fixed(atoms.coords_A)
+    serial = 0
+    n = len(atoms)
+    for i in range(n):
+        serial += 1
+        record = "ATOM  " if atoms.kind[i] == "polymer" else "HETATM"
+        lines.append(
+            f"{record}{serial:5d} {_pdb_atom_name(atoms.name[i], atoms.element[i])}"
+            f"{atoms.altloc[i] or ' ':1s}{atoms.resname[i]:>3s} {atoms.chain[i]:1s}"
+            f"{atoms.resid[i]:4d}{atoms.icode[i] or ' ':1s}   "
+            f"{xyz[i, 0]:8.3f}{xyz[i, 1]:8.3f}{xyz[i, 2]:8.3f}"
+            f"{atoms.occupancy[i]:6.2f}{atoms.b_factor[i]:6.2f}          "
+            f"{atoms.element[i].capitalize():>2s}  "
+        )
+        if i == n - 1 or atoms.chain[i + 1] != atoms.chain[i]:
+            serial += 1
+            lines.append(
+                f"TER   {serial:5d}      {atoms.resname[i]:>3s} {atoms.chain[i]:1s}"
+                f"{atoms.resid[i]:4d}{atoms.icode[i] or ' ':1s}"
+            )
+    lines.append("END")
+    return "\n".join(lines) + "\n"
+
+
+def mmcif_text(atoms: Atoms, *, name: str = "HALK", title: str = "") -> str:
+    """mmCIF text of a model with fixed formatting (entity, sequence and atom_site).
+
+    Parameters
+    ----------
+    atoms : Atoms
+        Protein chains of one identical sequence (as the demo models are).
+    name : str
+        The data block name and ``_entry.id``.
+    title : str
+        ``_struct.title``.
+    """
+    first = atoms.chain == atoms.chain[0]
+    ca = first & (atoms.name == "CA")
+    residues = list(zip(atoms.resid[ca].tolist(), atoms.resname[ca].tolist(), strict=True))
+    chains = list(dict.fromkeys(atoms.chain.tolist()))
+    out = [f"data_{name}", "#", f"_entry.id {name}", "#"]
+    out.append(f"_struct.title '{title or 'invented model'}'")
+    out += [
+        "#",
+        "_entity.id 1",
+        "_entity.type polymer",
+        f"_entity.pdbx_description '{CHANNEL_NAME} subunit (invented)'",
+        "#",
+    ]
+    out += [
+        "_entity_poly.entity_id 1",
+        "_entity_poly.type polypeptide(L)",
+        f"_entity_poly.pdbx_strand_id {','.join(chains)}",
+        "#",
+    ]
+    out += [
+        "loop_",
+        "_entity_poly_seq.entity_id",
+        "_entity_poly_seq.num",
+        "_entity_poly_seq.mon_id",
+    ]
+    out += [f"1 {resid} {resname}" for resid, resname in residues]
+    out += ["#", "loop_", "_struct_asym.id", "_struct_asym.entity_id"]
+    out += [f"{chain} 1" for chain in chains]
+    columns = (
+        "group_PDB",
+        "id",
+        "type_symbol",
+        "label_atom_id",
+        "label_alt_id",
+        "label_comp_id",
+        "label_asym_id",
+        "label_entity_id",
+        "label_seq_id",
+        "pdbx_PDB_ins_code",
+        "Cartn_x",
+        "Cartn_y",
+        "Cartn_z",
+        "occupancy",
+        "B_iso_or_equiv",
+        "auth_seq_id",
+        "auth_asym_id",
+        "pdbx_PDB_model_num",
+    )
+    out += ["#", "loop_"] + [f"_atom_site.{c}" for c in columns]
+    xyz = _fixed(atoms.coords_A)
+    for i in range(len(atoms)):
+        out.append(
+            f"ATOM {i + 1} {atoms.element[i].capitalize()} {atoms.name[i]} "
+            f"{atoms.altloc[i] or '.'} {atoms.resname[i]} {atoms.chain[i]} 1 {atoms.resid[i]} "
+            f"{atoms.icode[i] or '?'} {xyz[i, 0]:.3f} {xyz[i, 1]:.3f} {xyz[i, 2]:.3f} "
+            f"{atoms.occupancy[i]:.2f} {atoms.b_factor[i]:.2f} {atoms.resid[i]} "
+            f"{atoms.chain[i]} 1"
+        )
+    out.append("#")
+    return "\n".join(out) + "\n"
+
+
+def write_demo_files(folder, *, trajectory: bool = True) -> dict[str, str]:
+    """Write the demo models (PDB and mmCIF) and the breathing trajectory (XTC), atomically.
+
+    Parameters
+    ----------
+    folder : str or os.PathLike
+        An existing folder.
+    trajectory : bool
+        Also write ``demo_breathing.xtc`` (topology: ``demo_channel.pdb``).
+
+    Returns
+    -------
+    dict
+        ``{"open.pdb": path, "open.cif": path, ..., "trajectory": path}``.
+    """
+    folder = os.fspath(folder)
+    paths = {}
+    for variant in VARIANTS:
+        atoms = demo_channel(variant)
+        stem = _FILE_STEMS[variant]
+        title = f"{CHANNEL_NAME} {variant} state, an invented K+ channel (poreprobe demo)"
+        for suffix, text in (
+            ("pdb", pdb_text(atoms, title=title)),
+            ("cif", mmcif_text(atoms, name=stem.upper(), title=title)),
+        ):
+            path = os.path.join(folder, f"{stem}.{suffix}")
+            write_atomic(path, text)
+            paths[f"{variant}.{suffix}"] = path
+    if trajectory:
+        paths["trajectory"] = write_trajectory(os.path.join(folder, TRAJECTORY_FILE))
+    return paths
+
+
+def write_trajectory(path, n_frames: int = N_FRAMES) -> str:
+    """Write the breathing trajectory as XTC (0.01 Å precision), atomically."""
+    import warnings
+
+    import MDAnalysis
+
+    path = os.fspath(path)
+    universe = demo_universe(n_frames)
+    with tempfile.TemporaryDirectory() as tmp:
+        scratch = os.path.join(tmp, "frames.xtc")
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            with MDAnalysis.Writer(scratch, n_atoms=len(universe.atoms)) as writer:
+                for _ in universe.trajectory:
+                    writer.write(universe.atoms)
+        with open(scratch, "rb") as fh:
+            data = fh.read()
+    write_atomic(path, data)
+    return path

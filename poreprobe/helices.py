@@ -20,6 +20,7 @@ import functools
 
 import numpy as np
 
+from poreprobe.peptide import dihedral_deg, place_atom
 from poreprobe.structure import Atoms, make_atoms
 from poreprobe.superpose import rotate_about, superpose
 
@@ -80,19 +81,6 @@ _CHI_ATOMS = {
 }
 
 
-def _place(a, b, c, bond, angle_deg, torsion_deg):
-    """Position of d with |cd| = bond, angle bcd and torsion abcd (natural extension frame)."""
-    angle, torsion = np.radians(angle_deg), np.radians(torsion_deg)
-    bc = (c - b) / np.linalg.norm(c - b)
-    n = np.cross(b - a, bc)
-    n /= np.linalg.norm(n)
-    m = np.cross(n, bc)
-    d2 = bond * np.array(
-        [-np.cos(angle), np.sin(angle) * np.cos(torsion), np.sin(angle) * np.sin(torsion)]
-    )
-    return c + d2[0] * bc + d2[1] * m + d2[2] * n
-
-
 def _backbone(n_res: int) -> dict[str, np.ndarray]:
     n_at = np.zeros(3)
     ca = n_at + [_BOND["N-CA"], 0, 0]
@@ -100,20 +88,20 @@ def _backbone(n_res: int) -> dict[str, np.ndarray]:
     c = ca + _BOND["CA-C"] * np.array([-np.cos(ang), np.sin(ang), 0])
     rows = {"N": [n_at], "CA": [ca], "C": [c]}
     for _ in range(1, n_res):
-        n_new = _place(
+        n_new = place_atom(
             rows["N"][-1], rows["CA"][-1], rows["C"][-1], _BOND["C-N"], _ANGLE["CA-C-N"], _PSI
         )
-        ca_new = _place(
+        ca_new = place_atom(
             rows["CA"][-1], rows["C"][-1], n_new, _BOND["N-CA"], _ANGLE["C-N-CA"], _OMEGA
         )
-        c_new = _place(rows["C"][-1], n_new, ca_new, _BOND["CA-C"], _ANGLE["N-CA-C"], _PHI)
+        c_new = place_atom(rows["C"][-1], n_new, ca_new, _BOND["CA-C"], _ANGLE["N-CA-C"], _PHI)
         rows["N"].append(n_new)
         rows["CA"].append(ca_new)
         rows["C"].append(c_new)
     out = {k: np.array(v) for k, v in rows.items()}
     out["O"] = np.array(
         [
-            _place(
+            place_atom(
                 out["N"][i], out["CA"][i], out["C"][i], _BOND["C-O"], _ANGLE["CA-C-O"], _PSI + 180.0
             )
             for i in range(n_res)
@@ -157,14 +145,6 @@ def _downstream(n_atoms, bonds, b, c):
     return sorted(seen - {c})
 
 
-def _dihedral(p0, p1, p2, p3):
-    b0, b1, b2 = p0 - p1, p2 - p1, p3 - p2
-    b1 = b1 / np.linalg.norm(b1)
-    v = b0 - (b0 @ b1) * b1
-    w = b2 - (b2 @ b1) * b1
-    return np.degrees(np.arctan2(np.cross(b1, v) @ w, v @ w))
-
-
 def _set_chis(resname, names, bonds, coords, chis):
     """Template coordinates with the side chain turned to the given (chi1, chi2) in degrees."""
     coords = coords.copy()
@@ -174,7 +154,7 @@ def _set_chis(resname, names, bonds, coords, chis):
         if target is None or any(q not in index for q in quad):
             continue
         idx = [index[q] for q in quad]
-        now = _dihedral(*coords[idx])
+        now = dihedral_deg(*coords[idx])
         moving = _downstream(len(names), bonds, idx[1], idx[2])
         coords[moving] = rotate_about(
             coords[moving],

@@ -606,7 +606,10 @@ def read_structure(
     Examples
     --------
     >>> import poreprobe
-    >>> atoms = poreprobe.read_structure(poreprobe.demo_path("pdb"))  # doctest: +SKIP
+    >>> from poreprobe.demo import demo_path
+    >>> atoms = poreprobe.read_structure(demo_path("demo_channel", "pdb"))
+    >>> len(atoms), atoms.source
+    (2220, 'demo_channel.pdb')
     """
     path = os.fspath(path)
     if not os.path.isfile(path):

@@ -1,54 +1,33 @@
 """Build the invented demo channels and write them into this folder (deterministic).
 
-Run from anywhere: ``python structures_demo/build.py`` (needs biotite, a test dependency,
-for the ideal residue templates). ``--check`` rebuilds in memory and compares with the
-committed files byte for byte instead of writing. The channels are invented
-(see ``poreprobe/demo_channels.py``); no part comes from a real structure.
+Run from anywhere: ``python structures_demo/build.py``. ``--check`` rebuilds into a
+temporary folder and compares with the committed files byte for byte instead of
+writing. The channel, HalK, is invented (see ``poreprobe/demo_channels.py``); no part
+comes from a real structure or measurement.
 
-Files: ``demo_channel``, ``demo_widened`` and ``demo_closed`` as mmCIF and PDB, and
-``demo_breathing.pdb``, a 50-frame multi-model trajectory of the channel.
+Files: ``demo_channel`` (open state), ``demo_widened`` (the F73A entrance mutant) and
+``demo_closed`` (closed state) as mmCIF and PDB, and ``demo_breathing.xtc``, 50 frames
+of invented breathing motion of the open state (topology: ``demo_channel.pdb``). They
+ship inside the package as ``poreprobe.demo_structures``.
 """
 
 from __future__ import annotations
 
 import argparse
+import filecmp
 import os
 import sys
+import tempfile
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 
 
-def demo_files() -> dict[str, str]:
-    """File name -> text of every demo file."""
-    import gemmi
+def build(folder: str) -> list[str]:
+    """Write every demo file into ``folder``; return the file names."""
+    sys.path.insert(0, os.path.dirname(HERE))
+    from poreprobe.demo_channels import write_demo_files
 
-    from poreprobe import demo_channels
-    from poreprobe.writer import to_gemmi_structure
-
-    out = {}
-    for variant in demo_channels.MODEL_NAMES:
-        atoms = demo_channels.build_model(variant)
-        name = f"demo_{variant}"
-        st = to_gemmi_structure(atoms, name=name.upper())
-        out[f"{name}.cif"] = st.make_mmcif_document().as_string()
-        out[f"{name}.pdb"] = st.make_pdb_string()
-    atoms = demo_channels.build_model("channel")
-    frames = demo_channels.breathing_coordinates(atoms)
-    st = to_gemmi_structure(atoms, name="DEMO_BREATHING")
-    template = st[0].clone()
-    del st[0]
-    for k, xyz in enumerate(frames):
-        model = template.clone()
-        model.num = k + 1
-        for atom, pos in zip((cra.atom for cra in model.all()), xyz, strict=True):
-            atom.pos = gemmi.Position(*map(float, xyz_round(pos)))
-        st.add_model(model)
-    out["demo_breathing.pdb"] = st.make_pdb_string()
-    return out
-
-
-def xyz_round(pos):
-    return [round(float(v), 3) for v in pos]
+    return sorted(os.path.basename(p) for p in write_demo_files(folder).values())
 
 
 def main(argv=None) -> int:
@@ -56,23 +35,20 @@ def main(argv=None) -> int:
     parser.add_argument(
         "--check", action="store_true", help="compare with the committed files instead of writing"
     )
+    parser.add_argument(
+        "--out", default=HERE, metavar="FOLDER", help="where to write (default: this folder)"
+    )
     args = parser.parse_args(argv)
-    sys.path.insert(0, os.path.dirname(HERE))
-    files = demo_files()
-    differ = []
-    for name, text in files.items():
-        path = os.path.join(HERE, name)
-        if args.check:
-            with open(path, encoding="utf-8", newline="") as fh:
-                if fh.read() != text:
-                    differ.append(name)
-        else:
-            with open(path, "w", encoding="utf-8", newline="") as fh:
-                fh.write(text)
-    if differ:
-        print("differ from a fresh build: " + ", ".join(differ))
+    if not args.check:
+        print("wrote " + ", ".join(build(args.out)))
+        return 0
+    with tempfile.TemporaryDirectory() as tmp:
+        names = build(tmp)
+        same, differ, missing = filecmp.cmpfiles(HERE, tmp, names, shallow=False)
+    if differ or missing:
+        print("differ from a fresh build: " + ", ".join(differ + missing))
         return 1
-    print(("checked " if args.check else "wrote ") + ", ".join(files))
+    print("checked " + ", ".join(same))
     return 0
 
 

@@ -72,7 +72,6 @@ def test_demo_models_are_clean(demo_out):
 
 
 def test_build_reproduces_committed_files_byte_for_byte():
-    pytest.importorskip("biotite")
     result = subprocess.run(
         [sys.executable, os.path.join(ROOT, "structures_demo", "build.py"), "--check"],
         capture_output=True,
@@ -84,25 +83,35 @@ def test_build_reproduces_committed_files_byte_for_byte():
 
 def test_demo_files_are_found_and_readable():
     for name in DEMO_FILES:
-        path = demo_path(name, "pdb")
-        assert os.path.isfile(path)
+        assert os.path.isfile(demo_path(name))
     atoms = poreprobe.read_structure(demo_path("demo_channel"))
-    assert len(atoms) > 1500
-    assert sorted(set(atoms.chain)) == sorted("ABCDEFGHIJKLMNOPQRST")
-    traj = poreprobe.structure.open_universe(demo_path("demo_breathing", "pdb"))
+    assert len(atoms) == 2220
+    assert sorted(set(atoms.chain)) == ["A", "B", "C", "D"]
+    same = poreprobe.read_structure(demo_path("demo_channel", "pdb"))
+    np.testing.assert_allclose(same.coords_A, atoms.coords_A, atol=1e-9)
+    traj = poreprobe.structure.open_universe(
+        demo_path("demo_channel", "pdb"), demo_path("demo_breathing")
+    )
     assert len(traj.trajectory) == 50
 
 
 def test_bad_demo_name():
     with pytest.raises(poreprobe.InputError, match="demo files are"):
         demo_path("demo_other")
+    with pytest.raises(poreprobe.InputError, match="demo_breathing is .xtc"):
+        demo_path("demo_breathing", "pdb")
 
 
-def test_breathing_frames_move_only_the_inner_helices():
+def test_bundled_files_are_the_builder_models():
+    # the committed files are what poreprobe.demo_channels builds, to file precision
     from poreprobe import demo_channels
 
-    atoms = poreprobe.read_structure(demo_path("demo_channel"))
-    frames = demo_channels.breathing_coordinates(atoms, 10)
-    inner = np.isin(atoms.chain, list("ABCD"))
-    moved = np.abs(frames - atoms.coords_A).max(axis=(0, 2)) > 1e-9
-    assert moved[inner].any() and not moved[~inner].any()
+    for name, variant in (
+        ("demo_channel", "open"),
+        ("demo_widened", "widened"),
+        ("demo_closed", "closed"),
+    ):
+        built = demo_channels.demo_channel(variant)
+        read = poreprobe.read_structure(demo_path(name))
+        np.testing.assert_allclose(read.coords_A, built.coords_A, atol=5e-4 + 1e-9)
+        np.testing.assert_allclose(read.b_factor, built.b_factor, atol=5e-3)

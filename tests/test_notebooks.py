@@ -4,11 +4,16 @@ import os
 
 import pytest
 
-NOTEBOOKS = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "notebooks")
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+NOTEBOOKS = os.path.join(ROOT, "notebooks")
 
 
 @pytest.mark.parametrize("name", sorted(f for f in os.listdir(NOTEBOOKS) if f.endswith(".ipynb")))
-def test_notebook_executes(name):
+def test_notebook_executes(name, monkeypatch):
+    # the kernel imports this checkout's poreprobe, as the tests do (not another install)
+    monkeypatch.setenv(
+        "PYTHONPATH", os.pathsep.join(filter(None, [ROOT, os.environ.get("PYTHONPATH")]))
+    )
     nbformat = pytest.importorskip("nbformat")
     nbclient = pytest.importorskip("nbclient")
     nb = nbformat.read(os.path.join(NOTEBOOKS, name), as_version=4)
