@@ -60,7 +60,7 @@ import numpy as np
 from poreprobe._validate import check_choice, check_int
 from poreprobe.export import write_atomic
 from poreprobe.peptide import ONE_TO_THREE, build_chain
-from poreprobe.structure import Atoms
+from poreprobe.structure import Atoms, concatenate_atoms
 
 CHANNEL_NAME = "HalK"
 VARIANTS = ("open", "widened", "closed")
@@ -326,21 +326,7 @@ def _c4_copies(chain_atoms: Atoms) -> Atoms:
             replace(chain_atoms, coords_A=xyz.copy(), chain=np.full(len(chain_atoms), chain))
         )
         xyz = xyz @ quarter.T
-    fields = (
-        "coords_A",
-        "element",
-        "name",
-        "resname",
-        "resid",
-        "icode",
-        "chain",
-        "altloc",
-        "occupancy",
-        "b_factor",
-        "kind",
-    )
-    merged = {f: np.concatenate([getattr(p, f) for p in parts]) for f in fields}
-    return replace(parts[0], **merged)
+    return concatenate_atoms(parts)
 
 
 def _pose(coords_A: np.ndarray) -> np.ndarray:

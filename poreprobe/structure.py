@@ -161,6 +161,16 @@ class Atoms:
         }
 
 
+def concatenate_atoms(parts, *, source: str | None = None) -> Atoms:
+    """Join several :class:`Atoms` tables in order (metadata from the first)."""
+    parts = list(parts)
+    if not parts:
+        raise InputError("concatenate_atoms needs at least one Atoms table")
+    merged = {f: np.concatenate([getattr(p, f) for p in parts]) for f in _ARRAY_FIELDS}
+    extra = {} if source is None else {"source": source}
+    return replace(parts[0], **merged, **extra)
+
+
 def make_atoms(
     coords_A,
     *,
