@@ -17,7 +17,7 @@ sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "tests"))
 from helix_channel import build_channel  # noqa: E402
 
 from poreprobe import check_model, compare_models  # noqa: E402
-from poreprobe.structure import make_atoms  # noqa: E402
+from poreprobe.io.structure import make_atoms  # noqa: E402
 
 
 def best_of(func, repeat=3):

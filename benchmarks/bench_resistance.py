@@ -21,7 +21,7 @@ import time
 import numpy as np
 
 import poreprobe
-from poreprobe import synthetic
+from poreprobe.geometry import synthetic
 
 AXIS = poreprobe.PoreAxis([0, 0, 0], [0, 0, 1], "user")
 RHO = 0.8

@@ -85,7 +85,7 @@ def invented_channel(n_atoms: int = 20_000, length_A: float = 60.0, seed: int = 
 def run_case(cfg: dict) -> dict:
     """One measured case (called in a child process)."""
     import poreprobe
-    from poreprobe import reach as reach_mod
+    from poreprobe.geometry import reach as reach_mod
 
     atoms = invented_channel(cfg["n_atoms"], cfg["length_A"])
     axis = poreprobe.PoreAxis([0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "user")

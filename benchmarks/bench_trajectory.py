@@ -1,6 +1,6 @@
 """Speed and memory of trajectory profiles (PoreProfileAnalysis) on a 5,000-atom pore region.
 
-The pore region is invented (poreprobe.synthetic.shell_channel: 5,000 random atoms at
+The pore region is invented (poreprobe.geometry.synthetic.shell_channel: 5,000 random atoms at
 protein density around a 45 Å pore with a constriction). The trajectory is invented too:
 every frame breathes (radial scale 1 + 0.03 sin(2 pi t / 10)) and jitters (Gaussian,
 0.25 Å per coordinate, seeded per frame); it is written as PDB + DCD with MDAnalysis.
@@ -8,7 +8,7 @@ every frame breathes (radial scale 1 + 0.03 sin(2 pi t / 10)) and jitters (Gauss
 Prints
   * the cost of one frame: reading + fit, and the radius profile alone;
   * frames per second, serial and on N workers (multiprocessing, and a dask LocalCluster
-    through poreprobe.parallel.DaskClientBackend), and the speed-up;
+    through poreprobe.scale.parallel.DaskClientBackend), and the speed-up;
   * peak resident memory of serial runs of two lengths, each in a fresh process, the
     growth per frame, and the extrapolation to a 10,000-frame run.
 Targets (issue 9): >= 20 frames/s serial at 0.25 Å; >= 1.7x with 2 workers.
@@ -39,8 +39,8 @@ def write_trajectory(folder: str, n_frames: int) -> tuple[str, str]:
     """The invented pore region as PDB + DCD with ``n_frames`` frames."""
     import MDAnalysis
 
-    from poreprobe import synthetic
-    from poreprobe.writer import write_structure
+    from poreprobe.geometry import synthetic
+    from poreprobe.io.writer import write_structure
 
     region = synthetic.shell_channel(N_ATOMS, length_A=LENGTH_A, seed=1)
     pdb, dcd = os.path.join(folder, "region.pdb"), os.path.join(folder, "region.dcd")
@@ -69,7 +69,7 @@ def open_region(pdb: str, dcd: str):
 def frame_costs(pdb, dcd, step_A, repeat=3):
     """Seconds per frame: reading a frame + the fit, and the radius profile alone."""
     from poreprobe import radius_profile
-    from poreprobe.trajectory import PoreProfileAnalysis
+    from poreprobe.scale.trajectory import PoreProfileAnalysis
 
     universe = open_region(pdb, dcd)
     ana = PoreProfileAnalysis(universe.atoms, step_A=step_A)
@@ -106,12 +106,12 @@ def own_cpu_seconds() -> float:
 
 
 def _warm_up() -> None:
-    import poreprobe.trajectory  # noqa: F401  (MDAnalysis analysis machinery)
+    import poreprobe.scale.trajectory  # noqa: F401  (MDAnalysis analysis machinery)
 
 
 def timed_run(pdb, dcd, step_A, n_frames, **run_kwargs) -> tuple[float, float]:
     """Wall-clock and CPU seconds (this process + pool workers) of one run."""
-    from poreprobe.trajectory import PoreProfileAnalysis
+    from poreprobe.scale.trajectory import PoreProfileAnalysis
 
     ana = PoreProfileAnalysis(open_region(pdb, dcd).atoms, step_A=step_A)
     t0, c0 = time.perf_counter(), cpu_seconds()
@@ -127,7 +127,7 @@ def memory_child(pdb: str, dcd: str, step_A: float, n_frames: int) -> None:
     """In a fresh process: run n_frames serially, print peak RSS (MiB) as JSON."""
     import resource
 
-    from poreprobe.trajectory import PoreProfileAnalysis
+    from poreprobe.scale.trajectory import PoreProfileAnalysis
 
     universe = open_region(pdb, dcd)
     ana = PoreProfileAnalysis(universe.atoms, step_A=step_A)
@@ -181,7 +181,7 @@ def main() -> None:
         return
 
     import poreprobe
-    from poreprobe.parallel import DaskClientBackend
+    from poreprobe.scale.parallel import DaskClientBackend
 
     n_frames, workers = args.frames, args.workers
     load = os.getloadavg()[0]

@@ -1,6 +1,6 @@
 """Speed and size of the 3-D exports on large invented channels.
 
-For invented channels of 10k and 40k atoms (poreprobe.synthetic.shell_channel: random atoms
+For invented channels of 10k and 40k atoms (poreprobe.geometry.synthetic.shell_channel: random atoms
 at protein density around a 60 Å pore with a constriction), prints the time to build the
 clearance grid around the pore at 1.0, 0.5 and 0.25 Å spacing, to triangulate the pore
 surface for a 1 Å probe, and to write the map, the PLY mesh and the centre line, with
@@ -20,7 +20,7 @@ import time
 import numpy as np
 
 import poreprobe as pp
-from poreprobe import synthetic
+from poreprobe.geometry import synthetic
 
 
 def best_of(repeat: int, func):

@@ -3,75 +3,91 @@
 Read a channel model, find its pore axis, roll spherical probes through the
 pore, and turn the geometry into bench numbers. All results are model-based
 estimates; they depend on the radius set and the model's quality.
+
+The names below are loaded on first use (PEP 562), so ``import poreprobe`` and
+``poreprobe --help`` stay fast; ``pp.radius_profile`` imports its layer then.
 """
 
-__version__ = "0.1.0"
+from poreprobe._version import __version__
 
-from poreprobe.axis import PoreAxis, find_pore_axis  # noqa: E402
-from poreprobe.batch import BatchRow, BatchSummary, profile_files  # noqa: E402
-from poreprobe.capture import (  # noqa: E402
-    CaptureRadiusEstimate,
-    capture_radius_from_current_A,
-    diffusion_limited_current_pA,
-    estimate_capture_radius,
-)
-from poreprobe.compare import ModelComparison, compare_models  # noqa: E402
-from poreprobe.conductance import (  # noqa: E402
-    ConductanceEstimate,
-    SegmentResistance,
-    access_resistance_ohm,
-    series_resistance,
-)
-from poreprobe.electrolyte import BathConductivity, bath_conductivity  # noqa: E402
-from poreprobe.errors import (  # noqa: E402
-    InputError,
-    PoreNotFoundError,
-    PoreprobeError,
-    QualityWarning,
-)
-from poreprobe.ions import IONS, Ion, get_ion  # noqa: E402
-from poreprobe.kernel import AtomSpheres, clearance_A  # noqa: E402
-from poreprobe.lining import PoreLining, pore_lining  # noqa: E402
-from poreprobe.match import CaptureMatch, match_capture_radius, match_scan  # noqa: E402
-from poreprobe.probes import ProbeScan, capture_radius_at, probe_scan  # noqa: E402
-from poreprobe.profile import RadiusProfile, radius_profile  # noqa: E402
-from poreprobe.quality import QualityReport, check_model  # noqa: E402
-from poreprobe.radii import RADIUS_SETS, atom_radii_A, get_radius_set  # noqa: E402
-from poreprobe.reach import ReachField, reach_field  # noqa: E402
-from poreprobe.segments import PoreSegment, pore_extent, pore_segments  # noqa: E402
-from poreprobe.side_split import (  # noqa: E402
-    RatioFreeEnergy,
-    SideResistanceSplit,
-    ratio_free_energy,
-    split_side_resistances,
-)
-from poreprobe.structure import (  # noqa: E402
-    Atoms,
-    atoms_from_atomgroup,
-    make_atoms,
-    read_structure,
-    select,
-)
-from poreprobe.superpose import superpose  # noqa: E402
-from poreprobe.symmetry import subunit_deviation  # noqa: E402
-from poreprobe.viewer_export import (  # noqa: E402
-    CenterLine,
-    FieldGrid,
-    PoreSurface,
-    center_line,
-    clearance_grid,
-    pore_surface,
-    reach_grid,
-    write_center_line,
-    write_map,
-    write_mesh,
-)
-from poreprobe.viscosity import (  # noqa: E402
-    VISCOGENS,
-    DiffusionEstimate,
-    diffusion_coefficient,
-    water_viscosity_mPa_s,
-)
+#: Public name -> the module that defines it.
+_EXPORTS = {
+    "PoreAxis": "poreprobe.geometry.axis",
+    "find_pore_axis": "poreprobe.geometry.axis",
+    "BatchRow": "poreprobe.scale.batch",
+    "BatchSummary": "poreprobe.scale.batch",
+    "profile_files": "poreprobe.scale.batch",
+    "CaptureRadiusEstimate": "poreprobe.bench.capture",
+    "capture_radius_from_current_A": "poreprobe.bench.capture",
+    "diffusion_limited_current_pA": "poreprobe.bench.capture",
+    "estimate_capture_radius": "poreprobe.bench.capture",
+    "ModelComparison": "poreprobe.checks.compare",
+    "compare_models": "poreprobe.checks.compare",
+    "ConductanceEstimate": "poreprobe.bench.conductance",
+    "SegmentResistance": "poreprobe.bench.conductance",
+    "access_resistance_ohm": "poreprobe.bench.conductance",
+    "series_resistance": "poreprobe.bench.conductance",
+    "BathConductivity": "poreprobe.bench.electrolyte",
+    "bath_conductivity": "poreprobe.bench.electrolyte",
+    "InputError": "poreprobe.errors",
+    "PoreNotFoundError": "poreprobe.errors",
+    "PoreprobeError": "poreprobe.errors",
+    "QualityWarning": "poreprobe.errors",
+    "IONS": "poreprobe.bench.ions",
+    "Ion": "poreprobe.bench.ions",
+    "get_ion": "poreprobe.bench.ions",
+    "AtomSpheres": "poreprobe.geometry.kernel",
+    "clearance_A": "poreprobe.geometry.kernel",
+    "PoreLining": "poreprobe.geometry.lining",
+    "pore_lining": "poreprobe.geometry.lining",
+    "CaptureMatch": "poreprobe.bench.match",
+    "match_capture_radius": "poreprobe.bench.match",
+    "match_scan": "poreprobe.bench.match",
+    "ProbeScan": "poreprobe.geometry.probes",
+    "capture_radius_at": "poreprobe.geometry.probes",
+    "probe_scan": "poreprobe.geometry.probes",
+    "RadiusProfile": "poreprobe.geometry.profile",
+    "radius_profile": "poreprobe.geometry.profile",
+    "QualityReport": "poreprobe.checks.quality",
+    "check_model": "poreprobe.checks.quality",
+    "RADIUS_SETS": "poreprobe.io.radii",
+    "atom_radii_A": "poreprobe.io.radii",
+    "get_radius_set": "poreprobe.io.radii",
+    "ReachField": "poreprobe.geometry.reach",
+    "reach_field": "poreprobe.geometry.reach",
+    "PoreSegment": "poreprobe.geometry.segments",
+    "pore_extent": "poreprobe.geometry.segments",
+    "pore_segments": "poreprobe.geometry.segments",
+    "RatioFreeEnergy": "poreprobe.bench.side_split",
+    "SideResistanceSplit": "poreprobe.bench.side_split",
+    "ratio_free_energy": "poreprobe.bench.side_split",
+    "split_side_resistances": "poreprobe.bench.side_split",
+    "Atoms": "poreprobe.io.structure",
+    "atoms_from_atomgroup": "poreprobe.io.structure",
+    "make_atoms": "poreprobe.io.structure",
+    "read_structure": "poreprobe.io.structure",
+    "select": "poreprobe.io.structure",
+    "superpose": "poreprobe.geometry.superpose",
+    "subunit_deviation": "poreprobe.geometry.symmetry",
+    "CenterLine": "poreprobe.figures.viewer_export",
+    "FieldGrid": "poreprobe.figures.viewer_export",
+    "PoreSurface": "poreprobe.figures.viewer_export",
+    "center_line": "poreprobe.figures.viewer_export",
+    "clearance_grid": "poreprobe.figures.viewer_export",
+    "pore_surface": "poreprobe.figures.viewer_export",
+    "reach_grid": "poreprobe.figures.viewer_export",
+    "write_center_line": "poreprobe.figures.viewer_export",
+    "write_map": "poreprobe.figures.viewer_export",
+    "write_mesh": "poreprobe.figures.viewer_export",
+    "VISCOGENS": "poreprobe.bench.viscosity",
+    "DiffusionEstimate": "poreprobe.bench.viscosity",
+    "diffusion_coefficient": "poreprobe.bench.viscosity",
+    "water_viscosity_mPa_s": "poreprobe.bench.viscosity",
+    "PoreProfileAnalysis": "poreprobe.scale.trajectory",
+    "TrajectoryProfiles": "poreprobe.scale.trajectory",
+    "profile_trajectory": "poreprobe.scale.trajectory",
+    "DaskClientBackend": "poreprobe.scale.parallel",
+}
 
 __all__ = [
     "__version__",
@@ -80,22 +96,27 @@ __all__ = [
     "Atoms",
     "atoms_from_atomgroup",
     "AtomSpheres",
-    "bath_conductivity",
-    "BathConductivity",
     "BatchRow",
     "BatchSummary",
+    "bath_conductivity",
+    "BathConductivity",
     "capture_radius_at",
     "capture_radius_from_current_A",
     "CaptureMatch",
     "CaptureRadiusEstimate",
+    "center_line",
+    "CenterLine",
     "check_model",
     "clearance_A",
+    "clearance_grid",
     "compare_models",
     "ConductanceEstimate",
+    "DaskClientBackend",
     "diffusion_coefficient",
     "diffusion_limited_current_pA",
     "DiffusionEstimate",
     "estimate_capture_radius",
+    "FieldGrid",
     "find_pore_axis",
     "get_ion",
     "get_radius_set",
@@ -109,14 +130,18 @@ __all__ = [
     "pore_extent",
     "pore_lining",
     "pore_segments",
-    "profile_files",
+    "pore_surface",
     "PoreAxis",
     "PoreLining",
     "PoreNotFoundError",
     "PoreprobeError",
+    "PoreProfileAnalysis",
     "PoreSegment",
+    "PoreSurface",
     "probe_scan",
     "ProbeScan",
+    "profile_files",
+    "profile_trajectory",
     "QualityReport",
     "QualityWarning",
     "radius_profile",
@@ -125,6 +150,7 @@ __all__ = [
     "ratio_free_energy",
     "RatioFreeEnergy",
     "reach_field",
+    "reach_grid",
     "ReachField",
     "read_structure",
     "SegmentResistance",
@@ -134,33 +160,25 @@ __all__ = [
     "split_side_resistances",
     "subunit_deviation",
     "superpose",
+    "TrajectoryProfiles",
     "VISCOGENS",
     "water_viscosity_mPa_s",
-    # 3-D exports for molecular viewers (figures: import poreprobe.plots)
-    "CenterLine",
-    "FieldGrid",
-    "PoreSurface",
-    "center_line",
-    "clearance_grid",
-    "pore_surface",
-    "reach_grid",
     "write_center_line",
     "write_map",
     "write_mesh",
 ]
 
-#: Names whose modules import MDAnalysis's analysis machinery or dask: loaded on first use.
-_LAZY_EXPORTS = {
-    "PoreProfileAnalysis": "poreprobe.trajectory",
-    "TrajectoryProfiles": "poreprobe.trajectory",
-    "profile_trajectory": "poreprobe.trajectory",
-    "DaskClientBackend": "poreprobe.parallel",
-}
+
+def __getattr__(name: str):
+    module = _EXPORTS.get(name)
+    if module is None:
+        raise AttributeError(f"module 'poreprobe' has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
 
 
-def __getattr__(name):
-    if name in _LAZY_EXPORTS:
-        import importlib
-
-        return getattr(importlib.import_module(_LAZY_EXPORTS[name]), name)
-    raise AttributeError(f"module 'poreprobe' has no attribute {name!r}")
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_EXPORTS))

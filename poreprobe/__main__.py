@@ -1,5 +1,5 @@
 """``python -m poreprobe``."""
 
-from poreprobe.cli import main
+from poreprobe.cli.main import main
 
 raise SystemExit(main())

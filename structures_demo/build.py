@@ -25,7 +25,7 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 def build(folder: str) -> list[str]:
     """Write every demo file into ``folder``; return the file names."""
     sys.path.insert(0, os.path.dirname(HERE))
-    from poreprobe.demo_channels import write_demo_files
+    from poreprobe.demo.channels import write_demo_files
 
     return sorted(os.path.basename(p) for p in write_demo_files(folder).values())
 

@@ -2,7 +2,7 @@
 
 The invented trajectory: a breathing hourglass pore on the move.
 
-Frame t is the hourglass ring stack of :func:`poreprobe.synthetic.hourglass`
+Frame t is the hourglass ring stack of :func:`poreprobe.geometry.synthetic.hourglass`
 (waist 4 Å, ends 9 Å, 21 rings 1 Å apart, 32 carbon atoms per ring, four chains),
 with every ring radius shifted by ``-AMPLITUDE_A * sin(2 pi t / PERIOD)`` (the
 breathing), then turned and shifted by a rigid motion drawn from a seeded
@@ -15,7 +15,7 @@ import os
 
 import numpy as np
 
-from poreprobe.synthetic import ring_stack
+from poreprobe.geometry.synthetic import ring_stack
 
 AMPLITUDE_A = 1.2
 PERIOD = 8
@@ -63,7 +63,7 @@ def write_trajectory(folder) -> tuple[str, str]:
 
     import MDAnalysis
 
-    from poreprobe.writer import write_structure
+    from poreprobe.io.writer import write_structure
 
     stack = ring_stack(ring_radii(0), RING_Z_A, atoms_per_ring=32, chains=4)
     pdb = str(folder / "breathing.pdb")

@@ -7,8 +7,8 @@ import os
 import numpy as np
 import pytest
 
-from poreprobe import synthetic
-from poreprobe.writer import write_structure
+from poreprobe.geometry import synthetic
+from poreprobe.io.writer import write_structure
 
 
 def mdanalysis_test_file(name: str) -> str:

@@ -1,8 +1,8 @@
-"""The invented test tetramer: four ideal helices of real residues (see poreprobe.helices)."""
+"""The invented test tetramer: four ideal helices of real residues (see poreprobe.demo.helices)."""
 
 from __future__ import annotations
 
-from poreprobe.helices import SEQUENCE, helix_bundle
+from poreprobe.demo.helices import SEQUENCE, helix_bundle
 
 __all__ = ["SEQUENCE", "build_channel"]
 

@@ -3,8 +3,8 @@ import pytest
 from scipy.spatial.transform import Rotation
 
 from poreprobe import InputError, PoreAxis, find_pore_axis, read_structure
-from poreprobe import synthetic as syn
-from poreprobe.axis import equivalent_chains, symmetry_axis
+from poreprobe.geometry import synthetic as syn
+from poreprobe.geometry.axis import equivalent_chains, symmetry_axis
 
 
 def _hourglass_rings():

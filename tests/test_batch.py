@@ -1,4 +1,4 @@
-"""Tests of poreprobe.batch: one row per file, failures reported, the batch goes on."""
+"""Tests of poreprobe.scale.batch: one row per file, failures reported, the batch goes on."""
 
 from __future__ import annotations
 
@@ -7,10 +7,10 @@ import pytest
 from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 
 from poreprobe import atom_radii_A, find_pore_axis, radius_profile, read_structure
-from poreprobe.batch import BatchSummary, batch_csv, expand_paths, profile_files
 from poreprobe.errors import InputError
-from poreprobe.synthetic import ring_stack
-from poreprobe.writer import write_structure
+from poreprobe.geometry.synthetic import ring_stack
+from poreprobe.io.writer import write_structure
+from poreprobe.scale.batch import BatchSummary, batch_csv, expand_paths, profile_files
 
 
 @pytest.fixture(scope="module")
@@ -109,7 +109,7 @@ def test_bad_options(models, kwargs, match):
 
 
 def test_capture_radii_per_file_equal_scan(models, tmp_path):
-    from poreprobe.probes import probe_scan
+    from poreprobe.geometry.probes import probe_scan
 
     files = [str(models / "model_0.pdb"), str(models / "missing.pdb")]
     summary = profile_files(files, step_A=0.5, capture_probe_radii_A=[0.5, 1.0])
@@ -130,7 +130,7 @@ def test_capture_radii_per_file_equal_scan(models, tmp_path):
 
 
 def test_check_counts_equal_readiness_report(gramicidin_pdb, models):
-    from poreprobe.quality import SEVERITIES, check_model
+    from poreprobe.checks.quality import SEVERITIES, check_model
 
     summary = profile_files(
         [gramicidin_pdb, str(models / "missing.pdb")], step_A=0.5, check=True, ion="Na"

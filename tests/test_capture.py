@@ -9,7 +9,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 from scipy import constants
 
-from poreprobe.capture import (
+from poreprobe.bench.capture import (
     FARADAY_C_PER_MOL,
     A_to_pA,
     angstrom_to_m,
@@ -22,8 +22,8 @@ from poreprobe.capture import (
     mol_per_m3_to_mM,
     pA_to_A,
 )
+from poreprobe.bench.ions import IONS, nernst_einstein_diffusion_m2_per_s
 from poreprobe.errors import InputError, QualityWarning
-from poreprobe.ions import IONS, nernst_einstein_diffusion_m2_per_s
 
 # --- constants and ion data -----------------------------------------------------------
 

@@ -4,10 +4,10 @@ import numpy as np
 import pytest
 from helix_channel import build_channel
 
-from poreprobe.clashes import bond_graph, find_clashes
 from poreprobe.errors import InputError
-from poreprobe.radii import atom_radii_A
-from poreprobe.residues import STANDARD_HEAVY_ATOMS
+from poreprobe.geometry.clashes import bond_graph, find_clashes
+from poreprobe.io.radii import atom_radii_A
+from poreprobe.io.residues import STANDARD_HEAVY_ATOMS
 
 
 @pytest.fixture(scope="module")

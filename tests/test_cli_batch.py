@@ -7,9 +7,9 @@ import json
 import pytest
 from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 
-from poreprobe.cli import main
-from poreprobe.synthetic import ring_stack
-from poreprobe.writer import write_structure
+from poreprobe.cli.main import main
+from poreprobe.geometry.synthetic import ring_stack
+from poreprobe.io.writer import write_structure
 
 
 @pytest.fixture(scope="module")

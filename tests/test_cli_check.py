@@ -6,9 +6,9 @@ import numpy as np
 import pytest
 from helix_channel import build_channel
 
-from poreprobe.cli import main
-from poreprobe.structure import make_atoms
-from poreprobe.writer import write_structure
+from poreprobe.cli.main import main
+from poreprobe.io.structure import make_atoms
+from poreprobe.io.writer import write_structure
 
 
 @pytest.fixture(scope="module")

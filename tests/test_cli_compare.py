@@ -6,8 +6,8 @@ import numpy as np
 import pytest
 from helix_channel import build_channel
 
-from poreprobe.cli import main
-from poreprobe.writer import write_structure
+from poreprobe.cli.main import main
+from poreprobe.io.writer import write_structure
 
 
 @pytest.fixture(scope="module")

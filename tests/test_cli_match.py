@@ -5,9 +5,9 @@ import json
 import numpy as np
 import pytest
 
-from poreprobe.capture import diffusion_limited_current_pA, estimate_capture_radius
-from poreprobe.cli import main
-from poreprobe.viscosity import diffusion_coefficient
+from poreprobe.bench.capture import diffusion_limited_current_pA, estimate_capture_radius
+from poreprobe.bench.viscosity import diffusion_coefficient
+from poreprobe.cli.main import main
 
 FAST = ["--mc-samples", "2000"]
 
@@ -205,7 +205,7 @@ def test_structure_match_cylinder(c4_cylinder_pdb, tmp_path):
 
 def test_structure_match_equals_api(c4_cylinder_pdb, tmp_path):
     from poreprobe import find_pore_axis, probe_scan, read_structure
-    from poreprobe.match import match_scan
+    from poreprobe.bench.match import match_scan
 
     d = run_json(
         tmp_path,

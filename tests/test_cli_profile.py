@@ -3,7 +3,7 @@ import os
 
 import pytest
 
-from poreprobe.cli import main
+from poreprobe.cli.main import main
 
 
 def _run(argv, capsys):

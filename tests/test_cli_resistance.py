@@ -6,11 +6,11 @@ import numpy as np
 import pytest
 
 import poreprobe
-from poreprobe import synthetic
-from poreprobe.cli import main
-from poreprobe.cli_resistance import parse_conductances
-from poreprobe.conductance import series_resistance
-from poreprobe.writer import write_structure
+from poreprobe.bench.conductance import series_resistance
+from poreprobe.cli.main import main
+from poreprobe.cli.resistance import parse_conductances
+from poreprobe.geometry import synthetic
+from poreprobe.io.writer import write_structure
 
 AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
 

@@ -5,11 +5,11 @@ import json
 import numpy as np
 import pytest
 
-from poreprobe.cli import main
-from poreprobe.cli_scan import parse_probe_range
+from poreprobe.cli.main import main
+from poreprobe.cli.scan import parse_probe_range
 from poreprobe.errors import InputError
-from poreprobe.synthetic import ring_stack
-from poreprobe.writer import write_structure
+from poreprobe.geometry.synthetic import ring_stack
+from poreprobe.io.writer import write_structure
 
 R_C = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)
 

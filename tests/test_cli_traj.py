@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from _trajectory_data import write_trajectory
 
-from poreprobe.cli import main
+from poreprobe.cli.main import main
 
 pytestmark = pytest.mark.filterwarnings("ignore:Reader has no dt information")
 

@@ -5,9 +5,9 @@ import pytest
 from helix_channel import build_channel
 
 import poreprobe
-from poreprobe.compare import align_model, compare_models
+from poreprobe.checks.compare import align_model, compare_models
 from poreprobe.errors import InputError
-from poreprobe.superpose import rotation_matrix
+from poreprobe.geometry.superpose import rotation_matrix
 
 
 @pytest.fixture(scope="module")

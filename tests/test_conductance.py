@@ -1,4 +1,4 @@
-"""Series-resistance model, inverse analysis and energetics (poreprobe.conductance)."""
+"""Series-resistance model, inverse analysis and energetics (poreprobe.bench.conductance)."""
 
 import math
 import warnings
@@ -11,12 +11,16 @@ from scipy import constants
 from scipy.spatial.transform import Rotation
 
 import poreprobe
-from poreprobe import synthetic
-from poreprobe.conductance import access_resistance_ohm, pore_integral_per_m, series_resistance
+from poreprobe.bench.conductance import (
+    access_resistance_ohm,
+    pore_integral_per_m,
+    series_resistance,
+)
+from poreprobe.bench.side_split import ratio_free_energy, split_side_resistances
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
-from poreprobe.profile import RadiusProfile
-from poreprobe.segments import PoreExtent, pore_extent, pore_segments
-from poreprobe.side_split import ratio_free_energy, split_side_resistances
+from poreprobe.geometry import synthetic
+from poreprobe.geometry.profile import RadiusProfile
+from poreprobe.geometry.segments import PoreExtent, pore_extent, pore_segments
 
 BONDI_C_A = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)
 Z_AXIS = poreprobe.PoreAxis([0, 0, 0], [0, 0, 1], "user")

@@ -7,8 +7,8 @@ import numpy as np
 import pytest
 
 import poreprobe
-from poreprobe.cli import main
-from poreprobe.demo import DEMO_FILES, demo_path
+from poreprobe.cli.main import main
+from poreprobe.demo.run import DEMO_FILES, demo_path
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 K_CRYSTAL_RADIUS_A = 1.38  # Shannon 1976, Acta Cryst. A32:751, K+ CN 6
@@ -89,7 +89,7 @@ def test_demo_files_are_found_and_readable():
     assert sorted(set(atoms.chain)) == ["A", "B", "C", "D"]
     same = poreprobe.read_structure(demo_path("demo_channel", "pdb"))
     np.testing.assert_allclose(same.coords_A, atoms.coords_A, atol=1e-9)
-    traj = poreprobe.structure.open_universe(
+    traj = poreprobe.io.structure.open_universe(
         demo_path("demo_channel", "pdb"), demo_path("demo_breathing")
     )
     assert len(traj.trajectory) == 50
@@ -103,8 +103,8 @@ def test_bad_demo_name():
 
 
 def test_bundled_files_are_the_builder_models():
-    # the committed files are what poreprobe.demo_channels builds, to file precision
-    from poreprobe import demo_channels
+    # the committed files are what poreprobe.demo.channels builds, to file precision
+    from poreprobe.demo import channels as demo_channels
 
     for name, variant in (
         ("demo_channel", "open"),

@@ -1,4 +1,4 @@
-"""Tests of the invented demo channels (poreprobe.demo) and of structures_demo/build.py."""
+"""Tests of the invented demo channels (poreprobe.demo.run) and of structures_demo/build.py."""
 
 from __future__ import annotations
 
@@ -7,10 +7,10 @@ import pytest
 from scipy.spatial import cKDTree
 
 import poreprobe
-from poreprobe import demo_channels as demo
+from poreprobe.bench.ions import get_ion
+from poreprobe.demo import channels as demo
 from poreprobe.errors import InputError
-from poreprobe.ions import get_ion
-from poreprobe.radii import atom_radii_A
+from poreprobe.io.radii import atom_radii_A
 
 #: Dehydrated K+ radius, Shannon 1976 (Acta Cryst. A32:751), CN 6: 1.38 Å.
 K_CRYSTAL_RADIUS_A = get_ion("K").crystal_radius_A

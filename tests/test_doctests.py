@@ -4,13 +4,13 @@ import doctest
 
 import pytest
 
-import poreprobe.demo_channels
-import poreprobe.peptide
-import poreprobe.structure
+import poreprobe.demo.channels
+import poreprobe.demo.peptide
+import poreprobe.io.structure
 
 
 @pytest.mark.parametrize(
-    "module", [poreprobe.peptide, poreprobe.demo_channels, poreprobe.structure]
+    "module", [poreprobe.demo.peptide, poreprobe.demo.channels, poreprobe.io.structure]
 )
 def test_docstring_examples(module):
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS)

@@ -1,11 +1,11 @@
-"""Bath conductivity tables (poreprobe.electrolyte)."""
+"""Bath conductivity tables (poreprobe.bench.electrolyte)."""
 
 import warnings
 
 import numpy as np
 import pytest
 
-from poreprobe.electrolyte import (
+from poreprobe.bench.electrolyte import (
     CONDUCTIVITY_TABLES,
     bath_conductivity,
     kcl_molarity_mol_per_L,

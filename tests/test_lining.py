@@ -6,8 +6,8 @@ from helix_channel import build_channel
 
 import poreprobe
 from poreprobe.errors import InputError
-from poreprobe.lining import find_constrictions, lining_contacts, pore_lining
-from poreprobe.synthetic import expected_radius_A, ring_stack
+from poreprobe.geometry.lining import find_constrictions, lining_contacts, pore_lining
+from poreprobe.geometry.synthetic import expected_radius_A, ring_stack
 
 AXIS = poreprobe.PoreAxis([0, 0, 0], [0, 0, 1], "user")
 CARBON_A = 1.70  # Bondi 1964, Table I (carbon)

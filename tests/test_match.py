@@ -8,9 +8,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from poreprobe.bench.ions import get_ion
+from poreprobe.bench.match import match_capture_radius, match_scan
 from poreprobe.errors import InputError, QualityWarning
-from poreprobe.ions import get_ion
-from poreprobe.match import match_capture_radius, match_scan
 
 P = np.linspace(0.0, 5.0, 11)  # probe radii 0, 0.5, ..., 5 Å
 

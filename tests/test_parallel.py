@@ -1,4 +1,4 @@
-"""Tests of poreprobe.parallel: every backend gives the same trajectory and batch results.
+"""Tests of poreprobe.scale.parallel: every backend gives the same trajectory and batch results.
 
 One real dask.distributed LocalCluster (2 worker processes, 1 thread each) is started
 for this module; the client backend reaches it through its scheduler address, as it
@@ -14,11 +14,11 @@ import numpy as np
 import pytest
 from _trajectory_data import RING_Z_A, frame_coords, grm_models_path, ring_radii, write_trajectory
 
-from poreprobe.batch import profile_files
-from poreprobe.cli import main
+from poreprobe.cli.main import main
 from poreprobe.errors import InputError
-from poreprobe.parallel import DaskClientBackend, open_backend
-from poreprobe.trajectory import PoreProfileAnalysis, profile_trajectory
+from poreprobe.scale.batch import profile_files
+from poreprobe.scale.parallel import DaskClientBackend, open_backend
+from poreprobe.scale.trajectory import PoreProfileAnalysis, profile_trajectory
 
 pytestmark = pytest.mark.filterwarnings(
     "ignore:Reader has no dt information", "ignore:.*gives no time step"
@@ -159,8 +159,8 @@ def test_profile_trajectory_through_scheduler_address(cluster, breathing):
 
 
 def test_batch_same_on_every_backend(client, tmp_path):
-    from poreprobe.synthetic import ring_stack
-    from poreprobe.writer import write_structure
+    from poreprobe.geometry.synthetic import ring_stack
+    from poreprobe.io.writer import write_structure
 
     for t in range(3):
         stack = ring_stack(ring_radii(t), RING_Z_A, atoms_per_ring=32, chains=4)

@@ -1,4 +1,4 @@
-"""Tests of the polypeptide builder (poreprobe.peptide)."""
+"""Tests of the polypeptide builder (poreprobe.demo.peptide)."""
 
 from __future__ import annotations
 
@@ -7,8 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from poreprobe.errors import InputError
-from poreprobe.peptide import (
+from poreprobe.demo.peptide import (
     C_N_A,
     CA_C_A,
     N_CA_A,
@@ -20,6 +19,7 @@ from poreprobe.peptide import (
     place_atom,
     side_chain_atoms,
 )
+from poreprobe.errors import InputError
 
 
 def _angle_deg(a, b, c):

@@ -11,11 +11,12 @@ import numpy as np
 import pytest
 
 import poreprobe
-from poreprobe import plots, synthetic
-from poreprobe.cli import main
+from poreprobe.bench.ions import get_ion
+from poreprobe.cli.main import main
 from poreprobe.errors import InputError
-from poreprobe.export import to_json
-from poreprobe.ions import get_ion
+from poreprobe.figures import plots
+from poreprobe.geometry import synthetic
+from poreprobe.io.export import to_json
 
 # --------------------------------------------------------------------------- inputs
 
@@ -265,7 +266,7 @@ def test_profile_axes_carry_profile_and_ion_bands(profile_a):
     assert ax.get_ylim()[0] == 0 and ax.get_ylim()[1] >= np.nanmax(r)
     assert "bondi" in line.get_label()
     labels = [t.get_text() for t in ax.get_legend().get_texts()]
-    # crystal 1.38 and hydrated 3.31 Å: Shannon 1976 (CN 6) and Nightingale 1959, via poreprobe.ions
+    # crystal 1.38 and hydrated 3.31 Å: Shannon 1976 (CN 6) and Nightingale 1959, via poreprobe.bench.ions
     assert "K⁺ crystal radius 1.38 Å" in labels and "K⁺ hydrated radius 3.31 Å" in labels
     assert "open to bulk" in labels  # the wide ends count as open (max 5.5 Å)
     bands = {
@@ -470,7 +471,7 @@ def test_profile_input_errors_name_the_problem(bad, message):
 
 
 def test_profile_command_draws_its_figure(tmp_path, capsys):
-    from poreprobe.writer import write_structure
+    from poreprobe.io.writer import write_structure
 
     z = np.arange(-6, 6.1, 1.0)
     atoms = synthetic.ring_stack(4.0 + (z / 6) ** 2, z, atoms_per_ring=16)
@@ -629,7 +630,7 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
 
 def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
     """The real check JSON (issue 6 layout) carries a profile and its constrictions."""
-    from poreprobe.writer import write_structure
+    from poreprobe.io.writer import write_structure
 
     z = np.arange(-12.0, 12.1, 1.0)
     rings = np.interp(z, [-12, -8, -6, -4, -2, 2, 4, 8, 12], [8, 6, 4.3, 4.3, 7, 7, 3.3, 3.3, 8])

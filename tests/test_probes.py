@@ -1,4 +1,4 @@
-"""Tests of poreprobe.probes: probe-size scan, stop levels and capture radii.
+"""Tests of poreprobe.geometry.probes: probe-size scan, stop levels and capture radii.
 
 Expected values come from closed-form geometry derived here. Atom radius: carbon
 1.70 Å (Bondi 1964, J. Phys. Chem. 68:441, Table I), the default radius set.
@@ -14,9 +14,9 @@ from hypothesis import strategies as st
 from scipy.spatial.transform import Rotation
 
 from poreprobe import InputError, PoreAxis, ProbeScan, capture_radius_at, probe_scan
-from poreprobe.export import to_json
-from poreprobe.probes import DEFAULT_PROBE_RADII_A, profiles_csv, scan_csv
-from poreprobe.synthetic import cone, ring_stack
+from poreprobe.geometry.probes import DEFAULT_PROBE_RADII_A, profiles_csv, scan_csv
+from poreprobe.geometry.synthetic import cone, ring_stack
+from poreprobe.io.export import to_json
 
 R_C = 1.70  # Bondi 1964, Table I (carbon)
 Z_AXIS = PoreAxis([0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "user")

@@ -13,7 +13,7 @@ from poreprobe import (
     radius_profile,
     read_structure,
 )
-from poreprobe import synthetic as syn
+from poreprobe.geometry import synthetic as syn
 
 Z_AXIS = PoreAxis([0, 0, 0], [0, 0, 1], "user")
 CARBON_BONDI_A = 1.70  # Bondi 1964, Table I

@@ -11,13 +11,13 @@ import pytest
 from helix_channel import build_channel
 
 from poreprobe import read_structure
+from poreprobe.bench.ions import get_ion
+from poreprobe.checks.quality import check_model, classify
 from poreprobe.errors import InputError, QualityWarning
-from poreprobe.ions import get_ion
-from poreprobe.quality import check_model, classify
-from poreprobe.radii import RADIUS_SETS
-from poreprobe.structure import make_atoms
-from poreprobe.superpose import rotate_about
-from poreprobe.writer import write_structure
+from poreprobe.geometry.superpose import rotate_about
+from poreprobe.io.radii import RADIUS_SETS
+from poreprobe.io.structure import make_atoms
+from poreprobe.io.writer import write_structure
 
 PLANTED_CODES = {
     "missing-side-chain-atoms",
@@ -307,7 +307,7 @@ def test_published_gramicidin_model(gramicidin_pdb):
 
 
 def test_rigid_motion_leaves_the_report_unchanged(clean, clean_report):
-    from poreprobe.superpose import rotation_matrix
+    from poreprobe.geometry.superpose import rotation_matrix
 
     rot = rotation_matrix(np.array([0.3, -1.0, 0.4]) / np.linalg.norm([0.3, -1.0, 0.4]), 2.1)
     moved = clean.with_coords(clean.coords_A @ rot.T + [40.0, -3.0, 11.0])

@@ -5,7 +5,7 @@ import numpy as np
 import pytest
 
 from poreprobe import InputError, QualityWarning, atom_radii_A, get_radius_set, make_atoms
-from poreprobe.radii import RADIUS_SETS
+from poreprobe.io.radii import RADIUS_SETS
 
 
 @pytest.mark.parametrize("element", sorted(set(RADIUS_SETS["bondi"]) - {"D"}))

@@ -1,4 +1,4 @@
-"""Tests of poreprobe.reach: the pore grid, clearance on it and the reach field."""
+"""Tests of poreprobe.geometry.reach: the pore grid, clearance on it and the reach field."""
 
 from collections import deque
 
@@ -6,8 +6,8 @@ import numpy as np
 import pytest
 
 from poreprobe import InputError, PoreAxis, PoreNotFoundError, make_atoms, reach_field
-from poreprobe.kernel import AtomSpheres
-from poreprobe.synthetic import ring_stack
+from poreprobe.geometry.kernel import AtomSpheres
+from poreprobe.geometry.synthetic import ring_stack
 
 Z_AXIS = PoreAxis([0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "user")
 BONDI_C_A = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)

@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from poreprobe.residues import (
+from poreprobe.io.residues import (
     EQUIVALENT_ATOM_PAIRS,
     STANDARD_HEAVY_ATOMS,
     is_backbone,

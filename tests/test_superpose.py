@@ -6,7 +6,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from poreprobe.errors import InputError
-from poreprobe.superpose import (
+from poreprobe.geometry.superpose import (
     kabsch_rotation,
     rotation_axis_angle,
     rotation_matrix,

@@ -8,9 +8,9 @@ from helix_channel import build_channel
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from poreprobe.axis import aligned_residues, equivalent_chains, find_pore_axis
-from poreprobe.superpose import rotate_about, rotation_matrix
-from poreprobe.symmetry import subunit_deviation
+from poreprobe.geometry.axis import aligned_residues, equivalent_chains, find_pore_axis
+from poreprobe.geometry.superpose import rotate_about, rotation_matrix
+from poreprobe.geometry.symmetry import subunit_deviation
 
 
 @pytest.fixture(scope="module")

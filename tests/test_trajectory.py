@@ -1,4 +1,4 @@
-"""Tests of poreprobe.trajectory: per-frame profiles, statistics and closing frames."""
+"""Tests of poreprobe.scale.trajectory: per-frame profiles, statistics and closing frames."""
 
 from __future__ import annotations
 
@@ -20,8 +20,8 @@ from _trajectory_data import (
 
 from poreprobe import atom_radii_A, atoms_from_atomgroup, find_pore_axis, radius_profile
 from poreprobe.errors import InputError
-from poreprobe.synthetic import expected_radius_A
-from poreprobe.trajectory import (
+from poreprobe.geometry.synthetic import expected_radius_A
+from poreprobe.scale.trajectory import (
     PoreProfileAnalysis,
     TrajectoryProfiles,
     frames_csv,
@@ -69,7 +69,7 @@ def test_breathing_minimum_follows_geometry(breathing_fixed):
 
 
 def test_breathing_profile_matches_closed_form(breathing_fixed):
-    # exact on-axis profile of a ring stack (poreprobe.synthetic; geometry, Bondi 1964 r_C)
+    # exact on-axis profile of a ring stack (poreprobe.geometry.synthetic; geometry, Bondi 1964 r_C)
     ana = breathing_fixed
     inside = np.abs(ana.s_A) <= RING_Z_A.max()
     for t in range(N_FRAMES):
@@ -257,7 +257,7 @@ def test_package_exports_trajectory_names_lazily():
 
 
 def test_capture_radius_per_frame_equals_scan_of_that_frame(breathing):
-    from poreprobe.probes import capture_radius_at, probe_scan
+    from poreprobe.geometry.probes import capture_radius_at, probe_scan
 
     u = universe(*breathing)
     ana = PoreProfileAnalysis(
@@ -302,7 +302,7 @@ def test_bad_capture_options(breathing, kwargs, match):
 
 @pytest.mark.parametrize("step_A", [0.2, 0.3, 0.7])
 def test_grid_is_the_reference_planes_for_any_step(breathing, step_A):
-    from poreprobe.profile import plane_positions_A
+    from poreprobe.geometry.profile import plane_positions_A
 
     ag = universe(*breathing).select_atoms("protein")
     ana = PoreProfileAnalysis(ag, step_A=step_A)

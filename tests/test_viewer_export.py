@@ -7,13 +7,13 @@ import numpy as np
 import pytest
 
 import poreprobe
-from poreprobe import synthetic
-from poreprobe import viewer_export as ve
-from poreprobe.cli import main
+from poreprobe.cli.main import main
 from poreprobe.errors import InputError, PoreNotFoundError
-from poreprobe.kernel import AtomSpheres
-from poreprobe.radii import atom_radii_A
-from poreprobe.writer import write_structure
+from poreprobe.figures import viewer_export as ve
+from poreprobe.geometry import synthetic
+from poreprobe.geometry.kernel import AtomSpheres
+from poreprobe.io.radii import atom_radii_A
+from poreprobe.io.writer import write_structure
 
 SPACING_A = 0.5
 
@@ -269,7 +269,7 @@ def _read_ply(path):
 
 
 def test_mesh_files_read_back(hourglass, tmp_path):
-    from poreprobe.plots import radius_colors
+    from poreprobe.figures.plots import radius_colors
 
     surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
     ply, obj = tmp_path / "pore.ply", tmp_path / "pore.obj"

@@ -5,9 +5,8 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from poreprobe.errors import InputError
-from poreprobe.ions import get_ion
-from poreprobe.viscosity import (
+from poreprobe.bench.ions import get_ion
+from poreprobe.bench.viscosity import (
     VISCOGENS,
     WATER_VISCOSITY_TABLE,
     diffusion_coefficient,
@@ -16,6 +15,7 @@ from poreprobe.viscosity import (
     viscogen_viscosity_mPa_s,
     water_viscosity_mPa_s,
 )
+from poreprobe.errors import InputError
 
 # --- water --------------------------------------------------------------------------
 

@@ -2,7 +2,7 @@
 
 Run from the repository root: ``python docs/figures/make_figures.py``. The channel is
 our own invention (a four-chain ring stack with an inner gate, a cavity, a narrow
-filter and an outer vestibule, built by :mod:`poreprobe.synthetic`), so every number in
+filter and an outer vestibule, built by :mod:`poreprobe.geometry.synthetic`), so every number in
 these pictures is a model-based estimate on invented geometry, not a measurement.
 Each figure is drawn by ``poreprobe plot`` from the JSON the producing command wrote.
 """
@@ -18,9 +18,9 @@ import numpy as np
 # this checkout's poreprobe, whichever one is installed
 sys.path.insert(0, os.path.abspath(os.path.join(os.path.dirname(__file__), "..", "..")))
 
-from poreprobe import synthetic  # noqa: E402
-from poreprobe.cli import main  # noqa: E402
-from poreprobe.writer import write_structure  # noqa: E402
+from poreprobe.cli.main import main  # noqa: E402
+from poreprobe.geometry import synthetic  # noqa: E402
+from poreprobe.io.writer import write_structure  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DPI = "150"
@@ -171,7 +171,7 @@ def render_mesh(ply: str, png: str) -> None:
     from matplotlib.figure import Figure
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
-    from poreprobe import plots
+    from poreprobe.figures import plots
 
     xyz, rgb, faces = read_ply(ply)
     back = xyz[faces].mean(axis=1)[:, 1] > 0

@@ -1,0 +1,1 @@
+"""Readiness checks of a model, permeation verdicts and comparison of models."""

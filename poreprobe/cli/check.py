@@ -1,0 +1,198 @@
+"""``poreprobe check``: is this model ready? Lining residues, findings and a verdict."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from poreprobe.bench.ions import IONS
+from poreprobe.checks.quality import (
+    B_FACTOR_SIGMAS,
+    NEAR_DISTANCE_A,
+    SYMMETRY_TOLERANCE_A,
+    check_model,
+)
+from poreprobe.cli.common import (
+    add_axis_args,
+    add_output_args,
+    add_profile_args,
+    add_structure_args,
+    load_axis,
+    radius_set_from_args,
+    say,
+)
+from poreprobe.geometry.clashes import CLASH_FRACTION
+from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
+from poreprobe.io.export import to_csv, to_json
+from poreprobe.io.radii import atom_radii_A
+from poreprobe.io.structure import read_structure
+
+
+def add_lining_profile_args(parser) -> None:
+    """The shared profile options plus --constriction-radius-A (also used by ``compare``)."""
+    g = add_profile_args(parser)
+    g.add_argument(
+        "--constriction-radius-A",
+        type=float,
+        default=CONSTRICTION_RADIUS_A,
+        help="local minima of the radius at or below this (Å) are constrictions "
+        f"(default {CONSTRICTION_RADIUS_A:g})",
+    )
+
+
+def register(sub) -> None:
+    p = sub.add_parser(
+        "check",
+        help="is this model ready? lining residues, model checks, permeation verdict",
+        description="Readiness report for the residues around the pore: lining residues and "
+        "constrictions, findings sorted by severity, the permeation verdict for "
+        "an ion and the sensitivity of the narrowest radius. Waters, ions and "
+        "hetero groups are always read (to find those inside the pore); "
+        "--keep-waters/--keep-ions/--keep-hetero count them as pore walls. "
+        "Model-based estimates, not measurements.",
+    )
+    add_structure_args(p)
+    add_axis_args(p)
+    add_lining_profile_args(p)
+    g = p.add_argument_group("checks")
+    g.add_argument(
+        "--ion",
+        default="K",
+        help=f"ion for the permeation verdict: {', '.join(IONS)} (crystal and "
+        "hydrated radii in Å from Shannon 1976 and Nightingale 1959; default K)",
+    )
+    g.add_argument(
+        "--lining-distance-A",
+        type=float,
+        default=LINING_DISTANCE_A,
+        help="atoms whose surface is within this distance (Å) of a profile sphere "
+        f"line the pore (default {LINING_DISTANCE_A:g})",
+    )
+    g.add_argument(
+        "--near-distance-A",
+        type=float,
+        default=NEAR_DISTANCE_A,
+        help="residues within this distance (Å) of the profile spheres are "
+        f"checked (default {NEAR_DISTANCE_A:g})",
+    )
+    g.add_argument(
+        "--clash-fraction",
+        type=float,
+        default=CLASH_FRACTION,
+        help="heavy atoms closer than this fraction of their radius sum clash "
+        f"(dimensionless, default {CLASH_FRACTION:g})",
+    )
+    g.add_argument(
+        "--b-factor-sigmas",
+        type=float,
+        default=B_FACTOR_SIGMAS,
+        help="flag residues whose mean B-factor (Å²) exceeds the chain median by "
+        f"this many robust SDs (dimensionless, default {B_FACTOR_SIGMAS:g})",
+    )
+    g.add_argument(
+        "--symmetry-tolerance-A",
+        type=float,
+        default=SYMMETRY_TOLERANCE_A,
+        help="report residues deviating more than this (Å) from the symmetric "
+        f"consensus (default {SYMMETRY_TOLERANCE_A:g})",
+    )
+    add_output_args(p)
+    p.set_defaults(func=run)
+
+
+def walls_from_args(args) -> tuple[str, ...]:
+    """Atom kinds counted as pore walls: polymer plus whatever --keep-* asks for."""
+    return ("polymer",) + tuple(
+        kind
+        for kind, keep in (
+            ("hetero", args.keep_hetero),
+            ("ion", args.keep_ions),
+            ("water", args.keep_waters),
+        )
+        if keep
+    )
+
+
+def lining_csv(report, path=None) -> str:
+    """CSV of the per-residue lining table (lengths in Å)."""
+    rows = (
+        (
+            r.chain,
+            r.resname,
+            r.resid,
+            r.icode,
+            r.s_min_A,
+            r.s_max_A,
+            r.closest_A,
+            r.closest_atom,
+            r.part,
+        )
+        for r in report.lining.residues
+    )
+    comments = (
+        f"poreprobe {report.version} pore-lining residues of {report.source}",
+        f"radius set {report.profile.radius_set}; lining distance "
+        f"{report.lining.lining_distance_A:g} Å; model-based estimates; lengths in Å",
+    )
+    return to_csv(
+        (
+            "chain",
+            "resname",
+            "resid",
+            "icode",
+            "s_min_A",
+            "s_max_A",
+            "closest_A",
+            "closest_atom",
+            "part",
+        ),
+        rows,
+        path,
+        comments,
+    )
+
+
+def run(args) -> int:
+    atoms = read_structure(
+        args.structure,
+        trajectory=args.trajectory,
+        model=args.model,
+        frame=args.frame,
+        altloc=args.altloc,
+        hydrogens=True,
+        waters=True,
+        ions=True,
+        hetero=True,
+        selection=args.select,
+    )
+    rset = radius_set_from_args(args)
+    walls = walls_from_args(args)
+    wall_mask = np.isin(atoms.kind, walls)
+    if args.no_hydrogens:
+        wall_mask &= ~atoms.is_hydrogen
+    wall_atoms = atoms.subset(wall_mask)
+    axis = load_axis(args, wall_atoms, atom_radii_A(wall_atoms, rset))
+    report = check_model(
+        atoms,
+        axis=axis,
+        ion=args.ion,
+        radii=rset,
+        walls=walls,
+        hydrogens=not args.no_hydrogens,
+        step_A=args.step_A,
+        margin_A=args.margin_A,
+        max_radius_A=args.max_radius_A,
+        lining_distance_A=args.lining_distance_A,
+        near_distance_A=args.near_distance_A,
+        constriction_radius_A=args.constriction_radius_A,
+        clash_fraction=args.clash_fraction,
+        b_factor_sigmas=args.b_factor_sigmas,
+        symmetry_tolerance_A=args.symmetry_tolerance_A,
+        warn=False,
+    )
+    if args.json:
+        to_json(report, args.json)
+    if args.csv:
+        lining_csv(report, args.csv)
+    for line in report.report_lines():
+        say(args, line)
+    return 0

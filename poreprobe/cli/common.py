@@ -1,0 +1,391 @@
+"""Options shared by several commands, and the loaders behind them."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from poreprobe.geometry.axis import AXIS_METHODS, PoreAxis, find_pore_axis
+from poreprobe.io.radii import DEFAULT_RADIUS_SET, RADIUS_SETS, atom_radii_A, get_radius_set
+from poreprobe.io.structure import Atoms, read_structure
+
+
+def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = True) -> None:
+    """STRUCTURE and the options that control reading and cleaning it."""
+    if positional:
+        parser.add_argument(
+            "structure",
+            metavar="STRUCTURE",
+            help="channel model: PDB/mmCIF (optionally .gz) or any file "
+            "MDAnalysis reads (GRO, PSF, XYZ, ...)",
+        )
+    g = parser.add_argument_group("structure input")
+    g.add_argument(
+        "--trajectory",
+        metavar="FILE",
+        help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD)",
+    )
+    g.add_argument(
+        "--model",
+        type=int,
+        default=0,
+        metavar="N",
+        help="0-based model index of a multi-model PDB/mmCIF (default 0)",
+    )
+    g.add_argument(
+        "--frame",
+        type=int,
+        default=0,
+        metavar="N",
+        help="0-based frame of a trajectory (default 0)",
+    )
+    g.add_argument(
+        "--altloc",
+        default="occupancy",
+        metavar="POLICY",
+        help="alternate locations: 'occupancy' (highest, default), 'first', or one altloc letter",
+    )
+    g.add_argument(
+        "--no-hydrogens",
+        action="store_true",
+        help="drop hydrogen atoms (default: keep those in the file)",
+    )
+    g.add_argument("--keep-waters", action="store_true", help="keep water molecules")
+    g.add_argument("--keep-ions", action="store_true", help="keep ions")
+    g.add_argument(
+        "--keep-hetero", action="store_true", help="keep ligands, lipids and other hetero groups"
+    )
+    g.add_argument(
+        "--select", metavar="SEL", help="MDAnalysis selection limiting the atoms that count"
+    )
+    add_radii_args(g)
+
+
+def add_radii_args(group) -> None:
+    """--radii and --radii-file."""
+    group.add_argument(
+        "--radii",
+        default=DEFAULT_RADIUS_SET,
+        choices=sorted(RADIUS_SETS),
+        help="van der Waals radius set (Å), default bondi (Bondi 1964)",
+    )
+    group.add_argument(
+        "--radii-file",
+        metavar="TOML",
+        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
+    )
+
+
+def add_axis_args(parser: argparse.ArgumentParser) -> None:
+    """Options that choose and orient the pore axis."""
+    g = parser.add_argument_group("pore axis")
+    g.add_argument(
+        "--axis-method",
+        default="auto",
+        choices=AXIS_METHODS,
+        help="how to find the axis (default auto: n-fold symmetry axis of "
+        "equivalent chains, else the most open principal axis)",
+    )
+    g.add_argument(
+        "--axis-point",
+        nargs=3,
+        type=float,
+        metavar=("X", "Y", "Z"),
+        help="a point on a user axis (Å)",
+    )
+    g.add_argument(
+        "--axis-direction",
+        nargs=3,
+        type=float,
+        metavar=("DX", "DY", "DZ"),
+        help="direction of a user axis (unitless; any length but zero, only the direction counts)",
+    )
+    g.add_argument(
+        "--axis-selections",
+        nargs=2,
+        metavar=("SEL1", "SEL2"),
+        help="two selections whose centroids define the axis (s grows 1 -> 2)",
+    )
+    g.add_argument(
+        "--entry",
+        metavar="SEL",
+        help="atoms at the pore end where ions enter; s increases from there",
+    )
+
+
+def add_profile_args(parser: argparse.ArgumentParser, *, step_A: float = 0.2):
+    """--step-A, --margin-A and --max-radius-A; returns the argument group for more."""
+    g = parser.add_argument_group("profile")
+    g.add_argument(
+        "--step-A", type=float, default=step_A, help=f"plane spacing in Å (default {step_A:g})"
+    )
+    g.add_argument(
+        "--margin-A",
+        type=float,
+        default=2.0,
+        help="extension beyond the protein along the axis, Å (default 2)",
+    )
+    g.add_argument(
+        "--max-radius-A",
+        type=float,
+        default=20.0,
+        help="planes wider than this (Å) count as open bulk (default 20)",
+    )
+    return g
+
+
+def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> None:
+    """--json, --csv and --quiet."""
+    g = parser.add_argument_group("output")
+    g.add_argument("--json", metavar="FILE", help="write the result as JSON")
+    if csv:
+        g.add_argument("--csv", metavar="FILE", help="write the table as CSV")
+    g.add_argument(
+        "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
+    )
+
+
+def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
+    """Read the structure named on the command line with its cleaning options."""
+    return read_structure(
+        path or args.structure,
+        trajectory=args.trajectory,
+        model=args.model,
+        frame=args.frame,
+        altloc=args.altloc,
+        hydrogens=not args.no_hydrogens,
+        waters=args.keep_waters,
+        ions=args.keep_ions,
+        hetero=args.keep_hetero,
+        selection=args.select,
+    )
+
+
+def radius_set_from_args(args: argparse.Namespace):
+    """The radius set named by --radii and --radii-file."""
+    return get_radius_set(args.radii, args.radii_file)
+
+
+def load_axis(args: argparse.Namespace, atoms: Atoms, radii_A=None) -> PoreAxis:
+    """Find the pore axis as the command-line options ask."""
+    if radii_A is None:
+        radii_A = atom_radii_A(atoms, radius_set_from_args(args))
+    return find_pore_axis(
+        atoms,
+        method=args.axis_method,
+        point_A=args.axis_point,
+        direction=args.axis_direction,
+        selections=args.axis_selections,
+        entry=args.entry,
+        radii_A=radii_A,
+    )
+
+
+def load_model(args: argparse.Namespace):
+    """Atoms, radius set, per-atom radii and pore axis, as the command-line options ask."""
+    atoms = load_atoms(args)
+    rset = radius_set_from_args(args)
+    radii_A = atom_radii_A(atoms, rset)
+    return atoms, rset, radii_A, load_axis(args, atoms, radii_A)
+
+
+def say(args: argparse.Namespace, text: str = "") -> None:
+    """Print a summary line unless --quiet."""
+    if not getattr(args, "quiet", False):
+        sys.stdout.write(text + "\n")
+
+
+def add_backend_args(parser: argparse.ArgumentParser):
+    """--backend, --workers and --scheduler: where the work runs. Returns the option group."""
+    g = parser.add_argument_group("where it runs")
+    g.add_argument(
+        "--backend",
+        default="serial",
+        choices=("serial", "multiprocessing", "dask"),
+        help="serial (default), a local process pool, or dask (a local cluster, "
+        "or the scheduler given by --scheduler)",
+    )
+    g.add_argument(
+        "--workers",
+        type=int,
+        default=None,
+        metavar="N",
+        help="worker processes for local runs (count; default 2, or all the "
+        "workers of the --scheduler cluster)",
+    )
+    g.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
+        "(implies --backend dask; files must be readable by every worker)",
+    )
+    return g
+
+
+def backend_from_args(args: argparse.Namespace) -> tuple[str, int | None]:
+    """The backend name and worker count (None: all workers of the --scheduler cluster)."""
+    backend = "dask" if args.scheduler else args.backend
+    if args.scheduler and args.backend not in ("serial", "dask"):
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--scheduler needs --backend dask, got --backend {args.backend}")
+    workers = args.workers
+    if workers is None and not args.scheduler:
+        workers = 1 if backend == "serial" else 2
+    if workers is not None and workers < 1:
+        from poreprobe.errors import InputError
+
+        raise InputError(f"--workers must be >= 1, got {workers}")
+    return backend, workers
+
+
+def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
+    """Capture-radius options of traj (one probe) and batch (several probes)."""
+    g = parser.add_argument_group("capture radius (probe-size scan)")
+    if several:
+        g.add_argument(
+            "--capture-probe-radii-A",
+            type=float,
+            nargs="+",
+            metavar="P",
+            help="also give the capture radius for these probe radii (Å, increasing)",
+        )
+    else:
+        g.add_argument(
+            "--capture-probe-radius-A",
+            type=float,
+            metavar="P",
+            help="also give, per frame, the capture radius for a probe of this "
+            "radius (Å); costs about one more profile per frame",
+        )
+    g.add_argument(
+        "--capture-from-end",
+        "--from",
+        dest="capture_from_end",
+        choices=("low", "high"),
+        default="low",
+        help="end of the axis (in s) where probes enter; default low, which is "
+        "the --entry end when --entry is given",
+    )
+    g.add_argument(
+        "--capture-spacing-A",
+        type=float,
+        default=0.5,
+        help="grid spacing of the scan in Å (default 0.5)",
+    )
+    g.add_argument(
+        "--capture-pore-radius-A",
+        type=float,
+        default=15.0,
+        help="radius in Å around the axis the scan searches (default 15)",
+    )
+
+
+def add_figure_size_args(group) -> None:
+    """--dpi, --width-mm and --height-mm (shared by ``plot`` and every --figure)."""
+    group.add_argument(
+        "--dpi",
+        type=float,
+        default=300,
+        help="resolution of PNG output in dots per inch (default 300)",
+    )
+    group.add_argument(
+        "--width-mm",
+        type=float,
+        default=None,
+        help="figure width in mm (default 85, one journal column; 114 and "
+        "174 mm for 1.5 and 2 columns)",
+    )
+    group.add_argument(
+        "--height-mm",
+        type=float,
+        default=None,
+        help="figure height in mm (default 62; 78 for the capture figure)",
+    )
+
+
+def add_ion_band_args(group) -> None:
+    """--ion and --ion-radii: reference ion radii drawn on profile and capture figures."""
+    group.add_argument(
+        "--ion",
+        action="append",
+        metavar="ION",
+        help="draw this ion's reference radii (K, Na, Li, Rb, Cs, Cl); repeat for several ions",
+    )
+    group.add_argument(
+        "--ion-radii",
+        default="crystal,hydrated",
+        metavar="KINDS",
+        help="which radii of --ion, comma-separated: crystal (Shannon 1976), "
+        "hydrated (Nightingale 1959), stokes (from D); "
+        "default crystal,hydrated (Å)",
+    )
+
+
+def add_figure_args(
+    parser: argparse.ArgumentParser, *, ion_bands: bool = False, kinds: tuple[str, ...] = ()
+) -> None:
+    """--figure FILE plus the figure size options, for commands that can draw their result.
+
+    With several ``kinds``, --figure-kind picks one (default the first).
+    """
+    g = parser.add_argument_group("figure")
+    g.add_argument(
+        "--figure",
+        metavar="FILE",
+        help="also draw this command's figure: PNG, SVG or PDF by the suffix",
+    )
+    if kinds:
+        g.add_argument(
+            "--figure-kind",
+            choices=kinds,
+            default=kinds[0],
+            help=f"which figure --figure draws (default {kinds[0]})",
+        )
+    add_figure_size_args(g)
+    if ion_bands:
+        add_ion_band_args(g)
+
+
+def check_figure_path(args: argparse.Namespace) -> None:
+    """Reject a bad --figure suffix, size or ion before any long computation."""
+    if getattr(args, "figure", None):
+        from poreprobe.figures.plots import check_figure_options
+
+        check_figure_options(
+            args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
+        )
+        figure_ion_radii(args)
+
+
+def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
+    """Labelled reference radii named by --ion / --ion-radii (empty without them).
+
+    Only for parsers that took :func:`add_ion_band_args`; a command whose own --ion
+    means something else (``match``) has no --ion-radii and gets no bands here.
+    """
+    if not getattr(args, "ion", None) or not hasattr(args, "ion_radii"):
+        return []
+    from poreprobe.figures.plots import ion_reference_radii
+
+    return ion_reference_radii(args.ion, args.ion_radii)
+
+
+def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> None:
+    """Draw figure ``kind`` from results and write it to --figure (if given).
+
+    The results go through their JSON form, so the figure is the one
+    ``poreprobe plot KIND`` draws later from the saved JSON files.
+    """
+    path = getattr(args, "figure", None)
+    if not path:
+        return
+    from poreprobe.figures import plots
+
+    if "ion_radii" not in options:
+        options["ion_radii"] = figure_ion_radii(args)
+    ax = plots.draw_figure(
+        kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options
+    )
+    plots.save_figure(ax, path, dpi=args.dpi)
+    say(args, f"figure: {path}")

@@ -1,0 +1,1 @@
+"""The invented demo channels, the peptide builder that makes them, and the demo run."""

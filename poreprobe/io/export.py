@@ -1,0 +1,117 @@
+"""Writing results: JSON and CSV, atomically.
+
+Every file is written to a temporary file in the target folder and renamed into
+place, so a failed run never leaves a partial output file.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import tempfile
+from collections.abc import Iterable, Sequence
+
+import numpy as np
+
+from poreprobe.errors import InputError
+
+
+def _jsonable(obj):
+    if hasattr(obj, "to_dict"):
+        return _jsonable(obj.to_dict())
+    if isinstance(obj, dict):
+        return {str(k): _jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [_jsonable(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return _jsonable(obj.tolist())
+    if isinstance(obj, np.generic):
+        return _jsonable(obj.item())
+    if isinstance(obj, float) and not math.isfinite(obj):
+        return None
+    return obj
+
+
+def _current_umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
+def write_atomic(path, text: str | bytes) -> None:
+    """Write ``text`` to ``path`` through a temporary file and a rename."""
+    path = os.fspath(path)
+    folder = os.path.dirname(os.path.abspath(path))
+    if not os.path.isdir(folder):
+        raise InputError(f"cannot write {path}: folder {folder} does not exist")
+    mode = "wb" if isinstance(text, bytes) else "w"
+    fd, tmp = tempfile.mkstemp(prefix=".poreprobe-", dir=folder)
+    os.chmod(tmp, 0o666 & ~_current_umask())  # mkstemp makes 0600; give the usual mode
+    try:
+        with os.fdopen(
+            fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})
+        ) as fh:
+            fh.write(text)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+def to_json(result, path=None, *, indent: int = 2) -> str:
+    """Serialise a result (anything with ``to_dict``, or a dict) as JSON.
+
+    NaN and infinity become ``null``. With ``path``, the JSON is also written
+    atomically to that file.
+    """
+    text = json.dumps(_jsonable(result), indent=indent, allow_nan=False) + "\n"
+    if path is not None:
+        write_atomic(path, text)
+    return text
+
+
+def to_csv(
+    header: Sequence[str], rows: Iterable[Sequence], path=None, comments: Sequence[str] = ()
+) -> str:
+    """Serialise rows as CSV (NaN as empty cells), optionally written atomically.
+
+    ``comments`` become leading ``# ...`` lines (units, radius set, caveats).
+    """
+    buf = io.StringIO()
+    for line in comments:
+        buf.write(f"# {line}\n")
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(header)
+    for row in rows:
+        writer.writerow(
+            [
+                ""
+                if isinstance(v, float) and not math.isfinite(v)
+                else (f"{v:.6g}" if isinstance(v, float) else v)
+                for v in row
+            ]
+        )
+    text = buf.getvalue()
+    if path is not None:
+        write_atomic(path, text)
+    return text
+
+
+def profile_csv(profile, path=None) -> str:
+    """CSV of a :class:`~poreprobe.geometry.profile.RadiusProfile`: s, radius, centre (Å)."""
+    rows = (
+        (float(s), float(r), *map(float, c))
+        for s, r, c in zip(profile.s_A, profile.radius_A, profile.center_A, strict=True)
+    )
+    comments = (
+        f"poreprobe {profile.version} radius profile of {profile.source}",
+        f"radius set: {profile.radius_set}; model-based estimate; lengths in Å",
+        f"axis method: {profile.axis.method}",
+    )
+    return to_csv(
+        ("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path, comments
+    )

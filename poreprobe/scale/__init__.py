@@ -1,0 +1,1 @@
+"""Many structures: trajectory analysis (MDAnalysis), parallel backends (dask), batches."""
