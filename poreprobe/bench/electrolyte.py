@@ -37,11 +37,11 @@ not in the interpolation table, are matched within 0.1 %.
 
 from __future__ import annotations
 
+import functools
 import warnings
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.interpolate import PchipInterpolator
 
 from poreprobe._validate import check_choice, check_positive
 from poreprobe.errors import InputError, QualityWarning
@@ -124,14 +124,15 @@ CONDUCTIVITY_TABLES: dict[str, tuple[ConductivityPoint, ...]] = {
 }
 
 
-def _interpolator(name: str) -> PchipInterpolator:
+@functools.cache
+def _interpolator(name: str):
+    """Monotone cubic of molar conductivity against sqrt(c), built on first use."""
     table = CONDUCTIVITY_TABLES[name]
     c = np.array([p.conc_mol_per_L for p in table])
     kappa = np.array([p.conductivity_mS_per_cm for p in table])
+    from scipy.interpolate import PchipInterpolator
+
     return PchipInterpolator(np.sqrt(c), kappa / c, extrapolate=True)
-
-
-_INTERPOLATORS = {name: _interpolator(name) for name in CONDUCTIVITY_TABLES}
 
 
 @dataclass(frozen=True)
@@ -203,7 +204,7 @@ def bath_conductivity(electrolyte: str, conc_mM: float) -> BathConductivity:
         )
     c = conc / 1000.0
     table = CONDUCTIVITY_TABLES[name]
-    lam = float(_INTERPOLATORS[name](np.sqrt(c)))
+    lam = float(_interpolator(name)(np.sqrt(c)))
     kappa_S_per_m = lam * c * 0.1  # mS/cm -> S/m
     upper = [p for p in table if p.conc_mol_per_L > 0.1]
     from_memory = c > 0.1 and any(p.status == "memory" for p in upper)

@@ -17,20 +17,45 @@ import warnings
 from poreprobe._version import __version__
 from poreprobe.errors import PoreprobeError
 
-#: Command modules, in the order ``poreprobe --help`` lists them.
-COMMAND_MODULES = (
-    "poreprobe.cli.demo",
-    "poreprobe.cli.profile",
-    "poreprobe.cli.scan",
-    "poreprobe.cli.match",
-    "poreprobe.cli.resistance",
-    "poreprobe.cli.check",
-    "poreprobe.cli.compare",
-    "poreprobe.cli.plot",
-    "poreprobe.cli.export",
-    "poreprobe.cli.traj",
-    "poreprobe.cli.batch",
-)
+#: Every command: name -> (its module, the one-line summary ``poreprobe --help`` lists).
+#: A command's module is imported only when that command runs or shows its help, so
+#: ``poreprobe --help`` imports no computing code at all (tests/test_cli_startup.py
+#: checks that each module's own summary is the one listed here).
+COMMANDS = {
+    "demo": ("poreprobe.cli.demo", "run the main job on the bundled invented demo channels"),
+    "profile": ("poreprobe.cli.profile", "radius profile along the pore axis (Å)"),
+    "scan": (
+        "poreprobe.cli.scan",
+        "probe-size scan: capture radius and accessible radius per probe (Å)",
+    ),
+    "match": (
+        "poreprobe.cli.match",
+        "capture radius of a diffusion-limited current (Å), optionally matched "
+        "against a structure's probe-size scan",
+    ),
+    "resistance": (
+        "poreprobe.cli.resistance",
+        "series-resistance breakdown of the pore and its conductance (pS)",
+    ),
+    "check": (
+        "poreprobe.cli.check",
+        "is this model ready? lining residues, model checks, permeation verdict",
+    ),
+    "compare": (
+        "poreprobe.cli.compare",
+        "compare the pores of two or more models on one axial frame",
+    ),
+    "plot": ("poreprobe.cli.plot", "draw a figure (PNG, SVG or PDF) from saved JSON results"),
+    "export": (
+        "poreprobe.cli.export",
+        "pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) for molecular viewers",
+    ),
+    "traj": (
+        "poreprobe.cli.traj",
+        "radius profiles over trajectory frames or models, with statistics",
+    ),
+    "batch": ("poreprobe.cli.batch", "narrowest radius of many models, one summary table"),
+}
 
 
 class OneLineParser(argparse.ArgumentParser):
@@ -45,8 +70,16 @@ def _show_warning(message, category, filename, lineno, file=None, line=None):
     sys.stderr.write(f"poreprobe: warning: {message}\n")
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The full argument parser with every registered command."""
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The argument parser.
+
+    Parameters
+    ----------
+    command : str, optional
+        The command whose module is loaded and whose options are registered; the
+        others appear only by name and summary. ``None`` (default) registers every
+        command in full (what the documentation and tests walk).
+    """
     parser = OneLineParser(
         prog="poreprobe",
         description="Ion-channel pore geometry from structural models. All numbers are "
@@ -54,14 +87,26 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"poreprobe {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=OneLineParser)
-    for name in COMMAND_MODULES:
-        importlib.import_module(name).register(sub)
+    for name, (module, summary) in COMMANDS.items():
+        if command is None or name == command:
+            importlib.import_module(module).register(sub)
+        else:
+            sub.add_parser(name, help=summary, add_help=False)
     return parser
+
+
+def _command_in(argv: list[str]) -> str:
+    """The command named on the command line ('' when none is: top-level help or usage)."""
+    for word in argv:
+        if not word.startswith("-"):
+            return word if word in COMMANDS else ""
+    return ""
 
 
 def main(argv=None) -> int:
     """Run the command line; returns the exit code."""
-    parser = build_parser()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    parser = build_parser(_command_in(argv))
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # --help, --version, or a one-line usage error

@@ -21,7 +21,7 @@ KIND_HELP = {
 
 
 def register(sub) -> None:
-    from poreprobe.figures.plots import FIGURE_KINDS
+    from poreprobe.figures.kinds import FIGURE_KINDS
 
     p = sub.add_parser(
         "plot",

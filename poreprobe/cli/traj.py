@@ -18,14 +18,7 @@ from poreprobe.cli.common import (
     say,
 )
 from poreprobe.io.export import to_json
-from poreprobe.scale.trajectory import (
-    AXIS_MODES,
-    DEFAULT_PERCENTILES,
-    default_closing_threshold,
-    frames_csv,
-    planes_csv,
-    profile_trajectory,
-)
+from poreprobe.scale.defaults import AXIS_MODES, DEFAULT_PERCENTILES, default_closing_threshold
 
 
 def register(sub) -> None:
@@ -153,6 +146,8 @@ def register(sub) -> None:
 
 
 def run(args) -> int:
+    from poreprobe.scale.trajectory import frames_csv, planes_csv, profile_trajectory
+
     backend, workers = backend_from_args(args)
     check_figure_path(args)
     result = profile_trajectory(

@@ -42,6 +42,7 @@ from poreprobe._validate import check_choice, check_range
 from poreprobe._version import __version__
 from poreprobe.bench.ions import get_ion
 from poreprobe.errors import InputError
+from poreprobe.figures.kinds import FIGURE_KINDS, FIGURE_SUFFIXES
 from poreprobe.io.export import write_atomic
 
 #: Column widths in mm (common practice for one, one-and-a-half and two journal columns).
@@ -83,8 +84,6 @@ OPEN_COLOR = "#d9d9d9"
 OPEN_HATCH_COLOR = "#a6a6a6"
 GRID_COLOR = "#e6e6e6"
 
-FIGURE_KINDS = ("profile", "overlay", "probes", "capture", "resistance", "kymograph")
-FIGURE_SUFFIXES = {".png": "png", ".svg": "svg", ".pdf": "pdf"}
 ION_RADIUS_KINDS = ("crystal", "hydrated", "stokes")
 
 S_LABEL = "Position along the pore axis, s (Å)"

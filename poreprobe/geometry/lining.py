@@ -32,7 +32,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.signal import find_peaks
 from scipy.spatial import cKDTree
 
 from poreprobe._validate import check_positive
@@ -432,6 +431,8 @@ def find_constrictions(
     filled = np.where(np.isfinite(radius), radius, wide)
     # pad with open bulk so that a minimum at either end of the grid is found too
     padded = np.r_[wide, filled, wide]
+    from scipy.signal import find_peaks  # about 1 s to import: only where it is used
+
     peaks, props = find_peaks(-padded, prominence=(prominence if prominence > 0 else None))
     proms = props.get("prominences", np.zeros(len(peaks)))
     out = []

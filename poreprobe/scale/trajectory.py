@@ -44,22 +44,17 @@ from MDAnalysis.analysis.results import ResultsGroup
 
 from poreprobe._validate import check_choice, check_int, check_positive, check_range
 from poreprobe._version import __version__
-from poreprobe.bench.ions import get_ion
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.axis import PoreAxis, find_pore_axis
 from poreprobe.geometry.profile import plane_positions_A, radius_profile
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms, atoms_from_atomgroup, select_in_universe
-
-AXIS_MODES = ("fixed", "per-frame")
-DEFAULT_PERCENTILES = (5.0, 25.0, 50.0, 75.0, 95.0)
-
-
-def default_closing_threshold() -> float:
-    """Default closing threshold: the crystal radius of K+ (Shannon 1976, CN 6), in Å."""
-    return get_ion("K").crystal_radius_A
-
+from poreprobe.scale.defaults import (
+    AXIS_MODES,
+    DEFAULT_PERCENTILES,
+    default_closing_threshold,
+)
 
 #: Per-frame results keys and how the parts of a parallel run are merged.
 _AGGREGATORS = {
