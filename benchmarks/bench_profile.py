@@ -1,6 +1,6 @@
 """Speed of the radius profile on large invented channels.
 
-Prints, for invented channels of 10k, 40k and 160k atoms (poreprobe.geometry.synthetic.shell_channel:
+Prints, for invented channels of 10k, 40k and 160k atoms (geometry.synthetic.shell_channel:
 random atoms at protein density around a 60 Å pore with a constriction), the time to read
 the model from PDB, find the axis and compute the profile at 0.2 Å, and for the 40k-atom
 channel how the profile time grows as the step shrinks. Target: profile at 0.2 Å on

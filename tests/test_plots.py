@@ -266,7 +266,7 @@ def test_profile_axes_carry_profile_and_ion_bands(profile_a):
     assert ax.get_ylim()[0] == 0 and ax.get_ylim()[1] >= np.nanmax(r)
     assert "bondi" in line.get_label()
     labels = [t.get_text() for t in ax.get_legend().get_texts()]
-    # crystal 1.38 and hydrated 3.31 Å: Shannon 1976 (CN 6) and Nightingale 1959, via poreprobe.bench.ions
+    # crystal 1.38 and hydrated 3.31 Å: Shannon 1976 (CN 6) and Nightingale 1959 (bench.ions)
     assert "K⁺ crystal radius 1.38 Å" in labels and "K⁺ hydrated radius 3.31 Å" in labels
     assert "open to bulk" in labels  # the wide ends count as open (max 5.5 Å)
     bands = {
