@@ -2,6 +2,14 @@
 
 from __future__ import annotations
 
+from poreprobe.cli.chemistry_options import (
+    add_chemistry_args,
+    check_chemistry_args,
+    chemistry_csv,
+    chemistry_from_args,
+    save_chemistry_figure,
+    with_chemistry,
+)
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -29,6 +37,7 @@ def register(sub) -> None:
     add_profile_args(p)
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
+    add_chemistry_args(p)
     p.set_defaults(func=run)
 
 
@@ -78,12 +87,26 @@ def _fmt(vec, digits=2):
 
 def run(args) -> int:
     check_figure_path(args)
+    check_chemistry_args(args)
     atoms, _, prof = compute(args)
+    chem = chemistry_from_args(args, atoms, prof, radii_A=_radii_of(args, atoms))
     if args.json:
-        to_json(prof, args.json)
+        to_json(with_chemistry(prof, chem), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
-    for line in summary_lines(atoms, prof):
+    if chem is not None and args.chemistry_csv:
+        chemistry_csv(chem, args.chemistry_csv)
+    for line in summary_lines(atoms, prof) + ([] if chem is None else chem.report_lines()):
         say(args, line)
-    save_figure(args, "profile", prof)
+    if chem is None:
+        save_figure(args, "profile", prof)
+    elif args.figure:
+        save_chemistry_figure(args, with_chemistry(prof, chem))
     return 0
+
+
+def _radii_of(args, atoms):
+    from poreprobe.cli.common import radius_set_from_args
+    from poreprobe.io.radii import atom_radii_A
+
+    return atom_radii_A(atoms, radius_set_from_args(args))
