@@ -34,10 +34,10 @@ from poreprobe.bench.ions import get_ion
 from poreprobe.chemistry.dewetting import (
     DEWETTING_LENGTH_A,
     DEWETTING_RADIUS_A,
-    POLAR_ELEMENTS,
     POLAR_FRACTION,
     DewettingFlag,
     dewetting_flags,
+    polar_fraction_per_plane,
 )
 from poreprobe.chemistry.dewetting import (
     SOURCE as DEWETTING_SOURCE,
@@ -366,15 +366,9 @@ def pore_chemistry(
         hydro = h_sum / h_n
     hydro[h_n == 0] = np.nan
     charge = np.where(n_res > 0, charge, np.nan)
-    plane = np.asarray(lining.plane_index)
-    atom = np.asarray(lining.atom_index)
-    heavy = ~atoms.is_hydrogen[atom] if len(atom) else np.zeros(0, bool)
-    polar = heavy & np.isin(atoms.element[atom], POLAR_ELEMENTS)
-    n_heavy = np.bincount(plane[heavy], minlength=n_planes)
-    n_polar = np.bincount(plane[polar], minlength=n_planes)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        polar_frac = n_polar / n_heavy
-    polar_frac[n_heavy == 0] = np.nan
+    polar_frac, n_polar, n_heavy = polar_fraction_per_plane(
+        atoms, lining.plane_index, lining.atom_index, n_planes
+    )
     levels = LevelProfiles(
         s_A=s.copy(),
         charge_e=charge,

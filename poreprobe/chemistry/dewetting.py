@@ -82,17 +82,25 @@ class DewettingFlag:
 
 
 def polar_fraction_per_plane(atoms: Atoms, plane_index, atom_index, n_planes: int):
-    """Share of N/O atoms among the heavy atoms lining each plane (NaN: none)."""
-    plane = np.asarray(plane_index)
-    atom = np.asarray(atom_index)
-    heavy = ~atoms.is_hydrogen[atom] if len(atom) else np.zeros(0, bool)
-    polar = np.isin(atoms.element[atom], POLAR_ELEMENTS) & heavy
-    n_heavy = np.bincount(plane[heavy], minlength=n_planes).astype(float)
-    n_polar = np.bincount(plane[polar], minlength=n_planes).astype(float)
+    """Share of N/O atoms among the heavy atoms lining each plane.
+
+    Returns
+    -------
+    fraction : ndarray of shape (n_planes,)
+        NaN where no heavy atom lines the plane.
+    n_polar, n_heavy : ndarray of int, shape (n_planes,)
+        The counts behind it.
+    """
+    plane = np.asarray(plane_index, dtype=np.int64)
+    atom = np.asarray(atom_index, dtype=np.int64)
+    heavy = ~atoms.is_hydrogen[atom]
+    polar = heavy & np.isin(atoms.element[atom], POLAR_ELEMENTS)
+    n_heavy = np.bincount(plane[heavy], minlength=n_planes)
+    n_polar = np.bincount(plane[polar], minlength=n_planes)
     with np.errstate(invalid="ignore", divide="ignore"):
         frac = n_polar / n_heavy
     frac[n_heavy == 0] = np.nan
-    return frac
+    return frac, n_polar, n_heavy
 
 
 def dewetting_flags(
