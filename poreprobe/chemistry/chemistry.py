@@ -67,8 +67,9 @@ from poreprobe.chemistry.titration import (
     titratable_sites,
 )
 from poreprobe.errors import InputError
-from poreprobe.geometry.lining import LINING_DISTANCE_A, PoreLining, pore_lining
+from poreprobe.geometry.lining import LINING_DISTANCE_A, PoreLining, lining_contacts
 from poreprobe.geometry.profile import RadiusProfile
+from poreprobe.io.radii import RADIUS_SETS, atom_radii_A
 from poreprobe.io.structure import Atoms
 
 SMOOTHING_WINDOW_A = 5.0
@@ -231,8 +232,69 @@ class PoreChemistry:
                 "source": DEWETTING_SOURCE,
                 "flags": [f.to_dict() for f in self.dewetting],
             },
-            "titratable_sites": self.sites.to_dict(),
+            "titratable_sites": self.sites.summary(),
         }
+
+
+@dataclass(frozen=True)
+class LiningContacts:
+    """The (plane, atom) lining contacts alone, as :class:`PoreLining` holds them."""
+
+    plane_index: np.ndarray
+    atom_index: np.ndarray
+    gap_A: np.ndarray
+    contact_residue: np.ndarray
+    lining_distance_A: float
+
+
+def lining_near_pore(
+    atoms: Atoms, profile: RadiusProfile, radii_A=None, lining_distance_A=LINING_DISTANCE_A
+) -> LiningContacts:
+    """Lining contacts as :func:`poreprobe.geometry.lining.pore_lining` defines them, fast.
+
+    Only atoms that can reach a profile sphere (inside the cylinder around the axis that
+    holds every sphere, widened by the lining distance and the largest atom radius, and
+    within the planes' s range) are searched, so a large model costs little more than
+    its pore. Radii are those of the profile's named set unless ``radii_A`` is given.
+    """
+    distance = check_positive(lining_distance_A, "lining_distance_A", allow_zero=True)
+    if radii_A is None:
+        if profile.radius_set not in RADIUS_SETS:
+            raise InputError(
+                f"the profile used radius set {profile.radius_set!r}; pass its per-atom radii "
+                "(radii_A=) or the lining"
+            )
+        radii_A = atom_radii_A(atoms, profile.radius_set)
+    radii_A = np.asarray(radii_A, dtype=float)
+    if radii_A.shape != (len(atoms),):
+        raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
+    radius = np.asarray(profile.radius_A, dtype=float)
+    ok = np.isfinite(radius)
+    empty = np.empty(0, dtype=np.int64)
+    if not ok.any() or len(atoms) == 0:
+        return LiningContacts(empty, empty, np.empty(0), np.empty(0, dtype=str), distance)
+    point, direction = profile.axis.point_A, profile.axis.direction
+    centre = np.asarray(profile.center_A, dtype=float)[ok]
+    c_rel = centre - point
+    c_s = c_rel @ direction
+    offset = np.linalg.norm(c_rel - c_s[:, None] * direction, axis=1)
+    slack = distance + float(radii_A.max())
+    reach = float((offset + radius[ok]).max()) + slack
+    rel = atoms.coords_A - point
+    s_atom = rel @ direction
+    radial2 = np.einsum("ij,ij->i", rel, rel) - s_atom**2
+    s_lo = float(c_s.min()) - float(radius[ok].max()) - slack
+    s_hi = float(c_s.max()) + float(radius[ok].max()) + slack
+    near = np.flatnonzero((radial2 <= reach**2) & (s_atom >= s_lo) & (s_atom <= s_hi))
+    if near.size == 0:
+        return LiningContacts(empty, empty, np.empty(0), np.empty(0, dtype=str), distance)
+    plane, local, gap = lining_contacts(
+        atoms.coords_A[near], radii_A[near], profile.center_A, radius, distance
+    )
+    atom = near[local]
+    uatom, atom_of = np.unique(atom, return_inverse=True)
+    labels = atoms.subset(uatom).residue_labels().astype(str)[atom_of]
+    return LiningContacts(plane, atom, gap, labels, distance)
 
 
 def centre_line_A(profile: RadiusProfile) -> np.ndarray:
@@ -327,8 +389,8 @@ def pore_chemistry(
     ion_rec = get_ion(ion)
     ionic = ionic_strength_M(electrolyte, conc_mM)
     if lining is None:
-        lining = pore_lining(atoms, profile, radii_A=radii_A, lining_distance_A=lining_distance_A)
-    elif not isinstance(lining, PoreLining):
+        lining = lining_near_pore(atoms, profile, radii_A, lining_distance_A)
+    elif not isinstance(lining, PoreLining | LiningContacts):
         raise InputError(f"lining must be a PoreLining, got {type(lining).__name__}")
     if len(lining.atom_index) and int(np.max(lining.atom_index)) >= len(atoms):
         raise InputError("the lining refers to more atoms than were given; pass the same atoms")

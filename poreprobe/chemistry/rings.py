@@ -158,10 +158,17 @@ def residue_contacts(atoms: Atoms, lining: PoreLining, radius_A) -> ResidueConta
     atom = np.asarray(lining.atom_index)
     plane = np.asarray(lining.plane_index)
     gap = np.asarray(lining.gap_A)
-    labels = np.asarray(lining.contact_residue).astype(str)
-    res_label, res_of = np.unique(labels, return_inverse=True)
+    # work on the distinct lining atoms, then spread back over the contacts
+    uatom, atom_of = np.unique(atom, return_inverse=True)
+    first_contact = np.zeros(len(uatom), dtype=np.int64)
+    first_contact[atom_of[::-1]] = np.arange(len(atom))[::-1]
+    atom_labels = np.asarray(lining.contact_residue).astype(str)[first_contact]
+    res_label, res_of_atom = np.unique(atom_labels, return_inverse=True)
+    res_of = res_of_atom[atom_of]
     backbone = (
-        is_backbone(atoms.name[atom], atoms.element[atom]) if len(atom) else np.zeros(0, bool)
+        is_backbone(atoms.name[uatom], atoms.element[uatom])[atom_of]
+        if len(atom)
+        else np.zeros(0, bool)
     )
     n_res = len(res_label)
     pair_key = plane.astype(np.int64) * max(n_res, 1) + res_of
@@ -171,8 +178,7 @@ def residue_contacts(atoms: Atoms, lining: PoreLining, radius_A) -> ResidueConta
     first = np.r_[True, pair_key_sorted[1:] != pair_key_sorted[:-1]] if len(order) else order
     head = order[first]
     pair_id = np.cumsum(first) - 1
-    side_any = np.zeros(int(first.sum()), dtype=bool)
-    np.logical_or.at(side_any, pair_id, ~backbone[order])
+    side_any = np.bincount(pair_id, weights=~backbone[order], minlength=int(first.sum())) > 0
     first_atom = np.zeros(n_res, dtype=np.int64)
     first_atom[res_of[::-1]] = atom[::-1]
     resname = atoms.resname[first_atom].astype(str)
@@ -239,28 +245,35 @@ def find_rings(
     closest[res[best]] = approach[best]
     n_pairs = np.bincount(res, minlength=n_res)
     n_bb = np.bincount(res, weights=contacts.pair_backbone.astype(float), minlength=n_res)
+    level_l, closest_l = level.tolist(), closest.tolist()
+    pairs_l, bb_l = n_pairs.tolist(), n_bb.tolist()
+    names, ids, codes = (
+        contacts.resname.tolist(),
+        contacts.resid.tolist(),
+        contacts.icode.tolist(),
+    )
+    labels_l = contacts.label.tolist()
     groups: dict[tuple, list[int]] = {}
     for k in range(n_res):
-        key = (contacts.resname[k], int(contacts.resid[k]), contacts.icode[k])
-        groups.setdefault(key, []).append(k)
+        groups.setdefault((names[k], int(ids[k]), codes[k]), []).append(k)
     rings = []
     for (resname, resid, icode), members in groups.items():
-        members = sorted(members, key=lambda m: level[m])
+        members.sort(key=level_l.__getitem__)
         clusters = [[members[0]]]
         for m in members[1:]:
-            if level[m] - level[clusters[-1][-1]] <= tol:
+            if level_l[m] - level_l[clusters[-1][-1]] <= tol:
                 clusters[-1].append(m)
             else:
                 clusters.append([m])
         for cl in clusters:
-            idx = np.array(cl)
-            frac = float(n_bb[idx].sum() / max(n_pairs[idx].sum(), 1))
-            labels = tuple(contacts.label[idx].tolist())
+            levels_cl = [level_l[m] for m in cl]
+            frac = sum(bb_l[m] for m in cl) / max(sum(pairs_l[m] for m in cl), 1)
+            labels = tuple(labels_l[m] for m in cl)
             rings.append(
                 Ring(
-                    s_A=float(level[idx].mean()),
-                    s_min_A=float(level[idx].min()),
-                    s_max_A=float(level[idx].max()),
+                    s_A=sum(levels_cl) / len(cl),
+                    s_min_A=min(levels_cl),
+                    s_max_A=max(levels_cl),
                     residue=f"{resname}{resid}{icode}",
                     resname=resname,
                     resid=resid,
@@ -268,8 +281,8 @@ def find_rings(
                     count=len(cl),
                     members=labels,
                     faces=_faces(frac),
-                    backbone_fraction=frac,
-                    closest_A=float(closest[idx].min()),
+                    backbone_fraction=float(frac),
+                    closest_A=min(closest_l[m] for m in cl),
                     charge_e=float(sum(charge_of.get(lab, 0.0) for lab in labels)),
                     hydropathy=float(hydropathy_of.get(resname, np.nan)),
                 )

@@ -209,6 +209,24 @@ class TitratableSites:
         """Residue label -> charge (e)."""
         return dict(zip(self.label.tolist(), self.charge_e.tolist(), strict=True))
 
+    def summary(self) -> dict:
+        """Counts and net charge by how each state was set, and the fixed residues."""
+        states = {}
+        for st in ("pH", "override", "residue name", "disulfide"):
+            here = self.state == st
+            states[st] = {"count": int(here.sum()), "charge_e": float(self.charge_e[here].sum())}
+        fixed = self.state != "pH"
+        return {
+            "n_sites": len(self.charge_e),
+            "net_charge_e": float(self.charge_e.sum()),
+            "by_state": states,
+            "fixed": dict(
+                zip(self.label[fixed].tolist(), self.charge_e[fixed].tolist(), strict=True)
+            ),
+            "note": "every titratable side chain of the model (charge-carrying atoms present); "
+            "chain termini not counted",
+        }
+
     def to_dict(self) -> dict:
         return {
             "pH": self.pH,
@@ -265,20 +283,24 @@ def titratable_sites(
     table_name = check_choice(pka_table, "pka_table", PKA_TABLES)
     table = PKA_TABLES[table_name]
     overrides = {str(k).upper(): float(v) for k, v in (charge_states or {}).items()}
-    resname = np.char.upper(np.char.strip(atoms.resname.astype(str)))
-    std = np.array([standard_name(r) or r for r in np.unique(resname)])
-    std_of = dict(zip(np.unique(resname).tolist(), std.tolist(), strict=True))
-    std_res = np.array([std_of[r] for r in resname]) if len(resname) else resname
-    names = np.char.upper(atoms.name.astype(str))
-    site = np.zeros(len(atoms), dtype=bool)
-    for res, (_, site_names) in TITRATABLE_GROUPS.items():
-        site |= (std_res == res) & np.isin(names, site_names)
-    site &= atoms.kind == "polymer"
-    idx = np.flatnonzero(site)
-    keys = np.char.add(
-        np.char.add(atoms.chain[idx].astype(str), "|"),
-        np.char.add(atoms.resid[idx].astype(str), np.char.add("|", atoms.icode[idx].astype(str))),
-    )
+    # candidates by atom name first (cheap on large models), then the residue types
+    site_names = sorted({n for _, names in TITRATABLE_GROUPS.values() for n in names})
+    idx = np.flatnonzero(np.isin(atoms.name, site_names))
+    idx = idx[atoms.kind[idx] == "polymer"]
+    raw_res = np.char.upper(np.char.strip(atoms.resname[idx].astype(str)))
+    std_of = {r: standard_name(r) or r for r in np.unique(raw_res).tolist()}
+    std_sub = np.array([std_of[r] for r in raw_res.tolist()], dtype=object)
+    names = atoms.name[idx].astype(str)
+    keep = np.zeros(len(idx), dtype=bool)
+    for res, (_, group_names) in TITRATABLE_GROUPS.items():
+        keep |= (std_sub == res) & np.isin(names, group_names)
+    idx, raw_res, std_sub = idx[keep], raw_res[keep], std_sub[keep]
+    # one integer key per residue (chain, number, insertion code)
+    _, chain_code = np.unique(atoms.chain[idx], return_inverse=True)
+    _, icode_code = np.unique(atoms.icode[idx], return_inverse=True)
+    resid = atoms.resid[idx].astype(np.int64)
+    keys = (chain_code.astype(np.int64) * (1 << 40)) + ((resid - resid.min(initial=0)) << 8)
+    keys += icode_code
     uniq, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
     count = np.bincount(inverse, minlength=len(uniq)).astype(float)
     pos = (
@@ -289,8 +311,8 @@ def titratable_sites(
     )
     i0 = idx[first]
     labels = atoms.subset(i0).residue_labels().astype(str)
-    raw_names = resname[i0]
-    std_names = std_res[i0]
+    raw_names = raw_res[first]
+    std_names = std_sub[first].astype(str)
     sign = np.array([TITRATABLE_GROUPS[r][0] for r in std_names], dtype=float)
     pka = np.array([table[r] for r in std_names], dtype=float)
     charge = hh_charge_e(sign, pka, pH) if len(sign) else np.empty(0)
@@ -302,11 +324,11 @@ def titratable_sites(
         bonded = cys[np.unique(pairs)] if len(pairs) else np.empty(0, dtype=int)
         charge[bonded] = 0.0
         state[bonded] = "disulfide"
-    for k, raw in enumerate(raw_names):
-        if raw in FIXED_STATE_NAMES and state[k] == "pH":
-            charge[k] = FIXED_STATE_NAMES[raw]
-            state[k] = "residue name"
-        if overrides:
+    fixed = np.flatnonzero(np.isin(raw_names, list(FIXED_STATE_NAMES)) & (state == "pH"))
+    charge[fixed] = [FIXED_STATE_NAMES[r] for r in raw_names[fixed].tolist()]
+    state[fixed] = "residue name"
+    if overrides:
+        for k in range(len(uniq)):
             value = _override_for(
                 overrides, str(atoms.chain[i0[k]]), str(std_names[k]), int(atoms.resid[i0[k]])
             )
