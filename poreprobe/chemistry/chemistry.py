@@ -69,7 +69,7 @@ from poreprobe.chemistry.titration import (
 from poreprobe.errors import InputError
 from poreprobe.geometry.lining import LINING_DISTANCE_A, PoreLining, lining_contacts
 from poreprobe.geometry.profile import RadiusProfile
-from poreprobe.io.radii import RADIUS_SETS, atom_radii_A
+from poreprobe.io.radii import RADIUS_SETS, RadiusSet, atom_radii_A
 from poreprobe.io.structure import Atoms
 
 SMOOTHING_WINDOW_A = 5.0
@@ -247,38 +247,51 @@ class LiningContacts:
     lining_distance_A: float
 
 
+#: Largest van der Waals radius assumed when preselecting atoms near the pore (Å); no
+#: element of the radius sets in use comes near it (common practice).
+_RADIUS_BOUND_A = 4.0
+
+
 def lining_near_pore(
-    atoms: Atoms, profile: RadiusProfile, radii_A=None, lining_distance_A=LINING_DISTANCE_A
+    atoms: Atoms,
+    profile: RadiusProfile,
+    radii_A=None,
+    lining_distance_A=LINING_DISTANCE_A,
+    *,
+    radii: str | RadiusSet | None = None,
 ) -> LiningContacts:
     """Lining contacts as :func:`poreprobe.geometry.lining.pore_lining` defines them, fast.
 
     Only atoms that can reach a profile sphere (inside the cylinder around the axis that
-    holds every sphere, widened by the lining distance and the largest atom radius, and
+    holds every sphere, widened by the lining distance and a bound on atom radii, and
     within the planes' s range) are searched, so a large model costs little more than
-    its pore. Radii are those of the profile's named set unless ``radii_A`` is given.
+    its pore. Radii: ``radii_A`` (per atom) if given, else the set ``radii``, else the
+    profile's named set, looked up for the preselected atoms only.
     """
     distance = check_positive(lining_distance_A, "lining_distance_A", allow_zero=True)
-    if radii_A is None:
+    if radii_A is not None:
+        radii_A = np.asarray(radii_A, dtype=float)
+        if radii_A.shape != (len(atoms),):
+            raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
+    elif radii is None:
         if profile.radius_set not in RADIUS_SETS:
             raise InputError(
-                f"the profile used radius set {profile.radius_set!r}; pass its per-atom radii "
-                "(radii_A=) or the lining"
+                f"the profile used radius set {profile.radius_set!r}; pass its radii "
+                "(radii= or radii_A=) or the lining"
             )
-        radii_A = atom_radii_A(atoms, profile.radius_set)
-    radii_A = np.asarray(radii_A, dtype=float)
-    if radii_A.shape != (len(atoms),):
-        raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
+        radii = profile.radius_set
     radius = np.asarray(profile.radius_A, dtype=float)
     ok = np.isfinite(radius)
     empty = np.empty(0, dtype=np.int64)
+    none = LiningContacts(empty, empty, np.empty(0), np.empty(0, dtype=str), distance)
     if not ok.any() or len(atoms) == 0:
-        return LiningContacts(empty, empty, np.empty(0), np.empty(0, dtype=str), distance)
+        return none
     point, direction = profile.axis.point_A, profile.axis.direction
-    centre = np.asarray(profile.center_A, dtype=float)[ok]
-    c_rel = centre - point
+    c_rel = np.asarray(profile.center_A, dtype=float)[ok] - point
     c_s = c_rel @ direction
     offset = np.linalg.norm(c_rel - c_s[:, None] * direction, axis=1)
-    slack = distance + float(radii_A.max())
+    bound = float(radii_A.max()) if radii_A is not None else _RADIUS_BOUND_A
+    slack = distance + bound
     reach = float((offset + radius[ok]).max()) + slack
     rel = atoms.coords_A - point
     s_atom = rel @ direction
@@ -287,14 +300,15 @@ def lining_near_pore(
     s_hi = float(c_s.max()) + float(radius[ok].max()) + slack
     near = np.flatnonzero((radial2 <= reach**2) & (s_atom >= s_lo) & (s_atom <= s_hi))
     if near.size == 0:
-        return LiningContacts(empty, empty, np.empty(0), np.empty(0, dtype=str), distance)
+        return none
+    near_atoms = atoms.subset(near)
+    near_radii = radii_A[near] if radii_A is not None else atom_radii_A(near_atoms, radii)
     plane, local, gap = lining_contacts(
-        atoms.coords_A[near], radii_A[near], profile.center_A, radius, distance
+        near_atoms.coords_A, near_radii, profile.center_A, radius, distance
     )
-    atom = near[local]
-    uatom, atom_of = np.unique(atom, return_inverse=True)
-    labels = atoms.subset(uatom).residue_labels().astype(str)[atom_of]
-    return LiningContacts(plane, atom, gap, labels, distance)
+    ulocal, local_of = np.unique(local, return_inverse=True)
+    labels = near_atoms.subset(ulocal).residue_labels().astype(str)[local_of]
+    return LiningContacts(plane, near[local], gap, labels, distance)
 
 
 def centre_line_A(profile: RadiusProfile) -> np.ndarray:
@@ -313,6 +327,7 @@ def pore_chemistry(
     lining: PoreLining | None = None,
     *,
     radii_A: np.ndarray | None = None,
+    radii: str | RadiusSet | None = None,
     pH: float = DEFAULT_PH,
     pka_table: str = DEFAULT_PKA_TABLE,
     charge_states: Mapping[str, float] | None = None,
@@ -341,6 +356,9 @@ def pore_chemistry(
         here (with ``radii_A`` or the profile's radius set) when not given.
     radii_A : ndarray of shape (n,), optional
         Per-atom radii of the profile, needed only to compute the lining.
+    radii : str or RadiusSet, optional
+        The profile's radius set instead (looked up for the atoms near the pore only);
+        default the profile's named set.
     pH : float
         0 to 14 (default 7.0).
     pka_table : {"grimsley2009", "thurlkill2006"}
@@ -389,7 +407,7 @@ def pore_chemistry(
     ion_rec = get_ion(ion)
     ionic = ionic_strength_M(electrolyte, conc_mM)
     if lining is None:
-        lining = lining_near_pore(atoms, profile, radii_A, lining_distance_A)
+        lining = lining_near_pore(atoms, profile, radii_A, lining_distance_A, radii=radii)
     elif not isinstance(lining, PoreLining | LiningContacts):
         raise InputError(f"lining must be a PoreLining, got {type(lining).__name__}")
     if len(lining.atom_index) and int(np.max(lining.atom_index)) >= len(atoms):

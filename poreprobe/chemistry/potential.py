@@ -57,6 +57,9 @@ DEFAULT_CONC_MM = 150.0
 #: Valences (cation, anion) of the bath electrolytes that poreprobe tabulates.
 _VALENCES = {"KCl": (1, -1), "NaCl": (1, -1)}
 
+#: k_B T at 25 °C in kJ/mol (R T, CODATA constants).
+KT_KJ_PER_MOL = constants.R * TEMPERATURE_K / 1e3
+
 CAVEAT = (
     "crude continuum estimate: screened Coulomb sum of point charges in a uniform "
     "effective dielectric, not a Poisson-Boltzmann solution; ignores the membrane, the "
@@ -269,9 +272,9 @@ class AxialPotential:
             "ion": self.ion,
             "ion_charge": self.ion_charge,
             "most_favourable": self.extreme(),
-            "s_A": self.s_A,
+            "s_A": "levels.s_A",
+            "kT_in_kJ_per_mol": KT_KJ_PER_MOL,
             "potential_mV": self.potential_mV,
-            "energy_kJ_per_mol": self.energy_kJ_per_mol,
             "energy_kT": self.energy_kT,
             "version": self.version,
         }

@@ -85,6 +85,10 @@ TITRATABLE_GROUPS: dict[str, tuple[int, tuple[str, ...]]] = {
     "ARG": (1, ("NE", "NH1", "NH2")),
 }
 
+_SITE_ATOMS = frozenset(
+    (res, name) for res, (_, names) in TITRATABLE_GROUPS.items() for name in names
+)
+
 #: Force-field names that fix a protonation state, and that charge (e).
 FIXED_STATE_NAMES: dict[str, float] = {
     "HID": 0.0,
@@ -291,9 +295,11 @@ def titratable_sites(
     std_of = {r: standard_name(r) or r for r in np.unique(raw_res).tolist()}
     std_sub = np.array([std_of[r] for r in raw_res.tolist()], dtype=object)
     names = atoms.name[idx].astype(str)
-    keep = np.zeros(len(idx), dtype=bool)
-    for res, (_, group_names) in TITRATABLE_GROUPS.items():
-        keep |= (std_sub == res) & np.isin(names, group_names)
+    keep = np.fromiter(
+        ((r, n) in _SITE_ATOMS for r, n in zip(std_sub.tolist(), names.tolist(), strict=True)),
+        dtype=bool,
+        count=len(idx),
+    )
     idx, raw_res, std_sub = idx[keep], raw_res[keep], std_sub[keep]
     # one integer key per residue (chain, number, insertion code)
     _, chain_code = np.unique(atoms.chain[idx], return_inverse=True)

@@ -125,7 +125,7 @@ def check_chemistry_args(args: argparse.Namespace) -> None:
     get_ion(potential_ion(args))
 
 
-def chemistry_from_args(args: argparse.Namespace, atoms, profile, lining=None, radii_A=None):
+def chemistry_from_args(args: argparse.Namespace, atoms, profile, lining=None, radii=None):
     """The :class:`~poreprobe.chemistry.chemistry.PoreChemistry` the options ask for, or None."""
     if args.no_chemistry:
         return None
@@ -136,7 +136,7 @@ def chemistry_from_args(args: argparse.Namespace, atoms, profile, lining=None, r
         atoms,
         profile,
         lining,
-        radii_A=radii_A,
+        radii=radii,
         pH=args.ph,
         pka_table=args.pka_table,
         charge_states=parse_charge_states(args.charge_state),

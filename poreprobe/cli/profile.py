@@ -18,6 +18,7 @@ from poreprobe.cli.common import (
     add_structure_args,
     check_figure_path,
     load_model,
+    radius_set_from_args,
     save_figure,
     say,
 )
@@ -89,7 +90,7 @@ def run(args) -> int:
     check_figure_path(args)
     check_chemistry_args(args)
     atoms, _, prof = compute(args)
-    chem = chemistry_from_args(args, atoms, prof, radii_A=_radii_of(args, atoms))
+    chem = chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
         to_json(with_chemistry(prof, chem), args.json)
     if args.csv:
@@ -103,10 +104,3 @@ def run(args) -> int:
     elif args.figure:
         save_chemistry_figure(args, with_chemistry(prof, chem))
     return 0
-
-
-def _radii_of(args, atoms):
-    from poreprobe.cli.common import radius_set_from_args
-    from poreprobe.io.radii import atom_radii_A
-
-    return atom_radii_A(atoms, radius_set_from_args(args))
