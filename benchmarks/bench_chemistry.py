@@ -19,9 +19,9 @@ from __future__ import annotations
 import argparse
 import os
 import tempfile
-import time
 
 import numpy as np
+from bench_profile import best_of  # same folder: run as a script
 
 import poreprobe as pp
 from poreprobe.chemistry.chemistry import pore_chemistry
@@ -52,15 +52,6 @@ def protein_like(atoms):
         chain=atoms.chain,
         source="invented shell channel with residue types",
     )
-
-
-def best_of(repeat: int, func):
-    times, result = [], None
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        result = func()
-        times.append(time.perf_counter() - t0)
-    return min(times), result
 
 
 def main() -> None:

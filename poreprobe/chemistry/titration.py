@@ -291,15 +291,19 @@ def titratable_sites(
     site_names = sorted({n for _, names in TITRATABLE_GROUPS.values() for n in names})
     idx = np.flatnonzero(np.isin(atoms.name, site_names))
     idx = idx[atoms.kind[idx] == "polymer"]
-    raw_res = np.char.upper(np.char.strip(atoms.resname[idx].astype(str)))
-    std_of = {r: standard_name(r) or r for r in np.unique(raw_res).tolist()}
-    std_sub = np.array([std_of[r] for r in raw_res.tolist()], dtype=object)
-    names = atoms.name[idx].astype(str)
-    keep = np.fromiter(
-        ((r, n) in _SITE_ATOMS for r, n in zip(std_sub.tolist(), names.tolist(), strict=True)),
+    # residue types and atom names as small integer codes, so that the checks run on
+    # the few distinct names rather than on every atom
+    res_names, res_code = np.unique(atoms.resname[idx], return_inverse=True)
+    raw_of = [str(r).strip().upper() for r in res_names.tolist()]
+    std_of = [standard_name(r) or r for r in raw_of]
+    atom_names, name_code = np.unique(atoms.name[idx], return_inverse=True)
+    allowed = np.array(
+        [[(std, str(n)) in _SITE_ATOMS for n in atom_names.tolist()] for std in std_of],
         dtype=bool,
-        count=len(idx),
-    )
+    ).reshape(len(std_of), len(atom_names))
+    keep = allowed[res_code, name_code] if len(idx) else np.zeros(0, dtype=bool)
+    raw_res = np.array(raw_of, dtype=object)[res_code] if len(idx) else np.empty(0, object)
+    std_sub = np.array(std_of, dtype=object)[res_code] if len(idx) else np.empty(0, object)
     idx, raw_res, std_sub = idx[keep], raw_res[keep], std_sub[keep]
     # one integer key per residue (chain, number, insertion code)
     _, chain_code = np.unique(atoms.chain[idx], return_inverse=True)
