@@ -25,6 +25,7 @@ from bench_profile import best_of  # same folder: run as a script
 
 import poreprobe as pp
 from poreprobe.chemistry.chemistry import pore_chemistry
+from poreprobe.chemistry.potential import debye_length_nm, ionic_strength_M
 from poreprobe.cli.main import main as cli_main
 from poreprobe.geometry import synthetic
 from poreprobe.io.structure import make_atoms
@@ -75,6 +76,8 @@ def main() -> None:
     print(f"profile at 0.2 Å: {t_prof:.3f} s")
     print(f"chemistry (lining + rings + levels + potential + flags): {t_chem:.3f} s")
     print(f"ratio chemistry / radius_profile alone: {t_chem / t_prof:.3f}")
+    lam = {c: debye_length_nm(ionic_strength_M("KCl", c)) for c in (100, 150)}
+    print(f"Debye length of KCl: {lam[100]:.3f} nm at 100 mM, {lam[150]:.3f} nm at 150 mM")
     with tempfile.TemporaryDirectory() as tmp:
         path, out = os.path.join(tmp, "channel.pdb"), os.path.join(tmp, "out.json")
         write_structure(atoms, path)
