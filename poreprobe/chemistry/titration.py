@@ -302,9 +302,7 @@ def titratable_sites(
         dtype=bool,
     ).reshape(len(std_of), len(atom_names))
     keep = allowed[res_code, name_code] if len(idx) else np.zeros(0, dtype=bool)
-    raw_res = np.array(raw_of, dtype=object)[res_code] if len(idx) else np.empty(0, object)
-    std_sub = np.array(std_of, dtype=object)[res_code] if len(idx) else np.empty(0, object)
-    idx, raw_res, std_sub = idx[keep], raw_res[keep], std_sub[keep]
+    idx, res_code = idx[keep], res_code[keep]
     # one integer key per residue (chain, number, insertion code)
     _, chain_code = np.unique(atoms.chain[idx], return_inverse=True)
     _, icode_code = np.unique(atoms.icode[idx], return_inverse=True)
@@ -321,10 +319,14 @@ def titratable_sites(
     )
     i0 = idx[first]
     labels = atoms.subset(i0).residue_labels().astype(str)
-    raw_names = raw_res[first]
-    std_names = std_sub[first].astype(str)
-    sign = np.array([TITRATABLE_GROUPS[r][0] for r in std_names], dtype=float)
-    pka = np.array([table[r] for r in std_names], dtype=float)
+    # per residue type: name, sign, pKa and any charge its name fixes (NaN: none)
+    type_sign = np.array([TITRATABLE_GROUPS.get(s, (1,))[0] for s in std_of])
+    type_pka = np.array([table.get(s, np.nan) for s in std_of], dtype=float)
+    type_fixed = np.array([FIXED_STATE_NAMES.get(r, np.nan) for r in raw_of], dtype=float)
+    site_type = res_code[first]
+    std_names = np.array(std_of, dtype=object)[site_type].astype(str) if len(first) else first
+    sign = type_sign[site_type].astype(float)
+    pka = type_pka[site_type]
     charge = hh_charge_e(sign, pka, pH) if len(sign) else np.empty(0)
     state = np.full(len(uniq), "pH", dtype=object)
     # disulfides: SG within 2.5 Å of another SG
@@ -334,8 +336,9 @@ def titratable_sites(
         bonded = cys[np.unique(pairs)] if len(pairs) else np.empty(0, dtype=int)
         charge[bonded] = 0.0
         state[bonded] = "disulfide"
-    fixed = np.flatnonzero(np.isin(raw_names, list(FIXED_STATE_NAMES)) & (state == "pH"))
-    charge[fixed] = [FIXED_STATE_NAMES[r] for r in raw_names[fixed].tolist()]
+    fixed_charge = type_fixed[site_type]
+    fixed = np.flatnonzero(np.isfinite(fixed_charge) & (state == "pH"))
+    charge[fixed] = fixed_charge[fixed]
     state[fixed] = "residue name"
     if overrides:
         for k in range(len(uniq)):
