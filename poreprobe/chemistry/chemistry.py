@@ -12,7 +12,7 @@ and returns a :class:`PoreChemistry`:
   lining the plane; a residue that lines it with backbone atoms only counts with the
   glycine value, the backbone's own, our choice) and the polar share of the lining
   atoms, each also smoothed by a running mean over ``smoothing_window_A`` (default
-  5 Å, close to one helical turn of 5.4 Å; common practice for hydropathy windows);
+  5 Å, our choice: about one turn of an α helix, which rises 5.4 Å per turn);
 * the screened **potential** on the centre line and a chosen ion's energy there
   (:mod:`poreprobe.chemistry.potential`; a crude continuum estimate);
 * **dewetting flags** (:mod:`poreprobe.chemistry.dewetting`).

@@ -22,8 +22,8 @@ Effective permittivity
 Default ``ε_eff = 40``: a charge on a water-filled pore's wall acts on the axis
 through water (78.4) and protein (2 to 4), and effective permittivities of 20 to 80
 are what continuum studies find for solvent-exposed charge pairs in proteins
-(Warshel, Sharma, Kato and Parson 2006, Biochim. Biophys. Acta 1764:1647; range from
-memory). The potential scales as 1/ε_eff: halve it and the potential doubles.
+(Warshel, Sharma, Kato and Parson 2006, Biochim. Biophys. Acta 1764:1647; citation and
+range from memory). The potential scales as 1/ε_eff: halve it and the potential doubles.
 Give your own with ``dielectric``.
 
 What this is not

@@ -13,9 +13,10 @@ pKa tables
   Grimsley, Scholtz and Pace 2009, Protein Sci. 18:247-251 (abstract and summary
   table: Asp 3.5, Glu 4.2, His 6.6, Cys 6.8, Tyr 10.3, Lys 10.5). The paper has no
   folded-protein value for Arg; the 12.04 used here is the Arg entry of the
-  "Grimsley" set as tabulated by Kozlowski 2016, Biol. Direct 11:55, Table 4. The
-  numbers were read in a transcription of that table (the IPC isoelectric-point
-  calculator's source), not in the paper itself.
+  "Grimsley" set as tabulated by Kozlowski 2016, Biol. Direct 11:55 (doi
+  10.1186/s13062-016-0159-9; volume and number from memory), Table 4. The
+  numbers were read in transcriptions of that table (the pKa sets of open-source
+  isoelectric-point calculators), not in the papers themselves.
 * ``"thurlkill2006"``: model alanine pentapeptides, Thurlkill, Grimsley, Scholtz and
   Pace 2006, Protein Sci. 15:1214-1218 (Asp 3.67, Glu 4.25, His 6.54, Cys 8.55,
   Tyr 9.84, Lys 10.40; Arg 12.0 assumed in the same transcription, as the paper did
