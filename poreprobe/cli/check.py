@@ -11,14 +11,7 @@ from poreprobe.checks.quality import (
     SYMMETRY_TOLERANCE_A,
     check_model,
 )
-from poreprobe.cli.chemistry_options import (
-    add_chemistry_args,
-    check_chemistry_args,
-    chemistry_csv,
-    chemistry_from_args,
-    save_chemistry_figure,
-    with_chemistry,
-)
+from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -108,7 +101,7 @@ def register(sub) -> None:
     )
     add_output_args(p)
     add_figure_args(p, ion_bands=False)
-    add_chemistry_args(p)
+    chem_opts.add_chemistry_args(p)
     p.set_defaults(func=run)
 
 
@@ -166,7 +159,7 @@ def lining_csv(report, path=None) -> str:
 
 def run(args) -> int:
     check_figure_path(args)
-    check_chemistry_args(args)
+    chem_opts.check_chemistry_args(args)
     atoms = read_structure(
         args.structure,
         trajectory=args.trajectory,
@@ -204,18 +197,18 @@ def run(args) -> int:
         symmetry_tolerance_A=args.symmetry_tolerance_A,
         warn=False,
     )
-    chem = chemistry_from_args(args, wall_atoms, report.profile, report.lining)
+    chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
     if args.json:
-        to_json(with_chemistry(report, chem), args.json)
+        to_json(chem_opts.with_chemistry(report, chem), args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
-        chemistry_csv(chem, args.chemistry_csv)
+        chem_opts.chemistry_csv(chem, args.chemistry_csv)
     for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
         say(args, line)
     if args.figure:
         if chem is None:
             save_figure(args, "profile", report)
         else:
-            save_chemistry_figure(args, with_chemistry(report, chem))
+            chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(report, chem))
     return 0

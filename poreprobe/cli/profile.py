@@ -2,14 +2,7 @@
 
 from __future__ import annotations
 
-from poreprobe.cli.chemistry_options import (
-    add_chemistry_args,
-    check_chemistry_args,
-    chemistry_csv,
-    chemistry_from_args,
-    save_chemistry_figure,
-    with_chemistry,
-)
+from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -38,7 +31,7 @@ def register(sub) -> None:
     add_profile_args(p)
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
-    add_chemistry_args(p)
+    chem_opts.add_chemistry_args(p)
     p.set_defaults(func=run)
 
 
@@ -88,19 +81,19 @@ def _fmt(vec, digits=2):
 
 def run(args) -> int:
     check_figure_path(args)
-    check_chemistry_args(args)
+    chem_opts.check_chemistry_args(args)
     atoms, _, prof = compute(args)
-    chem = chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
+    chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
-        to_json(with_chemistry(prof, chem), args.json)
+        to_json(chem_opts.with_chemistry(prof, chem), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
     if chem is not None and args.chemistry_csv:
-        chemistry_csv(chem, args.chemistry_csv)
+        chem_opts.chemistry_csv(chem, args.chemistry_csv)
     for line in summary_lines(atoms, prof) + ([] if chem is None else chem.report_lines()):
         say(args, line)
     if chem is None:
         save_figure(args, "profile", prof)
     elif args.figure:
-        save_chemistry_figure(args, with_chemistry(prof, chem))
+        chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(prof, chem))
     return 0
