@@ -11,13 +11,17 @@ from poreprobe.checks.quality import (
     SYMMETRY_TOLERANCE_A,
     check_model,
 )
+from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
+    add_figure_args,
     add_output_args,
     add_profile_args,
     add_structure_args,
+    check_figure_path,
     load_axis,
     radius_set_from_args,
+    save_figure,
     say,
 )
 from poreprobe.geometry.clashes import CLASH_FRACTION
@@ -96,6 +100,8 @@ def register(sub) -> None:
         f"consensus (default {SYMMETRY_TOLERANCE_A:g})",
     )
     add_output_args(p)
+    add_figure_args(p, ion_bands=False)
+    chem_opts.add_chemistry_args(p)
     p.set_defaults(func=run)
 
 
@@ -152,6 +158,8 @@ def lining_csv(report, path=None) -> str:
 
 
 def run(args) -> int:
+    check_figure_path(args)
+    chem_opts.check_chemistry_args(args)
     atoms = read_structure(
         args.structure,
         trajectory=args.trajectory,
@@ -189,10 +197,18 @@ def run(args) -> int:
         symmetry_tolerance_A=args.symmetry_tolerance_A,
         warn=False,
     )
+    chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
     if args.json:
-        to_json(report, args.json)
+        to_json(chem_opts.with_chemistry(report, chem), args.json)
     if args.csv:
         lining_csv(report, args.csv)
-    for line in report.report_lines():
+    if chem is not None and args.chemistry_csv:
+        chem_opts.chemistry_csv(chem, args.chemistry_csv)
+    for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
         say(args, line)
+    if args.figure:
+        if chem is None:
+            save_figure(args, "profile", report)
+        else:
+            chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(report, chem))
     return 0

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -10,6 +11,7 @@ from poreprobe.cli.common import (
     add_structure_args,
     check_figure_path,
     load_model,
+    radius_set_from_args,
     save_figure,
     say,
 )
@@ -29,6 +31,7 @@ def register(sub) -> None:
     add_profile_args(p)
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
+    chem_opts.add_chemistry_args(p)
     p.set_defaults(func=run)
 
 
@@ -78,12 +81,19 @@ def _fmt(vec, digits=2):
 
 def run(args) -> int:
     check_figure_path(args)
+    chem_opts.check_chemistry_args(args)
     atoms, _, prof = compute(args)
+    chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
-        to_json(prof, args.json)
+        to_json(chem_opts.with_chemistry(prof, chem), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
-    for line in summary_lines(atoms, prof):
+    if chem is not None and args.chemistry_csv:
+        chem_opts.chemistry_csv(chem, args.chemistry_csv)
+    for line in summary_lines(atoms, prof) + ([] if chem is None else chem.report_lines()):
         say(args, line)
-    save_figure(args, "profile", prof)
+    if chem is None:
+        save_figure(args, "profile", prof)
+    elif args.figure:
+        chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(prof, chem))
     return 0
