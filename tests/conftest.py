@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 
 def mdanalysis_test_file(name: str) -> str:

@@ -13,6 +13,7 @@ from poreprobe.cli.common import (
     backend_from_args,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError
 from poreprobe.io.export import to_json
 from poreprobe.scale.batch import batch_csv, profile_files
@@ -31,6 +32,7 @@ def register(sub) -> None:
     p.add_argument(
         "files",
         metavar="FILES",
+        type=InputPath,
         nargs="+",
         help="structure files or quoted glob patterns, e.g. 'models/*.cif'",
     )

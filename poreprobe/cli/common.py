@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.geometry.axis import AXIS_METHODS, PoreAxis, find_pore_axis
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RADIUS_SETS, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms, read_structure
@@ -16,6 +17,7 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
         parser.add_argument(
             "structure",
             metavar="STRUCTURE",
+            type=InputPath,
             help="channel model: PDB/mmCIF (optionally .gz) or any file "
             "MDAnalysis reads (GRO, PSF, XYZ, ...)",
         )
@@ -23,6 +25,7 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
     g.add_argument(
         "--trajectory",
         metavar="FILE",
+        type=InputPath,
         help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD)",
     )
     g.add_argument(
@@ -72,6 +75,7 @@ def add_radii_args(group) -> None:
     group.add_argument(
         "--radii-file",
         metavar="TOML",
+        type=InputPath,
         help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
     )
 
@@ -137,9 +141,9 @@ def add_profile_args(parser: argparse.ArgumentParser, *, step_A: float = 0.2):
 def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> None:
     """--json, --csv and --quiet."""
     g = parser.add_argument_group("output")
-    g.add_argument("--json", metavar="FILE", help="write the result as JSON")
+    g.add_argument("--json", metavar="FILE", type=OutputPath, help="write the result as JSON")
     if csv:
-        g.add_argument("--csv", metavar="FILE", help="write the table as CSV")
+        g.add_argument("--csv", metavar="FILE", type=OutputPath, help="write the table as CSV")
     g.add_argument(
         "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
     )
@@ -333,6 +337,7 @@ def add_figure_args(
     g.add_argument(
         "--figure",
         metavar="FILE",
+        type=OutputPath,
         help="also draw this command's figure: PNG, SVG or PDF by the suffix",
     )
     if kinds:

@@ -12,6 +12,7 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     say,
 )
+from poreprobe.cli.outputs import OutputPath
 from poreprobe.cli.profile import compute as compute_profile
 from poreprobe.errors import InputError
 from poreprobe.io.radii import atom_radii_A
@@ -33,16 +34,21 @@ def register(sub) -> None:
     add_profile_args(p)
     g = p.add_argument_group("exports (at least one)")
     g.add_argument(
-        "--map", metavar="FILE", help="reach (or clearance) map, .map/.ccp4/.mrc (values in Å)"
+        "--map",
+        metavar="FILE",
+        type=OutputPath,
+        help="reach (or clearance) map, .map/.ccp4/.mrc (values in Å)",
     )
     g.add_argument(
         "--mesh",
         metavar="FILE",
+        type=OutputPath,
         help="pore surface for --probe-radius-A, .ply or .obj (coordinates in Å)",
     )
     g.add_argument(
         "--centerline",
         metavar="FILE",
+        type=OutputPath,
         help="centre line with radius and lining residues per point, .cif",
     )
     o = p.add_argument_group("export options")

@@ -66,10 +66,6 @@ class OneLineParser(argparse.ArgumentParser):
         raise SystemExit(2)
 
 
-def _show_warning(message, category, filename, lineno, file=None, line=None):
-    sys.stderr.write(f"poreprobe: warning: {message}\n")
-
-
 def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     """The argument parser.
 
@@ -117,18 +113,40 @@ def main(argv=None) -> int:
     logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
     # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
     logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
+    return _run(args, argv)
+
+
+def _run(args: argparse.Namespace, argv: list[str]) -> int:
+    """Run one parsed command inside its output plan; errors become one line."""
+    from poreprobe.cli.outputs import input_paths, plan_outputs
+    from poreprobe.io.provenance import RunRecord
+
+    record = RunRecord(
+        argv, vars(args), input_paths(args), quiet=bool(getattr(args, "quiet", False))
+    )
     with warnings.catch_warnings():
-        warnings.showwarning = _show_warning
-        if getattr(args, "quiet", False):
-            warnings.simplefilter("ignore")
+        warnings.simplefilter("default")
+        warnings.showwarning = record.show_warning
         try:
-            return int(args.func(args) or 0)
+            with plan_outputs(args, annotate=record.annotate) as plan:
+                code = int(args.func(args) or 0)
+                plan.commit()
+            return code
         except PoreprobeError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc}\n")
+            _error(str(exc))
             return 2
         except OSError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: {exc.filename or ''}\n")
+            _error(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))
             return 2
+        except KeyboardInterrupt:
+            sys.stderr.write("poreprobe: interrupted\n")
+            return 130
+
+
+def _error(message: str) -> None:
+    """One line on stderr, whatever the message holds."""
+    text = " ".join(str(message).split()) or "unknown error"
+    sys.stderr.write(f"poreprobe: error: {text}\n")
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -27,6 +27,7 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.cli.scan import add_scan_args
 from poreprobe.cli.scan import compute as scan_compute
 from poreprobe.errors import InputError
@@ -47,6 +48,7 @@ def register(sub) -> None:
         "structure",
         nargs="?",
         metavar="STRUCTURE",
+        type=InputPath,
         help="channel model (optional): PDB/mmCIF or any file MDAnalysis reads; "
         "without it only the capture radius is computed",
     )

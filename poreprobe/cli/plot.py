@@ -6,6 +6,7 @@ import json
 import os
 
 from poreprobe.cli.common import add_figure_size_args, add_ion_band_args, figure_ion_radii, say
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.errors import InputError
 
 KIND_HELP = {
@@ -34,9 +35,16 @@ def register(sub) -> None:
     p.add_argument(
         "kind", metavar="KIND", choices=FIGURE_KINDS, help="figure kind: " + ", ".join(FIGURE_KINDS)
     )
-    p.add_argument("inputs", metavar="INPUT", nargs="+", help="JSON files written by poreprobe")
     p.add_argument(
-        "-o", "--output", metavar="FIG", required=True, help="figure file: .png, .svg or .pdf"
+        "inputs", metavar="INPUT", nargs="+", type=InputPath, help="JSON files written by poreprobe"
+    )
+    p.add_argument(
+        "-o",
+        "--output",
+        metavar="FIG",
+        type=OutputPath,
+        required=True,
+        help="figure file: .png, .svg or .pdf",
     )
     g = p.add_argument_group("figure")
     add_figure_size_args(g)

@@ -17,6 +17,7 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.io.export import to_json
 from poreprobe.scale.defaults import AXIS_MODES, DEFAULT_PERCENTILES, default_closing_threshold
 
@@ -33,11 +34,13 @@ def register(sub) -> None:
     p.add_argument(
         "topology",
         metavar="TOPOLOGY",
+        type=InputPath,
         help="topology or multi-model file (anything MDAnalysis reads: PDB, PSF, GRO, TPR, ...)",
     )
     p.add_argument(
         "trajectory",
         metavar="TRAJECTORY",
+        type=InputPath,
         nargs="?",
         help="trajectory (DCD, XTC, TRR, multi-model PDB, ...); omit for a multi-model TOPOLOGY",
     )
@@ -138,6 +141,7 @@ def register(sub) -> None:
     p.add_argument_group("per-frame output").add_argument(
         "--frames-csv",
         metavar="FILE",
+        type=OutputPath,
         help="write one row per frame (narrowest radius, its position, capture radius, "
         "closed flag) as CSV",
     )
