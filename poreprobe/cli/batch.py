@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import glob
+import os
+
 from poreprobe.bench.ions import IONS
 from poreprobe.cli.common import (
     add_axis_args,
@@ -64,6 +67,10 @@ def run(args) -> int:
         raise InputError(
             "--trajectory and --frame do not apply to batch; use 'poreprobe traj' for a trajectory"
         )
+    for item in args.files:  # a pattern that matches nothing is a bad command line
+        is_pattern = set("*?[") & set(item) and not os.path.exists(item)
+        if is_pattern and not glob.glob(item, recursive=True):
+            raise InputError(f"pattern {item} matches no files")
     backend, workers = backend_from_args(args)
     summary = profile_files(
         args.files,

@@ -65,9 +65,15 @@ def read_json(path: str) -> dict:
     """Load one result JSON file (InputError naming the file if it is not one)."""
     if not os.path.isfile(path):
         raise InputError(f"no such file: {path}")
+
+    def no_constants(name):
+        raise InputError(
+            f"{path} holds {name}, which is not JSON (poreprobe writes null for missing values)"
+        )
+
     try:
         with open(path, encoding="utf-8") as fh:
-            data = json.load(fh)
+            data = json.load(fh, parse_constant=no_constants)
     except (UnicodeDecodeError, json.JSONDecodeError) as exc:
         raise InputError(f"{path} is not a JSON file ({exc})") from exc
     if not isinstance(data, dict):

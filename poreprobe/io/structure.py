@@ -359,8 +359,17 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     kind[np.isin(np.char.upper(resnames), list(WATER_NAMES))] = "water"
     resids = np.asarray(ag.resids, dtype=np.int64)
     kind = _adopt_caps(kind, chain, resids)
+    positions = np.array(ag.positions, dtype=np.float64)
+    if not np.isfinite(positions).all():
+        i = int(np.flatnonzero(~np.isfinite(positions).all(axis=1))[0])
+        frame = getattr(getattr(ag.universe.trajectory, "ts", None), "frame", None)
+        raise InputError(
+            f"{source}: atom {chain[i]}:{resnames[i]}{resids[i]} {names[i]} (atom {i + 1}) "
+            f"has a non-finite coordinate{'' if frame is None else f' in frame {frame}'}; "
+            "the file is damaged"
+        )
     atoms = Atoms(
-        coords_A=np.array(ag.positions, dtype=np.float64),
+        coords_A=positions,
         element=element,
         name=names,
         resname=resnames,
@@ -407,7 +416,38 @@ def open_universe(path: str, trajectory: str | None = None):
             return mda.Universe(*args)
     except Exception as exc:  # MDAnalysis raises many types for unreadable files
         msg = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
-        raise InputError(f"cannot read {path}: {msg}") from exc
+        _collect_quietly()  # half-built readers complain from __del__ otherwise
+        culprit = path if trajectory is None or not _opens_alone(path) else trajectory
+        raise InputError(f"cannot read {culprit}: {msg}") from exc
+
+
+def _opens_alone(path: str) -> bool:
+    """Does the topology open on its own? (Then a failure with a trajectory is the trajectory's.)"""
+    import warnings
+
+    import MDAnalysis as mda
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            mda.Universe(path)
+    except Exception:  # noqa: BLE001 - any failure means the topology is to blame
+        _collect_quietly()
+        return False
+    return True
+
+
+def _collect_quietly() -> None:
+    """Garbage-collect without the 'Exception ignored in __del__' noise of broken readers."""
+    import gc
+    import sys
+
+    hook = sys.unraisablehook
+    sys.unraisablehook = lambda unraisable: None
+    try:
+        gc.collect()
+    finally:
+        sys.unraisablehook = hook
 
 
 def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
@@ -431,6 +471,12 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
             f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}"
         )
     has_alt = atoms.altloc != ""
+    if policy not in ALTLOC_POLICIES and policy not in set(atoms.altloc[has_alt].tolist()):
+        letters = sorted(set(atoms.altloc[has_alt].tolist()))
+        raise InputError(
+            f"altloc {policy!r} is not in {atoms.source or 'the model'}: "
+            + (f"its alternate locations are {', '.join(letters)}" if letters else "it has none")
+        )
     if not has_alt.any():
         return replace(atoms, altloc_policy=policy)
     idx = np.flatnonzero(has_alt)
@@ -621,7 +667,11 @@ def read_structure(
     >>> len(atoms), atoms.source
     (2220, 'demo_channel.pdb')
     """
+    from poreprobe.io import sanity
+
     path = os.fspath(path)
+    if os.path.isdir(path):
+        raise InputError(f"cannot read {path}: it is a directory, not a file")
     if not os.path.isfile(path):
         raise InputError(f"no such file: {path}")
     if os.path.getsize(path) == 0:
@@ -641,13 +691,14 @@ def read_structure(
         if len(universe.atoms) == 0:
             raise InputError(f"{path} holds no atoms")
         atoms = atoms_from_atomgroup(universe.atoms, source=os.path.basename(path))
-    atoms = resolve_altlocs(atoms, altloc)
+    sanity.check_coordinates(atoms, path)
+    atoms = sanity.drop_duplicate_atoms(resolve_altlocs(atoms, altloc))
     atoms = clean(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
     if len(atoms) == 0:
         raise InputError(f"no atoms left in {path} after cleaning (try keeping hetero groups)")
     if selection:
         atoms = select(atoms, selection)
-    return atoms
+    return sanity.drop_far_atoms(atoms)
 
 
 def atoms_field_names() -> tuple[str, ...]:

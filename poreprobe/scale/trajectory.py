@@ -847,7 +847,9 @@ def profile_trajectory(
         context = open_backend(
             backend, n_workers=n_workers, scheduler=scheduler, quiet=quiet, desc="frame blocks"
         )
-    with context as executor:
+    from poreprobe.io.sanity import frame_read_errors
+
+    with frame_read_errors(trajectory or topology), context as executor:
         if isinstance(executor, BackendSerial):  # a bar that advances frame by frame
             from poreprobe._progress import progress
 
