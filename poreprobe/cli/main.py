@@ -100,8 +100,14 @@ def _command_in(argv: list[str]) -> str:
 
 
 def main(argv=None) -> int:
-    """Run the command line; returns the exit code."""
-    argv = list(sys.argv[1:] if argv is None else argv)
+    """Run the command line; returns the exit code (130 after Ctrl-C)."""
+    try:
+        return _main(list(sys.argv[1:] if argv is None else argv))
+    except KeyboardInterrupt:
+        return _interrupted()
+
+
+def _main(argv: list[str]) -> int:
     parser = build_parser(_command_in(argv))
     try:
         args = parser.parse_args(argv)
@@ -118,29 +124,48 @@ def main(argv=None) -> int:
 
 def _run(args: argparse.Namespace, argv: list[str]) -> int:
     """Run one parsed command inside its output plan; errors become one line."""
-    from poreprobe.cli.outputs import input_paths, plan_outputs
+    from poreprobe.cli.outputs import input_paths
     from poreprobe.io.provenance import RunRecord
 
     record = RunRecord(
         argv, vars(args), input_paths(args), quiet=bool(getattr(args, "quiet", False))
     )
-    with warnings.catch_warnings():
-        warnings.simplefilter("default")
-        warnings.showwarning = record.show_warning
-        try:
-            with plan_outputs(args, annotate=record.annotate) as plan:
-                code = int(args.func(args) or 0)
-                plan.commit()
-            return code
-        except PoreprobeError as exc:
-            _error(str(exc))
-            return 2
-        except OSError as exc:
-            _error(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))
-            return 2
-        except KeyboardInterrupt:
-            sys.stderr.write("poreprobe: interrupted\n")
-            return 130
+    # broken readers of damaged files complain from __del__; the error line says it all
+    old_hook, sys.unraisablehook = sys.unraisablehook, _ignore_unraisable
+    try:
+        with warnings.catch_warnings():
+            warnings.showwarning = record.show_warning
+            return _run_planned(args, record)
+    finally:
+        sys.unraisablehook = old_hook
+
+
+def _run_planned(args: argparse.Namespace, record) -> int:
+    from poreprobe.cli.outputs import plan_outputs
+
+    try:
+        with plan_outputs(args, annotate=record.annotate) as plan:
+            code = int(args.func(args) or 0)
+            plan.commit()
+        return code
+    except PoreprobeError as exc:
+        _error(str(exc))
+        return 2
+    except OSError as exc:
+        _error(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))
+        return 2
+    except KeyboardInterrupt:
+        return _interrupted()
+
+
+def _interrupted() -> int:
+    """Ctrl-C: one line, exit status 130 (128 + SIGINT), nothing written."""
+    sys.stderr.write("poreprobe: interrupted\n")
+    return 130
+
+
+def _ignore_unraisable(unraisable) -> None:
+    """Silence 'Exception ignored in ...' reports (garbage-collected broken readers)."""
 
 
 def _error(message: str) -> None:
