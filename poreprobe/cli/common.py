@@ -221,7 +221,8 @@ def add_backend_args(parser: argparse.ArgumentParser):
         "--scheduler",
         metavar="ADDRESS",
         help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
-        "(implies --backend dask; files must be readable by every worker)",
+        "(implies --backend dask; files must be readable by every worker). Only a "
+        "cluster you control: dask exchanges pickled data, which can run code",
     )
     return g
 
