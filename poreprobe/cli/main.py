@@ -160,8 +160,26 @@ def _run_planned(args: argparse.Namespace, record) -> int:
 
 def _interrupted() -> int:
     """Ctrl-C: one line, exit status 130 (128 + SIGINT), nothing written."""
+    _close_progress_bars()
     sys.stderr.write("poreprobe: interrupted\n")
     return 130
+
+
+def _close_progress_bars() -> None:
+    """Clear progress bars still on the terminal, so our line starts a clean line."""
+    tqdm_module = sys.modules.get("tqdm")
+    if tqdm_module is None:
+        return
+    for bar in list(getattr(tqdm_module.tqdm, "_instances", ())):
+        try:
+            bar.close()
+        except Exception:  # noqa: BLE001 - a bar that cannot close is left as it is
+            pass
+    try:
+        if sys.stderr.isatty():  # a bar caught half-drawn: back to the line start, erase it
+            sys.stderr.write("\r\033[K")
+    except (OSError, ValueError):
+        pass
 
 
 def _ignore_unraisable(unraisable) -> None:
@@ -171,6 +189,7 @@ def _ignore_unraisable(unraisable) -> None:
 def _error(message: str) -> None:
     """One line on stderr, whatever the message holds."""
     text = " ".join(str(message).split()) or "unknown error"
+    _close_progress_bars()
     sys.stderr.write(f"poreprobe: error: {text}\n")
 
 

@@ -333,15 +333,16 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     n = len(ag)
     if n == 0:
         raise InputError("the atom group is empty")
-    names = np.asarray(ag.names).astype(str)
-    resnames = np.asarray(ag.resnames).astype(str)
 
     def attr(name, default):
         try:
             vals = np.asarray(getattr(ag, name))
-        except (AttributeError, ValueError):
+        except (AttributeError, ValueError):  # NoDataError is an AttributeError
             return np.full(n, default)
         return vals if len(vals) == n else np.full(n, default)
+
+    names = attr("names", "X").astype(str)
+    resnames = attr("resnames", "UNK").astype(str)  # bare XYZ files have no residues
 
     element = np.char.upper(attr("elements", "").astype(str))
     missing = element == ""
@@ -357,7 +358,7 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     protein_names = set(ProteinSelection.prot_res)
     kind = np.where(np.isin(resnames, list(protein_names)), "polymer", "hetero").astype(object)
     kind[np.isin(np.char.upper(resnames), list(WATER_NAMES))] = "water"
-    resids = np.asarray(ag.resids, dtype=np.int64)
+    resids = attr("resids", 1).astype(np.int64)
     kind = _adopt_caps(kind, chain, resids)
     positions = np.array(ag.positions, dtype=np.float64)
     if not np.isfinite(positions).all():

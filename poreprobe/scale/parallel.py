@@ -247,6 +247,7 @@ def _local_cluster_quietly(factory, **kwargs):
     import threading
     import warnings
 
+    _quiet_resource_tracker()
     main = threading.current_thread() is threading.main_thread()
     old = signal.signal(signal.SIGINT, signal.SIG_IGN) if main else None
     try:
@@ -256,6 +257,24 @@ def _local_cluster_quietly(factory, **kwargs):
     finally:
         if main:
             signal.signal(signal.SIGINT, old)
+
+
+def _quiet_resource_tracker() -> None:
+    """Start multiprocessing's resource tracker without its 'leaked semaphore' notice.
+
+    After a stopped run the tracker unlinks what the workers left, and says so on the
+    terminal; it still cleans up, but the notice is not ours to print. The tracker
+    takes its warning filters from ``sys.warnoptions`` when it starts.
+    """
+    import sys
+    from multiprocessing import resource_tracker
+
+    saved = list(sys.warnoptions)
+    sys.warnoptions.append("ignore:resource_tracker:UserWarning")
+    try:
+        resource_tracker.ensure_running()
+    finally:
+        sys.warnoptions[:] = saved
 
 
 @contextlib.contextmanager
