@@ -183,7 +183,13 @@ CASES = [
     ("huge-cif", ["profile", S("big.cif")], 2, r"beyond ±100000 Å", None),
     ("nan-gro", ["profile", S("nan.gro")], 2, r"nan\.gro: atom .* non-finite", None),
     ("nan-xyz", ["profile", S("nan.xyz")], 2, r"nan\.xyz: atom .* non-finite", None),
-    ("altloc-absent", ["profile", C4, "--altloc", "Z"], 2, r"altloc 'Z' is not in c4\.pdb", None),
+    (
+        "altloc-absent",
+        ["profile", C4, "--altloc", "Z"],
+        2,
+        r"--altloc Z: c4\.pdb has no alternate locations",
+        None,
+    ),
     ("altloc-word", ["profile", C4, "--altloc", "best"], 2, r"altloc", None),
     ("model-range", ["profile", C4, "--model", "5"], 2, r"model must be between 0 and 0", None),
     ("select-empty", ["profile", C4, "--select", "resname XYZ"], 2, r"matches no atoms", None),
@@ -201,10 +207,10 @@ CASES = [
     ("step-text", ["profile", C4, "--step-A", "wide"], 2, r"invalid float value", None),
     ("figure-suffix", ["profile", C4, "--figure", S("fig.txt")], 2, r"fig\.txt", None),
     ("figure-dpi", ["profile", C4, "--figure", S("fig.png"), "--dpi", "0"], 2, r"dpi", None),
-    ("scan-probe-start", ["scan", C4, "--probes", "0:1:0.1"], 2, r"START must be > 0", None),
-    ("scan-probe-order", ["scan", C4, "--probes", "5:1"], 2, r"STOP must be >= START", None),
-    ("scan-probe-text", ["scan", C4, "--probes", "a:b"], 2, r"must be numbers", None),
-    ("scan-probe-many", ["scan", C4, "--probes", "0.1:50:0.001"], 2, r"limit 1000", None),
+    ("scan-probe-start", ["scan", C4, "--probe-radii-A", "0:1:0.1"], 2, r"START must be > 0", None),
+    ("scan-probe-order", ["scan", C4, "--probe-radii-A", "5:1"], 2, r"STOP must be >= START", None),
+    ("scan-probe-text", ["scan", C4, "--probe-radii-A", "a:b"], 2, r"must be numbers", None),
+    ("scan-probe-many", ["scan", C4, "--probe-radii-A", "0.1:50:0.001"], 2, r"limit 1000", None),
     ("match-current", ["match", "--current-pA", "-1", "--conc-mM", "150"], 2, r"current", None),
     ("match-conc", ["match", "--current-pA", "5", "--conc-mM", "0"], 2, r"conc", None),
     (
@@ -217,7 +223,15 @@ CASES = [
     ("resistance-nothing", ["resistance"], 2, r"give a STRUCTURE", None),
     (
         "resistance-g",
-        ["resistance", "--from-conductances", "1,2", "--factor-entry", "2", "--factor-far", "2"],
+        [
+            "resistance",
+            "--from-conductances",
+            "1,2",
+            "--raised-entry-factor",
+            "2",
+            "--raised-far-factor",
+            "2",
+        ],
         2,
         r"three",
         None,
@@ -241,21 +255,21 @@ CASES = [
     ),
     (
         "traj-garbage",
-        ["traj", C4, S("garbage.xtc"), "--select", "all", "--quiet"],
+        ["traj", C4, "--trajectory", S("garbage.xtc"), "--select", "all", "--quiet"],
         2,
         r"cannot read .*garbage\.xtc",
         None,
     ),
     (
         "traj-start",
-        ["traj", S("traj.pdb"), "--select", "all", "--quiet", "--start", "100"],
+        ["traj", S("traj.pdb"), "--select", "all", "--quiet", "--frame-start", "100"],
         2,
         r"no frames",
         None,
     ),
     (
         "traj-step-zero",
-        ["traj", S("traj.pdb"), "--select", "all", "--quiet", "--step", "0"],
+        ["traj", S("traj.pdb"), "--select", "all", "--quiet", "--frame-step", "0"],
         2,
         r"step",
         None,
@@ -284,18 +298,30 @@ CASES = [
     ("export-nothing", ["export", C4], 2, r"nothing to export", None),
     ("export-mesh-probe", ["export", C4, "--mesh", S("m.ply")], 2, r"needs --probe-radius-A", None),
     ("export-map-suffix", ["export", C4, "--map", S("m.txt")], 2, r"m\.txt", None),
-    ("plot-nan-json", ["plot", "profile", S("nan.json"), "-o", S("f.png")], 2, r"holds NaN", None),
+    (
+        "plot-nan-json",
+        ["plot", "profile", S("nan.json"), "--figure", S("f.png")],
+        2,
+        r"holds NaN",
+        None,
+    ),
     (
         "plot-not-json",
-        ["plot", "profile", S("not.json"), "-o", S("f.png")],
+        ["plot", "profile", S("not.json"), "--figure", S("f.png")],
         2,
         r"is not a JSON file",
         None,
     ),
-    ("plot-dir", ["plot", "profile", S("folder"), "-o", S("f.png")], 2, r"it is a directory", None),
+    (
+        "plot-dir",
+        ["plot", "profile", S("folder"), "--figure", S("f.png")],
+        2,
+        r"it is a directory",
+        None,
+    ),
     (
         "plot-same-file",
-        ["plot", "profile", S("profile.json"), "-o", S("profile.json")],
+        ["plot", "profile", S("profile.json"), "--figure", S("profile.json")],
         2,
         r"same file as the input",
         None,
@@ -572,7 +598,7 @@ def case_traj_capture_figure(d, capfd):
         "all",
         "--quiet",
         "--quiet",
-        "--capture-probe-radius-A",
+        "--probe-radius-A",
         "1",
     ]
     return argv + ["--figure", f"{d}/t.png", "--json", f"{d}/t.json", "--csv", f"{d}/t.csv"], check
@@ -684,12 +710,12 @@ def _screen_lines(raw: bytes) -> list[str]:
     return [ln for ln in shown if ln]
 
 
-TRAJ = [str(DEMO / "demo_channel.pdb"), str(DEMO / "demo_breathing.xtc")]
+TRAJ = [str(DEMO / "demo_channel.pdb"), "--trajectory", str(DEMO / "demo_breathing.xtc")]
 SIGINT_CASES = [
     ("traj-serial", ["traj", *TRAJ]),
     ("traj-multiprocessing", ["traj", *TRAJ, "--backend", "multiprocessing", "--workers", "2"]),
     ("traj-dask", ["traj", *TRAJ, "--backend", "dask", "--workers", "2"]),
-    ("scan-serial", ["scan", str(DEMO / "demo_channel.pdb"), "--probes", "0.5:6:0.1"]),
+    ("scan-serial", ["scan", str(DEMO / "demo_channel.pdb"), "--probe-radii-A", "0.5:6:0.1"]),
     ("batch-multiprocessing", ["batch", str(DEMO / "*.cif"), "--backend", "multiprocessing"]),
 ]
 

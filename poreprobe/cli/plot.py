@@ -39,12 +39,11 @@ def register(sub) -> None:
         "inputs", metavar="INPUT", nargs="+", type=InputPath, help="JSON files written by poreprobe"
     )
     p.add_argument(
-        "-o",
-        "--output",
-        metavar="FIG",
+        "--figure",
+        metavar="FILE",
         type=OutputPath,
         required=True,
-        help="figure file: .png, .svg or .pdf",
+        help="figure file: PNG, SVG or PDF by the suffix",
     )
     g = p.add_argument_group("figure")
     add_figure_size_args(g)
@@ -87,7 +86,7 @@ def run(args) -> int:
     from poreprobe.figures import plots
 
     plots.check_figure_options(
-        args.output, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
+        args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
     )
     labels = None
     if args.labels:
@@ -96,8 +95,8 @@ def run(args) -> int:
             raise InputError("--labels applies to the overlay figure only")
     if args.band and args.kind != "overlay":
         raise InputError("--band applies to the overlay figure only")
-    if args.ion and args.kind in ("resistance", "kymograph"):
-        raise InputError(f"--ion does not apply to the {args.kind} figure")
+    if args.figure_ion and args.kind in ("resistance", "kymograph"):
+        raise InputError(f"--figure-ion does not apply to the {args.kind} figure")
     results = [read_json(path) for path in args.inputs]
     ax = plots.draw_figure(
         args.kind,
@@ -108,6 +107,6 @@ def run(args) -> int:
         labels=labels,
         band=args.band,
     )
-    plots.save_figure(ax, args.output, dpi=args.dpi)
-    say(args, f"{args.kind} figure: {args.output}")
+    plots.save_figure(ax, args.figure, dpi=args.dpi)
+    say(args, f"{args.kind} figure: {args.figure}")
     return 0

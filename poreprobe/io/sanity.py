@@ -10,6 +10,8 @@
 * :func:`drop_far_atoms` drops small groups of atoms far from the body of the
   model (a misplaced ligand, a stray record thousands of Å away) and warns, so they
   cannot stretch the grids the profile and the scans lay around the model.
+* :func:`frame_read_errors`, :func:`opens_alone` and :func:`collect_quietly` make a
+  damaged trajectory one line that blames the right file.
 """
 
 from __future__ import annotations
@@ -166,3 +168,32 @@ def frame_read_errors(path: str) -> Iterator[None]:
     except (OSError, EOFError, struct.error) as exc:
         text = " ".join(str(exc).split()) or type(exc).__name__
         raise InputError(f"cannot read the frames of {path}: {text}") from None
+
+
+def opens_alone(path: str) -> bool:
+    """Does the topology open on its own? (Then a failure with a trajectory is the trajectory's.)"""
+    import warnings
+
+    import MDAnalysis as mda
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            mda.Universe(path)
+    except Exception:  # noqa: BLE001 - any failure means the topology is to blame
+        collect_quietly()
+        return False
+    return True
+
+
+def collect_quietly() -> None:
+    """Garbage-collect without the 'Exception ignored in __del__' noise of broken readers."""
+    import gc
+    import sys
+
+    hook = sys.unraisablehook
+    sys.unraisablehook = lambda unraisable: None
+    try:
+        gc.collect()
+    finally:
+        sys.unraisablehook = hook

@@ -361,14 +361,13 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     resids = attr("resids", 1).astype(np.int64)
     kind = _adopt_caps(kind, chain, resids)
     positions = np.array(ag.positions, dtype=np.float64)
-    if not np.isfinite(positions).all():
-        i = int(np.flatnonzero(~np.isfinite(positions).all(axis=1))[0])
+    if not np.isfinite(positions).all():  # one line naming the atom (and the frame)
+        from poreprobe.io.sanity import check_coordinates
+
         frame = getattr(getattr(ag.universe.trajectory, "ts", None), "frame", None)
-        raise InputError(
-            f"{source}: atom {chain[i]}:{resnames[i]}{resids[i]} {names[i]} (atom {i + 1}) "
-            f"has a non-finite coordinate{'' if frame is None else f' in frame {frame}'}; "
-            "the file is damaged"
-        )
+        where = source if frame is None else f"{source}, frame {frame}"
+        bad = make_atoms(positions, name=names, resname=resnames, resid=resids, chain=chain)
+        check_coordinates(bad, where)
     atoms = Atoms(
         coords_A=positions,
         element=element,
@@ -417,38 +416,11 @@ def open_universe(path: str, trajectory: str | None = None):
             return mda.Universe(*args)
     except Exception as exc:  # MDAnalysis raises many types for unreadable files
         msg = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
-        _collect_quietly()  # half-built readers complain from __del__ otherwise
-        culprit = path if trajectory is None or not _opens_alone(path) else trajectory
+        from poreprobe.io.sanity import collect_quietly, opens_alone
+
+        collect_quietly()  # half-built readers complain from __del__ otherwise
+        culprit = path if trajectory is None or not opens_alone(path) else trajectory
         raise InputError(f"cannot read {culprit}: {msg}") from exc
-
-
-def _opens_alone(path: str) -> bool:
-    """Does the topology open on its own? (Then a failure with a trajectory is the trajectory's.)"""
-    import warnings
-
-    import MDAnalysis as mda
-
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            mda.Universe(path)
-    except Exception:  # noqa: BLE001 - any failure means the topology is to blame
-        _collect_quietly()
-        return False
-    return True
-
-
-def _collect_quietly() -> None:
-    """Garbage-collect without the 'Exception ignored in __del__' noise of broken readers."""
-    import gc
-    import sys
-
-    hook = sys.unraisablehook
-    sys.unraisablehook = lambda unraisable: None
-    try:
-        gc.collect()
-    finally:
-        sys.unraisablehook = hook
 
 
 def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
@@ -471,15 +443,25 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
         raise InputError(
             f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}"
         )
+    keep, dropped = altloc_keep(atoms, policy)
+    if not dropped:
+        return replace(atoms, altloc_policy=policy)
+    note = f"altlocs: kept one of each ({policy}), dropped {dropped} alternate atoms"
+    return replace(atoms.subset(keep, note), altloc_policy=policy)
+
+
+def altloc_keep(atoms: Atoms, policy: str) -> tuple[np.ndarray, int]:
+    """Which atoms :func:`resolve_altlocs` keeps (a boolean mask) and how many it drops."""
     has_alt = atoms.altloc != ""
-    if policy not in ALTLOC_POLICIES and policy not in set(atoms.altloc[has_alt].tolist()):
-        letters = sorted(set(atoms.altloc[has_alt].tolist()))
+    present = set(atoms.altloc[has_alt].tolist())
+    if policy not in ALTLOC_POLICIES and policy not in present:  # a letter the file lacks
         raise InputError(
-            f"altloc {policy!r} is not in {atoms.source or 'the model'}: "
-            + (f"its alternate locations are {', '.join(letters)}" if letters else "it has none")
+            f"--altloc {policy}: the file has altlocs {', '.join(sorted(present))} only"
+            if present
+            else f"--altloc {policy}: {atoms.source or 'the file'} has no alternate locations"
         )
     if not has_alt.any():
-        return replace(atoms, altloc_policy=policy)
+        return np.ones(len(atoms), dtype=bool), 0
     idx = np.flatnonzero(has_alt)
     key = np.char.add(
         np.char.add(atoms.chain[idx], "|"),
@@ -499,9 +481,7 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
     chosen = idx[order[first]]
     keep = ~has_alt
     keep[chosen] = True
-    dropped = int(len(idx) - len(chosen))
-    note = f"altlocs: kept one of each ({policy}), dropped {dropped} alternate atoms"
-    return replace(atoms.subset(keep, note), altloc_policy=policy)
+    return keep, int(len(idx) - len(chosen))
 
 
 def select(atoms: Atoms, selection: str) -> Atoms:
@@ -596,6 +576,20 @@ def clean(
         Keep hydrogens (default yes), waters, ions and other hetero groups
         (ligands, lipids, detergents; default no).
     """
+    keep, notes = clean_keep(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
+    if keep.all():
+        return atoms
+    out = atoms.subset(keep)
+    out = replace(out, notes=out.notes + tuple(notes))
+    for note in notes:
+        log.info("%s: %s", atoms.source, note)
+    return out
+
+
+def clean_keep(
+    atoms: Atoms, *, hydrogens: bool, waters: bool, ions: bool, hetero: bool
+) -> tuple[np.ndarray, list[str]]:
+    """Which atoms :func:`clean` keeps (a boolean mask), with a note per dropped kind."""
     keep = np.ones(len(atoms), dtype=bool)
     notes = []
     for kind, wanted in (("water", waters), ("ion", ions), ("hetero", hetero)):
@@ -608,13 +602,39 @@ def clean(
         if mask.any():
             keep &= ~mask
             notes.append(f"dropped {int(mask.sum())} hydrogen atoms")
-    if keep.all():
-        return atoms
-    out = atoms.subset(keep)
-    out = replace(out, notes=out.notes + tuple(notes))
-    for note in notes:
-        log.info("%s: %s", atoms.source, note)
-    return out
+    return keep, notes
+
+
+def cleaned_indices(
+    atoms: Atoms,
+    *,
+    altloc: str = "occupancy",
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
+    selection: str | None = None,
+) -> np.ndarray:
+    """Indices of the atoms :func:`read_structure` would keep with the same options.
+
+    For readers that must keep their own atom order (a trajectory's frames): the
+    same altloc policy, cleaning and selection, as indices into ``atoms``.
+    """
+    keep, _ = altloc_keep(atoms, check_altloc(altloc))
+    more, _ = clean_keep(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
+    idx = np.flatnonzero(keep & more)
+    if len(idx) == 0:
+        raise InputError(f"no atoms left in {atoms.source} after cleaning (try --keep-hetero)")
+    if selection:
+        idx = idx[select_indices(atoms.subset(idx), selection)]
+    return idx
+
+
+def check_altloc(altloc) -> str:
+    """The altloc policy, or InputError: 'occupancy', 'first' or one letter."""
+    if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
+        check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    return altloc
 
 
 def read_structure(
@@ -679,8 +699,7 @@ def read_structure(
         raise InputError(f"{path} is empty")
     model = check_int(model, "model", minimum=0)
     frame = check_int(frame, "frame", minimum=0)
-    if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
-        check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    check_altloc(altloc)
     if _is_gemmi_file(path) and trajectory is None:
         atoms, _ = _read_gemmi(path, model)
     else:
