@@ -181,8 +181,8 @@ CASES = [
         None,
     ),
     ("huge-cif", ["profile", S("big.cif")], 2, r"beyond ±100000 Å", None),
-    ("nan-gro", ["profile", S("nan.gro")], 2, r"nan\.gro: atom .* non-finite", None),
-    ("nan-xyz", ["profile", S("nan.xyz")], 2, r"nan\.xyz: atom .* non-finite", None),
+    ("nan-gro", ["profile", S("nan.gro")], 2, r"nan\.gro, frame 0: atom .* non-finite", None),
+    ("nan-xyz", ["profile", S("nan.xyz")], 2, r"nan\.xyz, frame 0: atom .* non-finite", None),
     (
         "altloc-absent",
         ["profile", C4, "--altloc", "Z"],

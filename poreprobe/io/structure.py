@@ -362,12 +362,12 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     kind = _adopt_caps(kind, chain, resids)
     positions = np.array(ag.positions, dtype=np.float64)
     if not np.isfinite(positions).all():  # one line naming the atom (and the frame)
-        from poreprobe.io.sanity import check_coordinates
-
+        i = int(np.flatnonzero(~np.isfinite(positions).all(axis=1))[0])
         frame = getattr(getattr(ag.universe.trajectory, "ts", None), "frame", None)
-        where = source if frame is None else f"{source}, frame {frame}"
-        bad = make_atoms(positions, name=names, resname=resnames, resid=resids, chain=chain)
-        check_coordinates(bad, where)
+        raise InputError(
+            f"{source}{'' if frame is None else f', frame {frame}'}: atom {chain[i]}:"
+            f"{resnames[i]}{resids[i]} {names[i]} (atom {i + 1}) has a non-finite coordinate"
+        )
     atoms = Atoms(
         coords_A=positions,
         element=element,
