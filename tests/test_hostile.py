@@ -390,10 +390,10 @@ CASES = [
     ("socket", ["profile", C4, "--json", S("sock")], 2, r"socket", "socket"),
     (
         "export-two-same",
-        ["export", C4, "--map", S("a.map"), "--centerline", S("a.map")],
+        ["export", C4, "--map", S("a.map"), "--mesh", S("a.ply"), "--probe-radius-A", "1"],
         2,
-        r"same file|suffix|a\.map",
-        None,
+        r"two outputs name the same file: .*a\.map and .*a\.ply",
+        "link_map",
     ),
     ("read-only-file", ["profile", C4, "--json", S("old.txt")], 2, r"read-only", "readonly_file"),
     (
@@ -445,6 +445,8 @@ def _setup(kind, d: Path):
         os.symlink(d / "c4.pdb", d / "link.json")
     elif kind == "hardlink_input":
         os.link(d / "c4.pdb", d / "hard.pdb")
+    elif kind == "link_map":  # a.ply -> a.map, which does not exist yet
+        os.symlink("a.map", d / "a.ply")
     elif kind == "link_old":
         os.symlink("old.txt", d / "oldlink.txt")
     elif kind == "block":
@@ -500,6 +502,22 @@ def test_hostile_case(argv, code, pattern, setup, inputs, tmp_path, capfd):
     assert re.search(pattern, line), line
     assert ".poreprobe-" not in line  # errors name the user's path, not a temporary file
     assert snapshot(d) == before  # nothing created, replaced or truncated
+
+
+def test_every_file_option_is_planned():
+    """Each option naming a file has a role type, so the output plan sees it."""
+    from poreprobe.cli.main import _subparsers, build_parser
+    from poreprobe.cli.outputs import InputPath, OutputFolder, OutputPath
+
+    file_words = ("FILE", "TOML", "FOLDER", "STRUCTURE", "FILES", "INPUT")
+    checked = 0
+    for name, sub in _subparsers(build_parser()).choices.items():
+        for action in sub._actions:
+            metavar = action.metavar if isinstance(action.metavar, str) else ""
+            if metavar in file_words:
+                assert action.type in (InputPath, OutputPath, OutputFolder), (name, action.dest)
+                checked += 1
+    assert checked >= 30
 
 
 def test_table_is_large_enough():
@@ -717,6 +735,7 @@ SIGINT_CASES = [
     ("traj-dask", ["traj", *TRAJ, "--backend", "dask", "--workers", "2"]),
     ("scan-serial", ["scan", str(DEMO / "demo_channel.pdb"), "--probe-radii-A", "0.5:6:0.1"]),
     ("batch-multiprocessing", ["batch", str(DEMO / "*.cif"), "--backend", "multiprocessing"]),
+    ("batch-dask", ["batch", str(DEMO / "*.cif"), "--backend", "dask"]),
 ]
 
 
