@@ -786,3 +786,24 @@ def test_ctrl_c(argv, tmp_path):
             break
         time.sleep(0.1)
     assert not _session_alive(proc.pid)
+
+
+@pytest.mark.parametrize("where", ["file", "folder"])
+def test_read_only_targets_refused(where, inputs, tmp_path, capfd, monkeypatch):
+    """Read-only files and folders are refused (as root too: os.access answers as if not root)."""
+    import poreprobe.io.writer as writer
+
+    d = _case_folder(inputs, tmp_path)
+    target = d / "old.txt" if where == "file" else d / "folder" / "out.json"
+    locked = target if where == "file" else target.parent
+    real_access = os.access
+    monkeypatch.setattr(
+        writer.os,
+        "access",
+        lambda p, mode: False if Path(p) == locked and mode & os.W_OK else real_access(p, mode),
+    )
+    before = snapshot(d)
+    assert main(["profile", str(d / "c4.pdb"), "--quiet", "--json", str(target)]) == 2
+    line = _one_line(capfd.readouterr().err)
+    assert re.search(rf"cannot write {re.escape(str(target))}: .*read-only", line), line
+    assert snapshot(d) == before
