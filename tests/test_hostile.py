@@ -807,3 +807,33 @@ def test_read_only_targets_refused(where, inputs, tmp_path, capfd, monkeypatch):
     line = _one_line(capfd.readouterr().err)
     assert re.search(rf"cannot write {re.escape(str(target))}: .*read-only", line), line
     assert snapshot(d) == before
+
+
+def test_logged_and_python_warnings_recorded_with_quiet(inputs, tmp_path, capfd, monkeypatch):
+    """--quiet hides warnings on the terminal, the JSON keeps them (logging and warnings.warn)."""
+    import logging
+    import warnings
+
+    import poreprobe.cli.profile as profile_cmd
+    from poreprobe.errors import QualityWarning
+
+    compute = profile_cmd.compute
+
+    def noisy(args):
+        logging.getLogger("poreprobe").warning("a logged warning")
+        warnings.warn("a Python warning", QualityWarning, stacklevel=1)
+        return compute(args)
+
+    monkeypatch.setattr(profile_cmd, "compute", noisy)
+    d = _case_folder(inputs, tmp_path)
+    out = d / "w.json"
+    assert (
+        main(
+            ["profile", str(d / "c4.pdb"), "--quiet", "--json", str(out), "--csv", str(d / "w.csv")]
+        )
+        == 0
+    )
+    assert capfd.readouterr().err == ""
+    assert json.loads(out.read_text())["warnings"] == ["a logged warning", "a Python warning"]
+    comments = [ln for ln in (d / "w.csv").read_text().splitlines() if ln.startswith("# warning:")]
+    assert comments == ["# warning: a logged warning", "# warning: a Python warning"]

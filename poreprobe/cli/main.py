@@ -134,7 +134,6 @@ def _main(argv: list[str]) -> int:
 
     command_parser = _subparsers(parser).choices[args.command]
     args.given = given_options(command_parser, argv[argv.index(args.command) + 1 :])
-    logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
     # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
     logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
     return _run(args, argv)
@@ -150,11 +149,14 @@ def _run(args: argparse.Namespace, argv: list[str]) -> int:
     )
     # broken readers of damaged files complain from __del__; the error line says it all
     old_hook, sys.unraisablehook = sys.unraisablehook, _ignore_unraisable
+    log_handler = record.log_handler()  # logged warnings join the same collector
+    logging.getLogger().addHandler(log_handler)
     try:
         with warnings.catch_warnings():
             warnings.showwarning = record.show_warning
             return _run_planned(args, record)
     finally:
+        logging.getLogger().removeHandler(log_handler)
         sys.unraisablehook = old_hook
 
 

@@ -14,6 +14,7 @@ from __future__ import annotations
 import datetime
 import hashlib
 import json
+import logging
 import math
 import os
 import sys
@@ -113,6 +114,10 @@ class RunRecord:
         """Drop-in for ``warnings.showwarning``: every Python warning goes through :meth:`warn`."""
         self.warn(str(message))
 
+    def log_handler(self) -> logging.Handler:
+        """A logging handler that passes WARNING and above through :meth:`warn`."""
+        return _RecordHandler(self)
+
     # ------------------------------------------------------------------ provenance
     def provenance(self) -> dict:
         """The provenance block (input hashes computed once, on first use)."""
@@ -162,3 +167,17 @@ class RunRecord:
         if kind == "csv" and isinstance(data, str):
             return "\n".join(self.comment_lines()) + "\n" + data
         return data
+
+
+class _RecordHandler(logging.Handler):
+    """Logged warnings (poreprobe's and the libraries') as warning lines of a RunRecord."""
+
+    def __init__(self, record: RunRecord):
+        super().__init__(logging.WARNING)
+        self.record = record
+
+    def emit(self, log_record: logging.LogRecord) -> None:
+        try:
+            self.record.warn(log_record.getMessage())
+        except Exception:  # noqa: BLE001 - logging must never break the run
+            self.handleError(log_record)
