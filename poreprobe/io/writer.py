@@ -27,6 +27,7 @@ same checks.
 
 from __future__ import annotations
 
+import contextlib
 import contextvars
 import os
 import re
@@ -283,15 +284,16 @@ class OutputPlan:
             for item in staged:
                 if item.out.mode != "replace":
                     self._write_through(item)
-            while temps:
-                tmp, out = temps[0]
-                try:
-                    os.replace(tmp, out.target)
-                except OSError as exc:
-                    raise _fail(out.path, exc.strerror or str(exc)) from None
-                temps.pop(0)
-            self.committed = True
-            self._staged.clear()
+            with _sigint_held():  # the renames are not cut in half by Ctrl-C
+                while temps:
+                    tmp, out = temps[0]
+                    try:
+                        os.replace(tmp, out.target)
+                    except OSError as exc:
+                        raise _fail(out.path, exc.strerror or str(exc)) from None
+                    temps.pop(0)
+                self.committed = True
+                self._staged.clear()
         except BaseException:
             for tmp, _ in temps:
                 _remove(tmp)
@@ -360,6 +362,22 @@ class OutputPlan:
         _ACTIVE.reset(self._token)
         if not self.committed:
             self.abort()
+
+
+@contextlib.contextmanager
+def _sigint_held():
+    """Hold SIGINT back (delivered on exit) while the main thread renames the outputs."""
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    old = signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT})
+    try:
+        yield
+    finally:
+        signal.pthread_sigmask(signal.SIG_SETMASK, old)
 
 
 def _is_char_device(out: PlannedOutput) -> bool:
