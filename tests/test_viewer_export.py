@@ -269,7 +269,7 @@ def _read_ply(path):
 
 
 def test_mesh_files_read_back(hourglass, tmp_path):
-    from poreprobe.figures.plots import radius_colors
+    from poreprobe.figures.style import radius_colors
 
     surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
     ply, obj = tmp_path / "pore.ply", tmp_path / "pore.obj"

@@ -350,7 +350,7 @@ def add_figure_args(
 def check_figure_path(args: argparse.Namespace) -> None:
     """Reject a bad --figure suffix, size or ion before any long computation."""
     if getattr(args, "figure", None):
-        from poreprobe.figures.plots import check_figure_options
+        from poreprobe.figures.style import check_figure_options
 
         check_figure_options(
             args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
@@ -366,7 +366,7 @@ def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
     """
     if not getattr(args, "ion", None) or not hasattr(args, "ion_radii"):
         return []
-    from poreprobe.figures.plots import ion_reference_radii
+    from poreprobe.figures.references import ion_reference_radii
 
     return ion_reference_radii(args.ion, args.ion_radii)
 
@@ -380,12 +380,11 @@ def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> Non
     path = getattr(args, "figure", None)
     if not path:
         return
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
+    from poreprobe.figures.draw import draw_figure
 
     if "ion_radii" not in options:
         options["ion_radii"] = figure_ion_radii(args)
-    ax = plots.draw_figure(
-        kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options
-    )
-    plots.save_figure(ax, path, dpi=args.dpi)
+    ax = draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options)
+    style.save_figure(ax, path, dpi=args.dpi)
     say(args, f"figure: {path}")

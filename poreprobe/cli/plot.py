@@ -70,9 +70,10 @@ def read_json(path: str) -> dict:
 
 
 def run(args) -> int:
-    from poreprobe.figures import plots
+    from poreprobe.figures.draw import draw_figure
+    from poreprobe.figures.style import check_figure_options, save_figure
 
-    plots.check_figure_options(
+    check_figure_options(
         args.output, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
     )
     labels = None
@@ -85,7 +86,7 @@ def run(args) -> int:
     if args.ion and args.kind in ("resistance", "kymograph"):
         raise InputError(f"--ion does not apply to the {args.kind} figure")
     results = [read_json(path) for path in args.inputs]
-    ax = plots.draw_figure(
+    ax = draw_figure(
         args.kind,
         results,
         width_mm=args.width_mm,
@@ -94,6 +95,6 @@ def run(args) -> int:
         labels=labels,
         band=args.band,
     )
-    plots.save_figure(ax, args.output, dpi=args.dpi)
+    save_figure(ax, args.output, dpi=args.dpi)
     say(args, f"{args.kind} figure: {args.output}")
     return 0

@@ -19,7 +19,7 @@ model in any viewer without moving anything:
   Where the pore is closed to the probe the surface closes; it is open only where
   the region meets the cylinder (the mouths). Vertices can carry the local pore
   radius (the profile radius at the vertex's axial position) as a colour on the
-  same perceptual map as the figures (:func:`poreprobe.figures.plots.radius_colors`).
+  same perceptual map as the figures (:func:`poreprobe.figures.style.radius_colors`).
 * **Centre line** (mmCIF, written with gemmi): the profile's sphere centres as
   pseudo-atoms (``UNX``, element ``X``, B-factor = pore radius, so any viewer
   can show and colour them), plus our own categories ``_poreprobe_center_line``
@@ -557,7 +557,7 @@ def pore_surface(grid: FieldGrid, profile: RadiusProfile, *, probe_radius_A: flo
 
 
 def _mesh_colors(surface: PoreSurface, radius_range_A) -> np.ndarray:
-    from poreprobe.figures.plots import radius_colors
+    from poreprobe.figures.style import radius_colors
 
     if radius_range_A is None:
         finite = surface.local_radius_A[np.isfinite(surface.local_radius_A)]
