@@ -18,7 +18,7 @@ House style
   line also told apart by its dash pattern; the perceptually uniform, colour-vision-
   deficiency-optimised map ``cividis`` (Nunez, Anderton and Renslow 2018, PLoS ONE
   13:e0199239; from memory) for anything coloured by radius, also used for the
-  coloured pore surfaces of :mod:`poreprobe.figures.viewer_export`.
+  coloured pore surfaces of :mod:`poreprobe.figures.viewer_mesh`.
 * No fixed radius colour code: reference bands come only from the ion radii the
   user picks, and are labelled with the ion, the kind of radius and its value.
 
