@@ -72,7 +72,7 @@ def add_radii_args(group) -> None:
     group.add_argument(
         "--radii-file",
         metavar="TOML",
-        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
+        help="TOML file overriding radii ([elements] / [residues.RESNAME] tables, Å)",
     )
 
 
