@@ -87,7 +87,7 @@ _EXPORTS = {
     "diffusion_coefficient": "poreprobe.bench.viscosity",
     "water_viscosity_mPa_s": "poreprobe.bench.viscosity",
     "PoreProfileAnalysis": "poreprobe.scale.trajectory",
-    "TrajectoryProfiles": "poreprobe.scale.trajectory",
+    "TrajectoryProfiles": "poreprobe.scale.trajectory_profiles",
     "profile_trajectory": "poreprobe.scale.trajectory",
     "DaskClientBackend": "poreprobe.scale.parallel",
 }
