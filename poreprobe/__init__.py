@@ -66,7 +66,7 @@ _EXPORTS = {
     "atoms_from_atomgroup": "poreprobe.io.structure",
     "make_atoms": "poreprobe.io.structure",
     "read_structure": "poreprobe.io.structure",
-    "select": "poreprobe.io.structure",
+    "select": "poreprobe.io.cleaning",
     "superpose": "poreprobe.geometry.superpose",
     "subunit_deviation": "poreprobe.geometry.symmetry",
     "CenterLine": "poreprobe.figures.viewer_line",
