@@ -78,7 +78,7 @@ def main() -> None:
             t0 = time.perf_counter()
             for suffix in (".ply", ".glb"):
                 path = os.path.join(tmp, "tube" + suffix)
-                pp.write_tube(tube, path)
+                pp.write_mesh(tube, path)
                 sizes.append(f"{suffix[1:]} {os.path.getsize(path) / 1e3:.0f} kB")
             print(
                 f"{n_atoms:>7} tube: {len(tube.vertices_A):,} vertices in {t_tube:.3f} s, "

@@ -81,7 +81,6 @@ _EXPORTS = {
     "write_mesh": "poreprobe.figures.viewer_mesh",
     "PoreTube": "poreprobe.figures.viewer_tube",
     "pore_tube": "poreprobe.figures.viewer_tube",
-    "write_tube": "poreprobe.figures.viewer_tube",
     "VISCOGENS": "poreprobe.bench.viscosity",
     "DiffusionEstimate": "poreprobe.bench.viscosity",
     "diffusion_coefficient": "poreprobe.bench.viscosity",
@@ -171,7 +170,6 @@ __all__ = [
     "write_center_line",
     "write_map",
     "write_mesh",
-    "write_tube",
 ]
 
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 import gemmi
 import numpy as np
 import pytest
+import trimesh
 
 import poreprobe
 from poreprobe.cli.main import main
@@ -311,6 +312,15 @@ def test_mesh_files_read_back(hourglass, tmp_path):
     assert _read_ply(ply)[0] == ["x", "y", "z", "nx", "ny", "nz", "s_A", "local_radius_A"]
 
 
+def test_mesh_as_glb_holds_the_same_triangles(hourglass, tmp_path):
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
+    path = tmp_path / "pore.glb"
+    viewer_mesh.write_mesh(surface, path)
+    mesh = trimesh.load(path, force="mesh", process=False)
+    np.testing.assert_allclose(mesh.vertices, surface.vertices_A, atol=1e-4)  # float32
+    np.testing.assert_array_equal(mesh.faces, surface.faces)
+
+
 # --------------------------------------------------------------------------- centre line
 
 
@@ -450,3 +460,23 @@ def test_export_bad_input_is_one_line_exit_2_and_no_file(
     assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
     assert message in err
     assert list(tmp_path.iterdir()) == []  # not even the map before the mesh
+
+
+@pytest.mark.parametrize("name", ["pore.ply", "pore.obj", "pore.glb"])
+def test_export_command_writes_the_tube(model_file, tmp_path, capsys, name):
+    path = tmp_path / name
+    assert main(["export", str(model_file), *AXIS, "--tube", str(path)]) == 0
+    assert f"{name}: tube of" in capsys.readouterr().out
+    mesh = trimesh.load(path, force="mesh", process=False)
+    # ring radius 4 Å less carbon 1.7 Å (Bondi 1964) at the waist, on the z axis here
+    r = np.hypot(mesh.vertices[:, 0], mesh.vertices[:, 1])
+    assert r.min() == pytest.approx(2.3, abs=0.05)
+
+
+def test_export_tube_bad_suffix_is_one_line_and_no_file(model_file, tmp_path, capsys):
+    argv = ["export", str(model_file), *AXIS, "--quiet", "--tube", str(tmp_path / "t.stl")]
+    assert main(argv) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
+    assert "--tube file must end in .ply, .obj, .glb" in err
+    assert list(tmp_path.iterdir()) == []

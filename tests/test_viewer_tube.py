@@ -7,11 +7,9 @@ import pytest
 import trimesh
 
 import poreprobe
-from poreprobe.cli.main import main
 from poreprobe.errors import InputError
-from poreprobe.figures import viewer_line, viewer_tube
+from poreprobe.figures import viewer_line, viewer_mesh, viewer_tube
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
 
 
 def _rotation(seed: int) -> np.ndarray:
@@ -82,7 +80,7 @@ def test_tube_rings_are_the_profile_circles(pore):
 def test_tube_ply_reads_back_at_the_pore_radius(pore, tmp_path):
     _, prof, line = pore
     path = tmp_path / "tube.ply"
-    viewer_tube.write_tube(viewer_tube.pore_tube(line), path)
+    viewer_mesh.write_mesh(viewer_tube.pore_tube(line), path)
     props, faces = read_ascii_ply(path)
     vertices = np.column_stack([props["x"], props["y"], props["z"]])
     k = _check_rings(vertices, prof)
@@ -98,7 +96,7 @@ def test_tube_glb_reads_back_at_the_pore_radius(pore, tmp_path):
     _, prof, line = pore
     tube = viewer_tube.pore_tube(line)
     path = tmp_path / "tube.glb"
-    viewer_tube.write_tube(tube, path, radius_range_A=(2.0, 6.0))
+    viewer_mesh.write_mesh(tube, path, radius_range_A=(2.0, 6.0))
     assert path.read_bytes()[:4] == b"glTF"
     mesh = trimesh.load(path, force="mesh", process=False)
     _check_rings(np.asarray(mesh.vertices), prof)
@@ -134,37 +132,5 @@ def test_tube_input_errors(pore, tmp_path):
     with pytest.raises(InputError, match="CenterLine"):
         viewer_tube.pore_tube(object())
     with pytest.raises(InputError, match="must end in"):
-        viewer_tube.write_tube(viewer_tube.pore_tube(line), tmp_path / "tube.obj")
-    assert list(tmp_path.iterdir()) == []
-
-
-@pytest.fixture(scope="module")
-def model_file(tmp_path_factory):
-    z = np.arange(-8, 8.1, 1.0)
-    atoms = synthetic.ring_stack(4.0 + 4.0 * (z / 8) ** 2, z, atoms_per_ring=24, chains=4)
-    path = tmp_path_factory.mktemp("model") / "hourglass.pdb"
-    write_structure(atoms, path)
-    return path
-
-
-AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
-
-
-@pytest.mark.parametrize("name", ["pore.ply", "pore.glb"])
-def test_export_command_writes_the_tube(model_file, tmp_path, capsys, name):
-    path = tmp_path / name
-    assert main(["export", str(model_file), *AXIS, "--tube", str(path)]) == 0
-    assert f"{name}: tube of" in capsys.readouterr().out
-    mesh = trimesh.load(path, force="mesh", process=False)
-    # ring radius 4 Å less carbon 1.7 Å (Bondi 1964) at the waist, on the z axis here
-    r = np.hypot(mesh.vertices[:, 0], mesh.vertices[:, 1])
-    assert r.min() == pytest.approx(2.3, abs=0.05)
-
-
-def test_export_tube_bad_suffix_is_one_line_and_no_file(model_file, tmp_path, capsys):
-    argv = ["export", str(model_file), *AXIS, "--quiet", "--tube", str(tmp_path / "t.stl")]
-    assert main(argv) == 2
-    err = capsys.readouterr().err
-    assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
-    assert "--tube file must end in .ply, .glb" in err
+        viewer_mesh.write_mesh(viewer_tube.pore_tube(line), tmp_path / "tube.stl")
     assert list(tmp_path.iterdir()) == []

@@ -24,7 +24,7 @@ from poreprobe.io.radii import atom_radii_A
 def register(sub) -> None:
     p = sub.add_parser(
         "export",
-        help="pore map (CCP4/MRC), surface (PLY/OBJ), centre line (mmCIF) and tube (PLY/glTF) "
+        help="pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
         "for molecular viewers",
         description="Write the pore in the model's own coordinates for any molecular viewer: "
         "the reach (or clearance) field as a CCP4/MRC map (its isosurface at "
@@ -45,7 +45,7 @@ def register(sub) -> None:
     g.add_argument(
         "--mesh",
         metavar="FILE",
-        help="pore surface for --probe-radius-A, .ply or .obj (coordinates in Å)",
+        help="pore surface for --probe-radius-A, .ply, .obj or .glb (coordinates in Å)",
     )
     g.add_argument(
         "--centerline",
@@ -56,7 +56,7 @@ def register(sub) -> None:
         "--tube",
         metavar="FILE",
         help="the pore as a tube mesh along the centre line, each ring at the pore "
-        "radius, .ply or .glb (coordinates in Å)",
+        "radius, .ply, .obj or .glb (coordinates in Å)",
     )
     o = p.add_argument_group("export options")
     o.add_argument(
@@ -93,10 +93,9 @@ def register(sub) -> None:
 
 
 def _check_request(args) -> None:
+    from poreprobe.figures.mesh_files import MESH_SUFFIXES
     from poreprobe.figures.viewer_line import CENTERLINE_SUFFIXES
     from poreprobe.figures.viewer_map import MAP_SUFFIXES
-    from poreprobe.figures.viewer_mesh import MESH_SUFFIXES
-    from poreprobe.figures.viewer_tube import TUBE_SUFFIXES
     from poreprobe.io.export import check_suffix
 
     if not (args.map or args.mesh or args.centerline or args.tube):
@@ -112,7 +111,7 @@ def _check_request(args) -> None:
     if args.centerline:
         check_suffix(args.centerline, CENTERLINE_SUFFIXES, "--centerline")
     if args.tube:
-        check_suffix(args.tube, TUBE_SUFFIXES, "--tube")
+        check_suffix(args.tube, MESH_SUFFIXES, "--tube")
 
 
 def _reach_map(atoms, prof, radii_A, args):
@@ -201,7 +200,7 @@ def run(args) -> int:
         viewer_line.write_center_line(line, args.centerline)
         say(args, f"{args.centerline}: {len(line.s_A)} centre-line points")
     if tube is not None:
-        viewer_tube.write_tube(
+        viewer_mesh.write_mesh(
             tube, args.tube, color_by_radius=args.mesh_colors, radius_range_A=args.radius_range_A
         )
         say(

@@ -48,7 +48,7 @@ COMMANDS = {
     "plot": ("poreprobe.cli.plot", "draw a figure (PNG, SVG or PDF) from saved JSON results"),
     "export": (
         "poreprobe.cli.export",
-        "pore map (CCP4/MRC), surface (PLY/OBJ), centre line (mmCIF) and tube (PLY/glTF) "
+        "pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
         "for molecular viewers",
     ),
     "traj": (

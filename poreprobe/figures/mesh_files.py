@@ -1,7 +1,8 @@
-"""Triangle meshes as text files (ASCII PLY, Wavefront OBJ) and their radius colours.
+"""Triangle meshes as files (ASCII PLY, Wavefront OBJ, glTF binary) and their radius colours.
 
 Shared by the pore surface (:mod:`poreprobe.figures.viewer_mesh`) and the pore tube
-(:mod:`poreprobe.figures.viewer_tube`).
+(:mod:`poreprobe.figures.viewer_tube`); :func:`poreprobe.figures.viewer_mesh.write_mesh`
+writes either. PLY and OBJ are written here; glTF binary with trimesh.
 """
 
 from __future__ import annotations
@@ -12,6 +13,9 @@ from collections.abc import Mapping, Sequence
 import numpy as np
 
 from poreprobe.errors import InputError
+
+#: Mesh file formats by suffix.
+MESH_SUFFIXES = (".ply", ".obj", ".glb")
 
 
 def radius_mesh_colors(radius_A, radius_range_A=None) -> np.ndarray:  # noqa: N802
@@ -98,3 +102,38 @@ def obj_text(vertices_A, normals, faces, colors, header: Sequence[str]) -> str:
         "f %d//%d %d//%d %d//%d",
     )
     return "\n".join(lines) + "\n" + vtext + ntext + ftext
+
+
+def glb_bytes(vertices_A, normals, faces, colors, header: Sequence[str]) -> bytes:
+    """glTF binary of one triangle mesh (one unit = 1 Å), with ``header`` in its extras."""
+    import trimesh
+
+    rgba = None if colors is None else np.column_stack([colors, np.full(len(colors), 255)])
+    mesh = trimesh.Trimesh(
+        vertices=vertices_A, faces=faces, vertex_normals=normals, vertex_colors=rgba, process=False
+    )
+    mesh.metadata["poreprobe"] = {"description": list(header), "length_unit": "angstrom"}
+    return trimesh.Scene(mesh).export(file_type="glb")
+
+
+def mesh_file_data(
+    suffix: str,
+    vertices_A,
+    normals,
+    faces,
+    colors,
+    properties: Mapping[str, np.ndarray],
+    header: Sequence[str],
+) -> str | bytes:
+    """The content of a mesh file of the given suffix (``.ply``, ``.obj`` or ``.glb``).
+
+    ``properties`` (one float per vertex) are written to PLY only; the other formats
+    have no place for them.
+    """
+    if suffix == ".ply":
+        return ply_text(vertices_A, normals, faces, colors, properties, header)
+    if suffix == ".obj":
+        return obj_text(vertices_A, normals, faces, colors, header)
+    if suffix == ".glb":
+        return glb_bytes(vertices_A, normals, faces, colors, header)
+    raise InputError(f"mesh file suffix must be one of {', '.join(MESH_SUFFIXES)}, got {suffix!r}")

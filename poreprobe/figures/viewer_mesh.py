@@ -1,4 +1,4 @@
-"""The pore surface as a triangle mesh for molecular viewers (PLY or OBJ).
+"""The pore surface as a triangle mesh for molecular viewers (PLY, OBJ or glTF binary).
 
 Triangulated by marching cubes from scikit-image: the part of the isosurface
 ``clearance = p`` that bounds the probe-centre region connected to the pore's
@@ -7,7 +7,8 @@ the probe the surface closes; it is open only where the region meets the cylinde
 (the mouths). Vertices can carry the local pore radius (the profile radius at the
 vertex's axial position) as a colour on the same perceptual map as the figures
 (:func:`poreprobe.figures.style.radius_colors`). Coordinates are in the input
-model's Cartesian frame (Å).
+model's Cartesian frame (Å). :func:`write_mesh` writes this surface or the pore tube
+(:mod:`poreprobe.figures.viewer_tube`).
 
 All values are model-based estimates that depend on the radius set.
 """
@@ -22,12 +23,11 @@ from scipy import ndimage
 from poreprobe._validate import check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError
-from poreprobe.figures.mesh_files import obj_text, ply_text, radius_mesh_colors
+from poreprobe.figures.mesh_files import MESH_SUFFIXES, mesh_file_data, radius_mesh_colors
 from poreprobe.figures.viewer_map import FieldGrid
+from poreprobe.figures.viewer_tube import PoreTube
 from poreprobe.geometry.profile import RadiusProfile
 from poreprobe.io.export import check_suffix, write_atomic
-
-MESH_SUFFIXES = (".ply", ".obj")
 
 
 @dataclass(frozen=True)
@@ -68,6 +68,26 @@ class PoreSurface:
     def boundary_edges(self) -> np.ndarray:
         """Edges used by a single triangle, shape (k, 2): where the surface is open."""
         return boundary_edges(self.faces)
+
+    @property
+    def color_radius_A(self) -> np.ndarray:  # noqa: N802
+        """The radius each vertex is coloured by: the local pore radius."""
+        return self.local_radius_A
+
+    def vertex_properties(self) -> dict[str, np.ndarray]:
+        """Per-vertex floats written to PLY: ``s_A`` and ``local_radius_A``."""
+        return {"s_A": self.s_A, "local_radius_A": self.local_radius_A}
+
+    def describe(self) -> list[str]:
+        """Header lines of a mesh file: what the surface is, radius set, frame."""
+        return [
+            f"poreprobe {self.version}: pore surface traced by the centre of a probe of "
+            f"radius {self.probe_radius_A:g} A (isosurface clearance = probe radius)",
+            f"model-based estimate; radius set {self.radius_set}; grid spacing "
+            f"{self.spacing_A:g} A; coordinates in angstrom in the frame of "
+            f"{self.source or 'the input model'}",
+            "s_A: axial position (A); local_radius_A: profile radius there (A)",
+        ]
 
     def to_dict(self) -> dict:
         return {
@@ -193,50 +213,44 @@ def pore_surface(grid: FieldGrid, profile: RadiusProfile, *, probe_radius_A: flo
 
 
 def write_mesh(
-    surface: PoreSurface,
+    mesh: PoreSurface | PoreTube,
     path,
     *,
     color_by_radius: bool = True,
     radius_range_A: tuple[float, float] | None = None,
 ) -> None:
-    """Write a pore surface as ASCII PLY or Wavefront OBJ, atomically.
+    """Write a pore surface or a pore tube as ASCII PLY, Wavefront OBJ or glTF binary.
 
     Parameters
     ----------
-    surface : PoreSurface
+    mesh : PoreSurface or PoreTube
     path : str or os.PathLike
-        ``.ply`` or ``.obj``.
+        ``.ply``, ``.obj`` or ``.glb`` (the suffix picks the format); written atomically.
     color_by_radius : bool
-        Colour vertices by the local pore radius on the figures' colour map
-        (grey where open).
+        Colour vertices by the pore radius on the figures' colour map (grey where
+        open): the local radius for a surface, the ring's radius for a tube.
     radius_range_A : (float, float), optional
         Radii mapped to the two ends of the colour map (default: the data's range).
 
     Notes
     -----
     PLY vertices carry x, y, z, the normal, red/green/blue (uchar, with colour)
-    and two float properties of our own, ``s_A`` and ``local_radius_A`` (NaN
-    where open). OBJ vertices carry colours as three extra floats (0 to 1) after
-    the coordinates, as many viewers read them; OBJ has no place for the radius.
+    and float properties of our own (:meth:`PoreSurface.vertex_properties`:
+    ``s_A`` and ``local_radius_A``, NaN where open; a tube: ``s_A`` and
+    ``radius_A``). OBJ vertices carry colours as three extra floats (0 to 1) after
+    the coordinates, as many viewers read them. The glTF file (written with
+    trimesh; one unit = 1 Å) holds one mesh with normals and vertex colours, and
+    the header lines in its ``extras``. Neither OBJ nor glTF has a place for the
+    radius itself.
     """
     suffix = check_suffix(path, MESH_SUFFIXES, "mesh")
-    if not isinstance(surface, PoreSurface):
-        raise InputError(f"surface must be a PoreSurface, got {type(surface).__name__}")
-    colors = radius_mesh_colors(surface.local_radius_A, radius_range_A) if color_by_radius else None
-    header = [
-        f"poreprobe {surface.version}: pore surface traced by the centre of a probe of "
-        f"radius {surface.probe_radius_A:g} A (isosurface clearance = probe radius)",
-        f"model-based estimate; radius set {surface.radius_set}; grid spacing "
-        f"{surface.spacing_A:g} A; coordinates in angstrom in the frame of "
-        f"{surface.source or 'the input model'}",
-    ]
+    if not isinstance(mesh, PoreSurface | PoreTube):
+        raise InputError(f"mesh must be a PoreSurface or a PoreTube, got {type(mesh).__name__}")
+    colors = radius_mesh_colors(mesh.color_radius_A, radius_range_A) if color_by_radius else None
+    header = mesh.describe()
     if colors is not None:
-        header.append("colour: local pore radius on the cividis colour map; grey: open")
-    s = surface
-    if suffix == ".ply":
-        header.append("s_A: axial position (A); local_radius_A: profile radius there (A)")
-        props = {"s_A": s.s_A, "local_radius_A": s.local_radius_A}
-        text = ply_text(s.vertices_A, s.normals, s.faces, colors, props, header)
-    else:
-        text = obj_text(s.vertices_A, s.normals, s.faces, colors, header)
-    write_atomic(path, text)
+        header.append("colour: pore radius on the cividis colour map; grey: open")
+    data = mesh_file_data(
+        suffix, mesh.vertices_A, mesh.normals, mesh.faces, colors, mesh.vertex_properties(), header
+    )
+    write_atomic(path, data)

@@ -4,10 +4,10 @@ Around each centre-line point (:class:`~poreprobe.figures.viewer_line.CenterLine
 a ring of vertices lies in the plane across the pore axis, at exactly the profile
 radius from the point; consecutive rings are joined by triangles. Where the profile
 is open (no enclosed sphere) the tube breaks, and its ends stay open (the mouths).
-Written as ASCII PLY (our own writer, with the axial position and radius per
-vertex) or as glTF binary (``.glb``, written with trimesh). Coordinates are the
-input model's Cartesian frame in Å (in a glTF file one unit is one Å), so the tube
-overlays the model without moving anything.
+:func:`poreprobe.figures.viewer_mesh.write_mesh` writes it as ASCII PLY (with the
+axial position and radius per vertex), OBJ or glTF binary (``.glb``, with trimesh).
+Coordinates are the input model's Cartesian frame in Å (in a glTF file one unit is
+one Å), so the tube overlays the model without moving anything.
 
 All values are model-based estimates that depend on the radius set.
 """
@@ -21,11 +21,8 @@ import numpy as np
 from poreprobe._validate import check_int, check_range
 from poreprobe._version import __version__
 from poreprobe.errors import InputError
-from poreprobe.figures.mesh_files import ply_text, radius_mesh_colors
 from poreprobe.figures.viewer_line import CenterLine
-from poreprobe.io.export import check_suffix, write_atomic
 
-TUBE_SUFFIXES = (".ply", ".glb")
 #: Vertices per ring unless asked otherwise.
 DEFAULT_TUBE_SIDES = 32
 #: Consecutive points further apart than this many median steps start a new piece.
@@ -67,6 +64,25 @@ class PoreTube:
     def __post_init__(self):
         for name in ("vertices_A", "faces", "normals", "point", "s_A", "radius_A"):
             getattr(self, name).setflags(write=False)
+
+    @property
+    def color_radius_A(self) -> np.ndarray:  # noqa: N802
+        """The radius each vertex is coloured by: its ring's pore radius."""
+        return self.radius_A
+
+    def vertex_properties(self) -> dict[str, np.ndarray]:
+        """Per-vertex floats written to PLY: ``s_A`` and ``radius_A`` of the ring."""
+        return {"s_A": self.s_A, "radius_A": self.radius_A}
+
+    def describe(self) -> list[str]:
+        """Header lines of a mesh file: what the tube is, radius set, frame."""
+        return [
+            f"poreprobe {self.version}: pore tube, each ring a profile circle (largest "
+            "empty sphere in a plane across the pore axis) at its centre-line point",
+            f"model-based estimate; radius set {self.radius_set}; coordinates in angstrom "
+            f"in the frame of {self.source or 'the input model'}",
+            "s_A: axial position (A); radius_A: pore radius of the ring (A)",
+        ]
 
     def to_dict(self) -> dict:
         return {
@@ -148,64 +164,3 @@ def pore_tube(line: CenterLine, *, n_sides: int = DEFAULT_TUBE_SIDES) -> PoreTub
         radius_set=line.radius_set,
         source=line.source,
     )
-
-
-def _glb_bytes(tube: PoreTube, colors, header: list[str]) -> bytes:
-    import trimesh
-
-    rgba = None if colors is None else np.column_stack([colors, np.full(len(colors), 255)])
-    mesh = trimesh.Trimesh(
-        vertices=tube.vertices_A,
-        faces=tube.faces,
-        vertex_normals=tube.normals,
-        vertex_colors=rgba,
-        process=False,
-    )
-    mesh.metadata["poreprobe"] = {"description": header, "length_unit": "angstrom"}
-    return trimesh.Scene(mesh).export(file_type="glb")
-
-
-def write_tube(
-    tube: PoreTube,
-    path,
-    *,
-    color_by_radius: bool = True,
-    radius_range_A: tuple[float, float] | None = None,
-) -> None:
-    """Write a pore tube as ASCII PLY or glTF binary (by the suffix), atomically.
-
-    Parameters
-    ----------
-    tube : PoreTube
-    path : str or os.PathLike
-        ``.ply`` or ``.glb``.
-    color_by_radius : bool
-        Colour vertices by the pore radius on the figures' colour map.
-    radius_range_A : (float, float), optional
-        Radii at the two ends of the colour map (default: the tube's range).
-
-    Notes
-    -----
-    PLY vertices carry x, y, z, the normal, red/green/blue (with colour) and two
-    float properties of our own, ``s_A`` and ``radius_A``. The glTF file holds one
-    mesh (positions, normals, vertex colours) whose ``extras`` say what it is.
-    """
-    suffix = check_suffix(path, TUBE_SUFFIXES, "tube")
-    if not isinstance(tube, PoreTube):
-        raise InputError(f"tube must be a PoreTube, got {type(tube).__name__}")
-    colors = radius_mesh_colors(tube.radius_A, radius_range_A) if color_by_radius else None
-    header = [
-        f"poreprobe {tube.version}: pore tube, each ring a profile circle (largest empty "
-        "sphere in a plane across the pore axis) at its centre-line point",
-        f"model-based estimate; radius set {tube.radius_set}; coordinates in angstrom in "
-        f"the frame of {tube.source or 'the input model'}",
-    ]
-    if colors is not None:
-        header.append("colour: pore radius on the cividis colour map")
-    if suffix == ".ply":
-        header.append("s_A: axial position (A); radius_A: pore radius of the ring (A)")
-        props = {"s_A": tube.s_A, "radius_A": tube.radius_A}
-        data = ply_text(tube.vertices_A, tube.normals, tube.faces, colors, props, header)
-    else:
-        data = _glb_bytes(tube, colors, header)
-    write_atomic(path, data)
