@@ -18,11 +18,12 @@ Each blob reports the position of its density-weighted centroid (s along the axi
 the distance from the axis), its volume (voxels x voxel volume), its peak in units of the
 map's RMS above the map's mean, the residues with an atom within ``near_A`` of a blob
 voxel (nearest first, chain-aware labels ``A:LEU12``), and a plain reading of its size in
-**water equivalents**: its volume over the volume a lone oxygen atom's expected density
-encloses at the contour (or over 30 Å^3, the volume of one water molecule in liquid water
-from 18.0 g/mol at 1.0 g/cm^3, when a lone oxygen would not reach the contour):
-up to 2 equivalents reads "single ion or water", up to 8 "several waters or ions", more
-"larger: lipid, detergent or ligand" (thresholds our choice).
+**water equivalents**: its volume over the volume a lone water's expected density (one
+Gaussian of its 10 electrons) encloses at the contour, or over 30 Å^3 (the volume of one
+water molecule in liquid water, from 18.0 g/mol at 1.0 g/cm^3) when a lone water would not
+reach the contour. Up to 3 equivalents reads "single ion or water" (a K+ ion, 19 electrons,
+is about 2), up to 10 "several waters or ions", more "larger: lipid, detergent or ligand"
+(thresholds our choice).
 
 Symmetry (channels whose axis has an n-fold symmetry): a blob within ``max(1 Å, d / 2)``
 of the axis sits **on the axis** (typical of ions); otherwise the other blobs at the same s
@@ -41,8 +42,10 @@ from poreprobe.io.structure import Atoms
 
 #: Volume of one water molecule in liquid water (Å^3): 18.015 g/mol / (1.0 g/cm^3 x N_A).
 WATER_VOLUME_A3 = 29.9
-SINGLE_MAX_WATERS = 2.0
-SEVERAL_MAX_WATERS = 8.0
+SINGLE_MAX_WATERS = 3.0
+SEVERAL_MAX_WATERS = 10.0
+#: Electrons of one water molecule.
+WATER_ELECTRONS = 10.0
 
 
 @dataclass(frozen=True)
@@ -120,8 +123,8 @@ def size_reading(water_equivalents: float) -> str:
 
 
 def single_water_volume_A3(scale: float, offset: float, contour: float, sigma_A: float) -> float:
-    """Volume a lone oxygen's expected density (``scale * 8 * Gaussian + offset``) encloses."""
-    peak = scale * 8.0 / (2.0 * np.pi * sigma_A**2) ** 1.5
+    """Volume a lone water's expected density (``scale * 10 * Gaussian + offset``) encloses."""
+    peak = scale * WATER_ELECTRONS / (2.0 * np.pi * sigma_A**2) ** 1.5
     height = contour - offset
     if not (scale > 0 and height > 0 and peak > height):
         return WATER_VOLUME_A3
@@ -173,7 +176,7 @@ def find_blobs(
     single_volume_A3: float,
     resolution_A: float,
     min_volume_A3: float,
-    near_A: float = 5.0,
+    near_A: float = 8.0,
     max_residues: int = 6,
 ) -> tuple[DensityBlob, ...]:
     """Label the unexplained voxels into blobs and describe each (module docstring).
