@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from poreprobe.bench.ions import IONS
 from poreprobe.checks.quality import (
     B_FACTOR_SIGMAS,
     NEAR_DISTANCE_A,
@@ -15,6 +14,8 @@ from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
+    add_ion_arg,
+    add_lining_distance_arg,
     add_output_args,
     add_profile_args,
     add_structure_args,
@@ -25,7 +26,7 @@ from poreprobe.cli.common import (
     say,
 )
 from poreprobe.geometry.clashes import CLASH_FRACTION
-from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
+from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A
 from poreprobe.io.export import to_csv, to_json
 from poreprobe.io.radii import atom_radii_A
 from poreprobe.io.structure import read_structure
@@ -58,19 +59,12 @@ def register(sub) -> None:
     add_axis_args(p)
     add_lining_profile_args(p)
     g = p.add_argument_group("checks")
-    g.add_argument(
-        "--ion",
-        default="K",
-        help=f"ion for the permeation verdict: {', '.join(IONS)} (crystal and "
-        "hydrated radii in Å from Shannon 1976 and Nightingale 1959; default K)",
+    add_ion_arg(
+        g,
+        purpose="its crystal and hydrated radii (Å; Shannon 1976, Nightingale 1959) set the "
+        "permeation verdict, its charge the potential energy",
     )
-    g.add_argument(
-        "--lining-distance-A",
-        type=float,
-        default=LINING_DISTANCE_A,
-        help="atoms whose surface is within this distance (Å) of a profile sphere "
-        f"line the pore (default {LINING_DISTANCE_A:g})",
-    )
+    add_lining_distance_arg(g)
     g.add_argument(
         "--near-distance-A",
         type=float,
