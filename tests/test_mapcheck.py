@@ -13,6 +13,7 @@ import warnings
 
 import numpy as np
 import pytest
+from _real_channels import channel
 
 import poreprobe as pp
 from poreprobe.demo.channels import demo_channel
@@ -22,8 +23,6 @@ from poreprobe.errors import InputError
 from poreprobe.io.density_map import DensityMap
 from poreprobe.io.residues import BACKBONE_HEAVY_ATOMS
 from poreprobe.io.structure import concatenate_atoms
-
-from _real_channels import channel
 
 D_A = 3.0
 NOISE = 0.2  # noise RMS as a fraction of the noise-free map's RMS
@@ -146,7 +145,9 @@ def test_side_chain_moved_out_of_its_density_is_flagged(demo, demo_map, label):
 
 def test_removed_side_chain_leaves_its_neighbours_unaffected(demo, demo_map):
     atoms, axis, profile = demo
-    before = {s.residue: s.score for s in map_check(demo_map, atoms, profile, resolution_A=D_A).support}
+    before = {
+        s.residue: s.score for s in map_check(demo_map, atoms, profile, resolution_A=D_A).support
+    }
     kept = atoms.subset(~_side_chain(atoms, "A:PHE73"))
     after = map_check(demo_map, kept, pp.radius_profile(kept, axis, step_A=0.5), resolution_A=D_A)
     assert not [s.residue for s in after.support if s.unsupported]

@@ -202,9 +202,10 @@ def find_blobs(
     pos = positions_A[vox]
     w = np.maximum(residual.ravel()[vox], 1e-12)
     wsum = np.bincount(lab, weights=w, minlength=n)
-    centre = np.stack(
-        [np.bincount(lab, weights=w * pos[:, d], minlength=n) for d in range(3)], axis=1
-    ) / np.maximum(wsum, 1e-300)[:, None]
+    centre = (
+        np.stack([np.bincount(lab, weights=w * pos[:, d], minlength=n) for d in range(3)], axis=1)
+        / np.maximum(wsum, 1e-300)[:, None]
+    )
     peak = np.full(n, -np.inf)
     np.maximum.at(peak, lab, values.ravel()[vox])
     axis = profile.axis

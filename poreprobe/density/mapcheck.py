@@ -234,8 +234,11 @@ def _findings(blobs, support, s, model_r, map_r, disagree, band) -> list[Finding
                     "side-chain-unsupported",
                     f"The side chain of {sc.residue} lines the pore but has {sc.score:.2f} of "
                     "the density the model predicts relative to its backbone"
-                    + (f" (atoms outside density: {', '.join(sc.outside_density)})"
-                       if sc.outside_density else "")
+                    + (
+                        f" (atoms outside density: {', '.join(sc.outside_density)})"
+                        if sc.outside_density
+                        else ""
+                    )
                     + "; its position, and the radius it sets, are not supported by the map.",
                     (sc.residue,),
                     {"s_A": sc.s_A, "score": sc.score},
@@ -252,11 +255,17 @@ def _findings(blobs, support, s, model_r, map_r, disagree, band) -> list[Finding
                 f"From s = {s[start]:.1f} to {s[stop - 1]:.1f} Å the map's pore is "
                 f"{'narrower' if narrower else 'wider'} than the model's by up to "
                 f"{abs(diff[worst]):.2f} Å (expected band {band[0]:+.2f} to {band[1]:+.2f} Å)"
-                + (": density fills part of the modelled pore." if narrower else
-                   ": the model's wall atoms sit where the map has little density."),
+                + (
+                    ": density fills part of the modelled pore."
+                    if narrower
+                    else ": the model's wall atoms sit where the map has little density."
+                ),
                 (),
-                {"s_A": float(s[start + worst]), "s_range_A": [float(s[start]),
-                 float(s[stop - 1])], "difference_A": float(diff[worst])},
+                {
+                    "s_A": float(s[start + worst]),
+                    "s_range_A": [float(s[start]), float(s[stop - 1])],
+                    "difference_A": float(diff[worst]),
+                },
             )
         )
     return out
@@ -465,6 +474,7 @@ def map_check(
         correlation=cc,
         backbone_inclusion=inclusion,
         settings={
+            "radius_set": profile.radius_set,
             "lumen_margin_A": margin,
             "min_blob_volume_A3": min_vol,
             "min_support": min_support,

@@ -113,7 +113,9 @@ def model_density(
     spread = acc.reshape(big) / float(np.prod(h))
     width = np.sqrt(np.maximum(sigma**2 - h**2 / 6.0, (0.3 * h) ** 2)) / h
     smooth = gaussian_filter(spread, sigma=width, mode="constant", truncate=4.0)
-    inner = smooth[pad[0] : pad[0] + shape[0], pad[1] : pad[1] + shape[1], pad[2] : pad[2] + shape[2]]
+    inner = smooth[
+        pad[0] : pad[0] + shape[0], pad[1] : pad[1] + shape[1], pad[2] : pad[2] + shape[2]
+    ]
     return inner.astype(np.float32)
 
 

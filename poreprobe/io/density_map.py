@@ -199,9 +199,7 @@ def _check_map_path(path) -> str:
     if name.endswith(".gz"):
         name = name[:-3]
     if not name.endswith(MAP_SUFFIXES):
-        raise InputError(
-            f"map file {path} must end in {', '.join(MAP_SUFFIXES)} (optionally .gz)"
-        )
+        raise InputError(f"map file {path} must end in {', '.join(MAP_SUFFIXES)} (optionally .gz)")
     if not os.path.exists(path):
         raise InputError(f"map file {path} does not exist")
     if not os.path.isfile(path):
