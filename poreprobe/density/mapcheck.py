@@ -369,7 +369,12 @@ def map_check(
     reach = float(radius.max()) + margin
     lining_labels = [r.label for r in lining.residues]
     labels = atoms.residue_labels()
-    lining_atoms = np.isin(labels, lining_labels)
+    # atoms of the lining residues, near the pore (labels can repeat far away in a model
+    # that holds several copies of a channel under the same chain names)
+    from scipy.spatial import cKDTree
+
+    near_pore, _ = cKDTree(centres).query(atoms.coords_A, distance_upper_bound=reach + 10.0)
+    lining_atoms = np.isin(labels, lining_labels) & np.isfinite(near_pore)
     pts = np.concatenate([centres - reach, centres + reach, atoms.coords_A[lining_atoms]])
     box = dmap.crop(pts.min(axis=0) - 3.0, pts.max(axis=0) + 3.0)
     expected = model_density(atoms, box, d)

@@ -98,8 +98,9 @@ class DensityMap:
         from scipy.ndimage import map_coordinates
 
         idx = self.index_of(points_A)
-        out = map_coordinates(self.values, idx.T, order=1, mode="constant", cval=np.nan)
-        out[~self.covers(points_A)] = np.nan
+        out = map_coordinates(self.values, idx.T, order=1, mode="nearest")
+        inside = np.all((idx >= 0) & (idx <= np.array(self.shape) - 1), axis=1)
+        out[~inside] = np.nan
         return out
 
     def crop(self, lo_A, hi_A) -> DensityMap:
