@@ -190,3 +190,33 @@ def test_option_errors_are_one_line(pdb, maps, tmp_path, capsys, argv, message):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("poreprobe: error: ") and message in err[0]
     assert not out.exists()
+
+
+def test_map_figure_redraws_from_saved_json(pdb, maps, tmp_path):
+    from poreprobe.errors import InputError
+    from poreprobe.figures.map_panel import plot_map_check
+
+    out = tmp_path / "c.json"
+    assert (
+        main(
+            [
+                "check",
+                pdb,
+                "--density-map",
+                str(maps["ion"]),
+                "--resolution-A",
+                "3",
+                "--json",
+                str(out),
+                "--figure",
+                str(tmp_path / "c.svg"),
+                "--quiet",
+            ]
+        )
+        == 0
+    )
+    assert "unmodelled density" in (tmp_path / "c.svg").read_text()
+    fig = plot_map_check(json.loads(out.read_text()))
+    assert len(fig.axes) == 2
+    with pytest.raises(InputError, match="no map check"):
+        plot_map_check({"profile": {"s_A": [0.0]}})

@@ -230,3 +230,40 @@ def test_settings_are_checked(demo, demo_map):
         map_check(demo_map, atoms, profile, resolution_A=D_A, contour=float("nan"))
     with pytest.raises(InputError, match="DensityMap"):
         map_check(np.zeros((3, 3, 3)), atoms, profile, resolution_A=D_A)
+
+
+def test_translation_of_model_and_map_and_atom_order_change_nothing(demo):
+    """Moving model and map together, or reordering the atoms, gives the same check."""
+    atoms, axis, profile = demo
+    shift = np.array([7.3, -4.1, 11.9])
+    rng = np.random.default_rng(5)
+    order = rng.permutation(len(atoms))
+    ref = planted_map_for_properties(demo)
+    base = map_check(ref, atoms, profile, resolution_A=D_A)
+    assert len(base.blobs) == 1 and base.blobs[0].on_axis  # the K+ only
+    moved_atoms = atoms.with_coords(atoms.coords_A + shift).subset(order)
+    moved_axis = pp.PoreAxis(axis.point_A + shift, axis.direction, "user", n_fold=axis.n_fold)
+    moved_profile = pp.radius_profile(moved_atoms, moved_axis, step_A=0.5)
+    moved_map = DensityMap(**{**ref.__dict__, "origin_A": ref.origin_A + shift})
+    moved = map_check(moved_map, moved_atoms, moved_profile, resolution_A=D_A)
+    assert [round(b.s_A, 3) for b in moved.blobs] == [round(b.s_A, 3) for b in base.blobs]
+    assert [b.volume_A3 for b in moved.blobs] == [b.volume_A3 for b in base.blobs]
+    scores = {s.residue: s.score for s in base.support}
+    assert all(
+        np.isnan(s.score) and np.isnan(scores[s.residue]) or abs(s.score - scores[s.residue]) < 1e-6
+        for s in moved.support
+    )
+    np.testing.assert_allclose(moved.map_radius_A, base.map_radius_A, atol=0.26, equal_nan=True)
+
+
+def planted_map_for_properties(demo):
+    """A map of the demo with a K+ on the axis, on a box aligned to whole voxels."""
+    atoms, axis, _ = demo
+    ion = pseudo_atoms(axis.from_frame([[0.0, 0.0, -2.0]]), "K", "K", "X")
+    lo = np.floor(atoms.coords_A.min(axis=0)) - 8.0
+    return simulate_map(
+        concatenate_atoms([atoms, ion]),
+        D_A,
+        noise_rms=NOISE,
+        box_A=(lo, np.ceil(atoms.coords_A.max(axis=0)) + 8.0),
+    )

@@ -12,7 +12,10 @@ On the map's own voxels around the pore, a voxel is **unexplained** when
   nearly explains is not unmodelled density).
 
 Unexplained voxels joined through faces, edges or corners (26-connectivity,
-``scipy.ndimage.label``) form a blob; blobs smaller than ``min_volume_A3`` are dropped.
+``scipy.ndimage.label``) form a blob. Blobs smaller than ``min_volume_A3`` are dropped, and
+so are blobs whose unexplained part (map minus expected density) nowhere reaches the
+contour's full height above the offset: density the model almost explains, such as the
+rim of a modelled atom, is not unmodelled density.
 
 Each blob reports the position of its density-weighted centroid (s along the axis and
 the distance from the axis), its volume (voxels x voxel volume), its peak in units of the
@@ -176,13 +179,15 @@ def find_blobs(
     single_volume_A3: float,
     resolution_A: float,
     min_volume_A3: float,
+    min_peak_residual: float = 0.0,
     near_A: float = 8.0,
     max_residues: int = 6,
 ) -> tuple[DensityBlob, ...]:
     """Label the unexplained voxels into blobs and describe each (module docstring).
 
     ``values``, ``unexplained`` and ``residual`` are 3-D arrays on one grid;
-    ``positions_A`` gives each voxel's Cartesian position, shape (values.size, 3).
+    ``positions_A`` gives each voxel's Cartesian position, shape (values.size, 3);
+    ``min_peak_residual`` is the height the blob's unexplained part must reach somewhere.
     """
     from scipy.ndimage import label
     from scipy.spatial import cKDTree
@@ -194,7 +199,9 @@ def find_blobs(
     vox = np.flatnonzero(flat)
     lab = flat[vox] - 1
     counts = np.bincount(lab, minlength=n)
-    keep = counts * voxel_volume_A3 >= min_volume_A3
+    top = np.full(n, -np.inf)
+    np.maximum.at(top, lab, residual.ravel()[vox])
+    keep = (counts * voxel_volume_A3 >= min_volume_A3) & (top >= min_peak_residual)
     if not keep.any():
         return ()
     sel = keep[lab]

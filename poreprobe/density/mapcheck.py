@@ -412,6 +412,7 @@ def map_check(
         single_volume_A3=v_single,
         resolution_A=d,
         min_volume_A3=min_vol,
+        min_peak_residual=level - offset,
     )
 
     # side-chain support of the lining residues
