@@ -41,6 +41,11 @@ COMMANDS = {
         "poreprobe.cli.check",
         "is this model ready? lining residues, model checks, permeation verdict",
     ),
+    "mapcheck": (
+        "poreprobe.cli.mapcheck",
+        "the model against its density map at the pore: unmodelled density, side-chain "
+        "support, the pore radius in the map",
+    ),
     "compare": (
         "poreprobe.cli.compare",
         "compare the pores of two or more models on one axial frame",
