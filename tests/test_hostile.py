@@ -509,7 +509,7 @@ def test_every_file_option_is_planned():
     from poreprobe.cli.main import _subparsers, build_parser
     from poreprobe.cli.outputs import InputPath, OutputFolder, OutputPath
 
-    file_words = ("FILE", "TOML", "FOLDER", "STRUCTURE", "FILES", "INPUT")
+    file_words = ("FILE", "TOML", "FOLDER", "STRUCTURE", "FILES", "INPUT", "MAP")
     checked = 0
     for name, sub in _subparsers(build_parser()).choices.items():
         for action in sub._actions:

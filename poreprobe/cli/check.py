@@ -11,6 +11,7 @@ from poreprobe.checks.quality import (
     check_model,
 )
 from poreprobe.cli import chemistry_options as chem_opts
+from poreprobe.cli import map_options as map_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -96,6 +97,7 @@ def register(sub) -> None:
     add_output_args(p)
     add_figure_args(p, ion_bands=False)
     chem_opts.add_chemistry_args(p)
+    map_opts.add_map_args(p, with_file=True)
     p.set_defaults(func=run)
 
 
@@ -154,6 +156,14 @@ def lining_csv(report, path=None) -> str:
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
+    if args.density_map:
+        from poreprobe.io.density_map import _check_map_path
+
+        if args.resolution_A is None:
+            from poreprobe.errors import InputError
+
+            raise InputError("--density-map needs --resolution-A (the map's resolution, Å)")
+        _check_map_path(args.density_map)
     atoms = read_structure(
         args.structure,
         trajectory=args.trajectory,
@@ -192,16 +202,32 @@ def run(args) -> int:
         warn=False,
     )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
+    density = None
+    if args.density_map:
+        from dataclasses import replace
+
+        from poreprobe.checks.model_checks import sorted_findings
+
+        density = map_opts.map_check_from_args(
+            args, args.density_map, wall_atoms, report.profile, report.lining
+        )
+        report = replace(report, findings=sorted_findings(report.findings + density.findings))
+    result = chem_opts.with_chemistry(report, chem)
+    if density is not None:
+        result["density_map"] = density.to_dict()
     if args.json:
-        to_json(chem_opts.with_chemistry(report, chem), args.json)
+        to_json(result, args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
+    lines = report.report_lines() + ([""] + chem.report_lines() if chem else [])
+    for line in lines + ([""] + density.report_lines() if density else []):
         say(args, line)
     if args.figure:
-        if chem is None:
+        if density is not None:
+            map_opts.save_map_figure(args, density)
+        elif chem is None:
             save_figure(args, "profile", report)
         else:
             chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(report, chem))

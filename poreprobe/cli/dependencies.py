@@ -91,6 +91,10 @@ COMMAND_RULES: tuple[tuple[str, Needs], ...] = (
         ),
     ),
     ("export", Needs("probe_radius_A", "--mesh", lambda a: bool(a.mesh))),
+    *(
+        ("check", Needs(dest, "--density-map", lambda a: bool(a.density_map)))
+        for dest in ("contour", "resolution_A", "lumen_margin_A", "min_support")
+    ),
     ("export", Needs("entry_end", "--map with --map-field reach", lambda a: bool(a.map))),
     *(
         ("traj", Needs(dest, "--probe-radius-A", lambda a: a.probe_radius_A is not None))

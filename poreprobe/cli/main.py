@@ -41,6 +41,11 @@ COMMANDS = {
         "poreprobe.cli.check",
         "is this model ready? lining residues, model checks, permeation verdict",
     ),
+    "mapcheck": (
+        "poreprobe.cli.mapcheck",
+        "the model against its density map at the pore: unmodelled density, side-chain "
+        "support, the pore radius in the map",
+    ),
     "compare": (
         "poreprobe.cli.compare",
         "compare the pores of two or more models on one axial frame",
@@ -48,7 +53,8 @@ COMMANDS = {
     "plot": ("poreprobe.cli.plot", "draw a figure (PNG, SVG or PDF) from saved JSON results"),
     "export": (
         "poreprobe.cli.export",
-        "pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) for molecular viewers",
+        "pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
+        "for molecular viewers",
     ),
     "traj": (
         "poreprobe.cli.traj",

@@ -11,9 +11,12 @@ import csv
 import io
 import json
 import math
+import os
 from collections.abc import Iterable, Sequence
 
 import numpy as np
+
+from poreprobe.errors import InputError
 
 
 def _jsonable(obj):
@@ -108,3 +111,12 @@ def profile_csv(profile, path=None) -> str:
     return to_csv(
         ("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path, comments
     )
+
+
+def check_suffix(path, suffixes, what: str) -> str:
+    """The lower-case suffix of ``path`` if it is one of ``suffixes`` (InputError otherwise)."""
+    path = os.fspath(path)
+    suffix = os.path.splitext(path)[1].lower()
+    if suffix not in suffixes:
+        raise InputError(f"{what} file must end in {', '.join(suffixes)}; got {path!r}")
+    return suffix
