@@ -118,6 +118,7 @@ def inputs(tmp_path_factory) -> Path:
     rng = np.random.default_rng(16)
     (d / "garbage.pdb").write_bytes(rng.integers(0, 256, 4000, dtype=np.uint8).tobytes())
     (d / "garbage.cif").write_bytes(rng.integers(0, 256, 4000, dtype=np.uint8).tobytes())
+    (d / "garbage.map").write_bytes(rng.integers(0, 256, 4000, dtype=np.uint8).tobytes())
     (d / "garbage.xtc").write_bytes(rng.integers(0, 256, 4000, dtype=np.uint8).tobytes())
     (d / "empty.pdb").write_text("")
     (d / "bad.toml").write_text("[elements\nC = 'x'\n")
@@ -322,6 +323,35 @@ CASES = [
     (
         "plot-same-file",
         ["plot", "profile", S("profile.json"), "--figure", S("profile.json")],
+        2,
+        r"same file as the input",
+        None,
+    ),
+    ("mapcheck-no-resolution", ["mapcheck", C4, S("none.map")], 2, r"needs --resolution-A", None),
+    (
+        "mapcheck-missing-map",
+        ["mapcheck", C4, S("none.map"), "--resolution-A", "3"],
+        2,
+        r"none\.map",
+        None,
+    ),
+    (
+        "mapcheck-map-is-dir",
+        ["mapcheck", C4, S("folder"), "--resolution-A", "3"],
+        2,
+        r"cannot read .*folder: it is a directory",
+        None,
+    ),
+    (
+        "mapcheck-garbage-map",
+        ["mapcheck", C4, S("garbage.map"), "--resolution-A", "3"],
+        2,
+        r"garbage\.map",
+        None,
+    ),
+    (
+        "check-map-is-input",
+        ["check", C4, "--density-map", S("garbage.map"), "--resolution-A", "3", "--json", C4],
         2,
         r"same file as the input",
         None,
