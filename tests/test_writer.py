@@ -101,3 +101,11 @@ def test_record_annotates_json_and_csv(tmp_path):
     assert text.splitlines()[-2:] == ["a,b", "1,2"]
     assert "# warning: first line wrapped" in text.splitlines()
     assert json_safe({"v": float("inf"), "t": (1, "x")}) == {"v": None, "t": [1, "x"]}
+
+
+def test_link_into_a_missing_folder_names_where_it_points(tmp_path):
+    os.symlink("gone/out.json", tmp_path / "link.json")
+    with pytest.raises(
+        InputError, match=r"link\.json: it links into folder .*gone, which does not"
+    ):
+        check_output_path(tmp_path / "link.json")

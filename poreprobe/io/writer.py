@@ -179,9 +179,10 @@ def check_output_path(path, inputs: dict[tuple[int, int], str] | None = None) ->
     if path.endswith(os.sep) or not os.path.basename(target):
         raise _fail(path, "it names a folder, not a file")
     if not os.path.isdir(folder):
-        where = os.path.dirname(os.path.abspath(path)) or folder
         what = "is not a folder" if os.path.exists(folder) else "does not exist"
-        raise _fail(path, f"folder {where} {what}")
+        if os.path.islink(path):  # a link into a missing folder: name where it points
+            raise _fail(path, f"it links into folder {folder}, which {what}")
+        raise _fail(path, f"folder {os.path.dirname(os.path.abspath(path))} {what}")
     name_max, path_max = _name_limits(folder)
     name_len = len(os.fsencode(os.path.basename(target)))
     if name_len > name_max:
