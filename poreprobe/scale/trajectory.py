@@ -342,10 +342,25 @@ class PoreProfileAnalysis(AnalysisBase):
         return atoms.with_coords(moved), ref, frame_axis, float(rmsd)
 
     def _compute(self, indexed_frames, verbose=None, *, progressbar_kwargs=None):
+        """One block of frames; returns its frames, times and results (a ``BlockResult``).
+
+        Not the analysis object itself: a worker would otherwise send the whole
+        object, ``Universe`` included, back with every block; and one analysis
+        object shipped once to a worker serves all of that worker's blocks.
+        """
+        from MDAnalysis.analysis.results import Results
+
+        from poreprobe.scale.parallel import BlockResult
+
         # the missing-time-step warning was given once in __init__; not again per block
         with warnings.catch_warnings():
             warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)
-            return super()._compute(indexed_frames, verbose, progressbar_kwargs=progressbar_kwargs)
+            super()._compute(indexed_frames, verbose, progressbar_kwargs=progressbar_kwargs)
+        return BlockResult(
+            frames=np.array(self.frames),
+            times=np.array(self.times),
+            results=Results(**self.results),
+        )
 
     def _prepare(self):
         n, p = self.n_frames, len(self.s_A)
