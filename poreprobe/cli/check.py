@@ -12,6 +12,7 @@ from poreprobe.checks.quality import (
     check_model,
 )
 from poreprobe.cli import chemistry_options as chem_opts
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -102,6 +103,7 @@ def register(sub) -> None:
     add_output_args(p)
     add_figure_args(p, ion_bands=False)
     chem_opts.add_chemistry_args(p)
+    ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
 
@@ -160,6 +162,7 @@ def lining_csv(report, path=None) -> str:
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
+    ens_opts.check_ensemble_args(args)
     atoms = read_structure(
         args.structure,
         trajectory=args.trajectory,
@@ -198,13 +201,17 @@ def run(args) -> int:
         warn=False,
     )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
+    ensemble = ens_opts.ensemble_from_args(args, wall_atoms, axis, ion=args.ion)
     if args.json:
-        to_json(chem_opts.with_chemistry(report, chem), args.json)
+        to_json(ens_opts.with_ensemble(chem_opts.with_chemistry(report, chem), ensemble), args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
+    lines = report.report_lines()
+    if ensemble is not None:
+        lines += [""] + ensemble.report_lines()
+    for line in lines + ([""] + chem.report_lines() if chem else []):
         say(args, line)
     if args.figure:
         if chem is None:

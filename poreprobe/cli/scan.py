@@ -7,6 +7,7 @@ import os
 
 import numpy as np
 
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -73,6 +74,7 @@ def register(sub) -> None:
         help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
     )
     add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
+    ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
 
@@ -111,7 +113,7 @@ def _check_outputs(*paths) -> None:
                 raise InputError(f"cannot write {path}: folder {folder} does not exist")
 
 
-def summary_lines(atoms, scan) -> list[str]:
+def summary_lines(atoms, scan, ensemble=None) -> list[str]:
     ax = scan.axis
     lines = [
         f"poreprobe {scan.version}: probe-size scan of {atoms.source} ({len(atoms)} atoms) "
@@ -137,7 +139,15 @@ def summary_lines(atoms, scan) -> list[str]:
     lines.append(
         "largest probe that passes: "
         + (f"{passing:.2f} Å" if math.isfinite(passing) else "none of those scanned")
+        + (
+            ens_opts.interval(ensemble.largest_passing)
+            + f", {ensemble.largest_passing.n} of {ensemble.n_members} members pass"
+            if ensemble is not None
+            else ""
+        )
     )
+    if ensemble is not None:
+        lines += ens_opts.scan_band_lines(ensemble) + ensemble.report_lines()
     lines += [f"note: {n}" for n in (*atoms.notes, *scan.notes)]
     return lines
 
@@ -164,21 +174,38 @@ def compute(args):
     return atoms, scan
 
 
+def scan_ensemble(args, atoms, scan):
+    """The --ensemble of a scan: every member scanned with the same probes and options."""
+    return ens_opts.ensemble_from_args(
+        args,
+        atoms,
+        scan.axis,
+        probe_radii_A=scan.probe_radius_A,
+        scan_options={
+            "spacing_A": args.spacing_A,
+            "from_end": args.from_end,
+            "pore_radius_A": args.pore_radius_A,
+        },
+    )
+
+
 def run(args) -> int:
     parse_probe_range(args.probes)
+    ens_opts.check_ensemble_args(args)
     _check_outputs(args.json, args.csv, args.profiles_csv)
     check_figure_path(args)
     atoms, scan = compute(args)
+    ensemble = scan_ensemble(args, atoms, scan)
     texts = []
     if args.json:
-        texts.append((args.json, to_json(scan)))
+        texts.append((args.json, to_json(ens_opts.with_ensemble(scan.to_dict(), ensemble))))
     if args.csv:
         texts.append((args.csv, scan_csv(scan)))
     if args.profiles_csv:
         texts.append((args.profiles_csv, profiles_csv(scan)))
     for path, text in texts:
         write_atomic(path, text)
-    for line in summary_lines(atoms, scan):
+    for line in summary_lines(atoms, scan, ensemble):
         say(args, line)
     save_figure(args, args.figure_kind, scan)
     return 0

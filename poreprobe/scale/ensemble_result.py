@@ -298,7 +298,10 @@ class ProfileEnsemble:
             f"narrowest at s: {self.model_min_s_A:.1f} Å (model); ensemble {self.min_s.text(1)}",
         ]
         if self.largest_passing is not None:
-            lines.append(f"largest passing probe: ensemble {self.largest_passing.text()}")
+            lines.append(
+                f"largest passing probe: ensemble {self.largest_passing.text()} "
+                f"({self.largest_passing.n} of {self.n_members} members pass a scanned probe)"
+            )
         if self.ion is not None:
             shares = ", ".join(f"{k} {v:.0%}" for k, v in self.verdict_shares.items() if v > 0)
             lines.append(f"verdict for {self.ion}: {self.model_verdict} (model); members: {shares}")
