@@ -96,3 +96,22 @@ def test_bad_ensemble_options_are_one_line_errors(channel, tmp_path, capsys, ext
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("poreprobe: error:") and message in err[0]
     assert not os.path.exists(out)
+
+
+def test_match_ensemble_gives_probe_radius_bands(channel, tmp_path, capsys):
+    out = tmp_path / "m.json"
+    code = main(["match", channel, "--entry", ENTRY, "--probes", "1:2:0.5", "--current-pA",
+                 "20", "--current-sd-pA", "2", "--conc-mM", "150", "--ensemble", "2",
+                 "--json", str(out)])  # fmt: skip
+    assert code == 0
+    assert "match: best probe radius" in capsys.readouterr().out
+    data = json.loads(out.read_text())
+    assert "ensemble_lines" not in data
+    assert data["ensemble"]["summary"]["match"]["best_probe_radius_A"]["n"] >= 1
+    assert len(data["ensemble"]["members"]["probe_radius_intervals_A"]) == 2
+
+
+def test_match_ensemble_needs_a_structure(capsys):
+    args = ["match", "--current-pA", "20", "--conc-mM", "150", "--ensemble", "2"]
+    assert main(args) == 2
+    assert "give a STRUCTURE" in capsys.readouterr().err

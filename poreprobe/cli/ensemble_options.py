@@ -16,8 +16,13 @@ from poreprobe.errors import InputError
 ERROR_SOURCES = ("bfactor", "uniform", "resolution")
 
 
-def add_ensemble_args(parser: argparse.ArgumentParser, *, backend: bool = True) -> None:
-    """--ensemble, --error-source, --coordinate-error-A, --resolution-A, --seed (+ backend)."""
+def add_ensemble_args(
+    parser: argparse.ArgumentParser, *, backend: bool = True, seed: bool = True
+) -> None:
+    """--ensemble, --error-source, --coordinate-error-A, --resolution-A, --seed (+ backend).
+
+    ``seed=False`` for a command that has its own --seed (``match``: it seeds both).
+    """
     g = parser.add_argument_group(
         "coordinate-error ensemble",
         "perturbed copies of the model, every atom moved by an isotropic Gaussian with its "
@@ -53,13 +58,14 @@ def add_ensemble_args(parser: argparse.ArgumentParser, *, backend: bool = True) 
         metavar="D",
         help="resolution of the model, Å (with --error-source resolution)",
     )
-    g.add_argument(
-        "--seed",
-        type=int,
-        default=0,
-        metavar="N",
-        help="seed of the ensemble (integer >= 0, default 0); the same seed repeats it",
-    )
+    if seed:
+        g.add_argument(
+            "--seed",
+            type=int,
+            default=0,
+            metavar="N",
+            help="seed of the ensemble (integer >= 0, default 0); the same seed repeats it",
+        )
     if backend:
         from poreprobe.cli.common import add_backend_args
 
