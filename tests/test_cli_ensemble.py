@@ -19,9 +19,20 @@ def channel():
 def test_profile_ensemble_text_and_json(channel, tmp_path, capsys):
     out = tmp_path / "p.json"
     code = main(
-        ["profile", channel, "--entry", ENTRY, "--no-chemistry", "--ensemble", "4",
-         "--seed", "2", "--json", str(out)]
-    )  # fmt: skip
+        [
+            "profile",
+            channel,
+            "--entry",
+            ENTRY,
+            "--no-chemistry",
+            "--ensemble",
+            "4",
+            "--seed",
+            "2",
+            "--json",
+            str(out),
+        ]
+    )
     assert code == 0
     text = capsys.readouterr().out
     narrowest = next(line for line in text.splitlines() if line.startswith("narrowest:"))
@@ -41,8 +52,21 @@ def test_profile_ensemble_repeats_with_the_seed(channel, tmp_path):
     runs = []
     for name in ("a", "b"):
         out = tmp_path / f"{name}.json"
-        assert main(["profile", channel, "--no-chemistry", "--ensemble", "2", "--quiet",
-                     "--json", str(out)]) == 0  # fmt: skip
+        assert (
+            main(
+                [
+                    "profile",
+                    channel,
+                    "--no-chemistry",
+                    "--ensemble",
+                    "2",
+                    "--quiet",
+                    "--json",
+                    str(out),
+                ]
+            )
+            == 0
+        )
         runs.append(json.loads(out.read_text())["ensemble"]["members"]["min_radius_A"])
     assert runs[0] == runs[1]
 
@@ -50,9 +74,20 @@ def test_profile_ensemble_repeats_with_the_seed(channel, tmp_path):
 def test_uniform_error_and_figure(channel, tmp_path, capsys):
     fig = tmp_path / "band.svg"
     code = main(
-        ["profile", channel, "--no-chemistry", "--ensemble", "2", "--error-source", "uniform",
-         "--coordinate-error-A", "0.2", "--figure", str(fig)]
-    )  # fmt: skip
+        [
+            "profile",
+            channel,
+            "--no-chemistry",
+            "--ensemble",
+            "2",
+            "--error-source",
+            "uniform",
+            "--coordinate-error-A",
+            "0.2",
+            "--figure",
+            str(fig),
+        ]
+    )
     assert code == 0
     assert "0.2 Å per direction" in capsys.readouterr().out
     assert fig.stat().st_size > 1000 and "5-95 %" in fig.read_text()
@@ -60,8 +95,23 @@ def test_uniform_error_and_figure(channel, tmp_path, capsys):
 
 def test_check_ensemble_gives_verdict_shares(channel, tmp_path, capsys):
     out = tmp_path / "c.json"
-    code = main(["check", channel, "--entry", ENTRY, "--no-chemistry", "--ensemble", "3",
-                 "--backend", "multiprocessing", "--workers", "2", "--json", str(out)])  # fmt: skip
+    code = main(
+        [
+            "check",
+            channel,
+            "--entry",
+            ENTRY,
+            "--no-chemistry",
+            "--ensemble",
+            "3",
+            "--backend",
+            "multiprocessing",
+            "--workers",
+            "2",
+            "--json",
+            str(out),
+        ]
+    )
     assert code == 0
     assert "verdict for K+" in capsys.readouterr().out
     shares = json.loads(out.read_text())["ensemble"]["summary"]["verdict"]["shares"]
@@ -70,8 +120,20 @@ def test_check_ensemble_gives_verdict_shares(channel, tmp_path, capsys):
 
 def test_scan_ensemble_bands_per_probe(channel, tmp_path, capsys):
     out = tmp_path / "s.json"
-    code = main(["scan", channel, "--entry", ENTRY, "--probes", "1:2:1", "--ensemble", "2",
-                 "--json", str(out)])  # fmt: skip
+    code = main(
+        [
+            "scan",
+            channel,
+            "--entry",
+            ENTRY,
+            "--probes",
+            "1:2:1",
+            "--ensemble",
+            "2",
+            "--json",
+            str(out),
+        ]
+    )
     assert code == 0
     text = capsys.readouterr().out
     assert "members pass" in text and "ensemble of 2 (median [5-95 %])" in text
@@ -100,9 +162,26 @@ def test_bad_ensemble_options_are_one_line_errors(channel, tmp_path, capsys, ext
 
 def test_match_ensemble_gives_probe_radius_bands(channel, tmp_path, capsys):
     out = tmp_path / "m.json"
-    code = main(["match", channel, "--entry", ENTRY, "--probes", "1:2:0.5", "--current-pA",
-                 "20", "--current-sd-pA", "2", "--conc-mM", "150", "--ensemble", "2",
-                 "--json", str(out)])  # fmt: skip
+    code = main(
+        [
+            "match",
+            channel,
+            "--entry",
+            ENTRY,
+            "--probes",
+            "1:2:0.5",
+            "--current-pA",
+            "20",
+            "--current-sd-pA",
+            "2",
+            "--conc-mM",
+            "150",
+            "--ensemble",
+            "2",
+            "--json",
+            str(out),
+        ]
+    )
     assert code == 0
     assert "match: best probe radius" in capsys.readouterr().out
     data = json.loads(out.read_text())

@@ -55,6 +55,11 @@ COMMANDS = {
         "radius profiles over trajectory frames or models, with statistics",
     ),
     "batch": ("poreprobe.cli.batch", "narrowest radius of many models, one summary table"),
+    "report": (
+        "poreprobe.cli.report",
+        "one self-contained HTML report (and PDF) to share: provenance, checks, "
+        "profile, scan, bench match, resistance, bands",
+    ),
 }
 
 
@@ -114,6 +119,7 @@ def main(argv=None) -> int:
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
+    args.argv = argv  # the words as given (a report records its command line)
     logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
     # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
     logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
