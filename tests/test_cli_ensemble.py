@@ -126,7 +126,7 @@ def test_scan_ensemble_bands_per_probe(channel, tmp_path, capsys):
             channel,
             "--entry",
             ENTRY,
-            "--probes",
+            "--probe-radii-A",
             "1:2:1",
             "--ensemble",
             "2",
@@ -168,7 +168,7 @@ def test_match_ensemble_gives_probe_radius_bands(channel, tmp_path, capsys):
             channel,
             "--entry",
             ENTRY,
-            "--probes",
+            "--probe-radii-A",
             "1:2:0.5",
             "--current-pA",
             "20",
@@ -194,3 +194,36 @@ def test_match_ensemble_needs_a_structure(capsys):
     args = ["match", "--current-pA", "20", "--conc-mM", "150", "--ensemble", "2"]
     assert main(args) == 2
     assert "give a STRUCTURE" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize(
+    "extra, message",
+    [
+        (["--error-source", "uniform"], "--error-source needs --ensemble"),
+        (["--seed", "3"], "--seed needs --ensemble"),
+        (["--ensemble", "2", "--coordinate-error-A", "0.2"], "needs --error-source uniform"),
+        (["--ensemble", "2", "--resolution-A", "3"], "needs --error-source resolution"),
+    ],
+)
+def test_ensemble_options_need_their_partners(channel, capsys, extra, message):
+    assert main(["profile", channel, "--quiet", *extra]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and message in err[0]
+
+
+def test_resolution_rule_in_check_with_resolution(channel, capsys):
+    code = main(
+        [
+            "check",
+            channel,
+            "--no-chemistry",
+            "--ensemble",
+            "2",
+            "--error-source",
+            "resolution",
+            "--resolution-A",
+            "3.5",
+        ]
+    )
+    assert code == 0
+    assert "0.15 x resolution 3.5 Å" in capsys.readouterr().out

@@ -176,8 +176,8 @@ def _png_size(path):
 def test_each_kind_renders_png_and_svg_from_saved_json(kind, saved, tmp_path):
     inputs = [str(saved[name]) for name in KIND_INPUTS[kind]]
     png, svg = tmp_path / f"{kind}.png", tmp_path / f"{kind}.svg"
-    assert main(["plot", kind, *inputs, "-o", str(png), "--dpi", "100", "--quiet"]) == 0
-    assert main(["plot", kind, *inputs, "-o", str(svg), "--quiet"]) == 0
+    assert main(["plot", kind, *inputs, "--figure", str(png), "--dpi", "100", "--quiet"]) == 0
+    assert main(["plot", kind, *inputs, "--figure", str(svg), "--quiet"]) == 0
     width, height = _png_size(png)
     default_h = plots.CAPTURE_HEIGHT_MM if kind == "capture" else plots.DEFAULT_HEIGHT_MM
     assert width == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 100, abs=1.5)
@@ -205,8 +205,8 @@ def test_size_in_mm_and_format_by_suffix(saved, tmp_path):
         "150",
         "--quiet",
     ]
-    assert main([*args, "-o", str(png)]) == 0
-    assert main([*args, "-o", str(pdf)]) == 0
+    assert main([*args, "--figure", str(png)]) == 0
+    assert main([*args, "--figure", str(pdf)]) == 0
     assert _png_size(png) == pytest.approx((174 / 25.4 * 150, 50 / 25.4 * 150), abs=1.5)
     assert pdf.read_bytes()[:5] == b"%PDF-"
 
@@ -214,16 +214,28 @@ def test_size_in_mm_and_format_by_suffix(saved, tmp_path):
 @pytest.mark.parametrize(
     "argv, message",
     [
-        (["profile", "{profile_a}", "-o", "{out}.jpg"], "must end in .png, .svg, .pdf"),
-        (["profile", "{missing}", "-o", "{out}.png"], "no such file"),
-        (["kymograph", "{resistance}", "-o", "{out}.png"], "needs exactly one trajectory"),
-        (["profile", "{profile_a}", "-o", "{out}.png", "--width-mm", "5"], "width_mm must be"),
-        (["profile", "{profile_a}", "-o", "{out}.png", "--ion", "Xx"], "unknown ion"),
+        (["profile", "{profile_a}", "--figure", "{out}.jpg"], "must end in .png, .svg, .pdf"),
+        (["profile", "{missing}", "--figure", "{out}.png"], "no such file"),
+        (["kymograph", "{resistance}", "--figure", "{out}.png"], "needs exactly one trajectory"),
         (
-            ["profile", "{profile_a}", "-o", "{out}.png", "--ion", "K", "--ion-radii", "wet"],
+            ["profile", "{profile_a}", "--figure", "{out}.png", "--width-mm", "5"],
+            "width_mm must be",
+        ),
+        (["profile", "{profile_a}", "--figure", "{out}.png", "--figure-ion", "Xx"], "unknown ion"),
+        (
+            [
+                "profile",
+                "{profile_a}",
+                "--figure",
+                "{out}.png",
+                "--figure-ion",
+                "K",
+                "--figure-ion-radii",
+                "wet",
+            ],
             "ion radius kind must be one of",
         ),
-        (["resistance", "{resistance}", "-o", "{out}.png", "--band"], "--band applies"),
+        (["resistance", "{resistance}", "--figure", "{out}.png", "--band"], "--band applies"),
     ],
 )
 def test_plot_bad_input_is_one_line_exit_2_and_no_file(argv, message, saved, tmp_path, capsys):
@@ -242,7 +254,7 @@ def test_plot_bad_input_is_one_line_exit_2_and_no_file(argv, message, saved, tmp
 def test_not_a_json_file_is_rejected(tmp_path, capsys):
     bad = tmp_path / "bad.json"
     bad.write_text("not json")
-    assert main(["plot", "profile", str(bad), "-o", str(tmp_path / "f.png")]) == 2
+    assert main(["plot", "profile", str(bad), "--figure", str(tmp_path / "f.png")]) == 2
     assert "is not a JSON file" in capsys.readouterr().err
 
 
@@ -489,7 +501,7 @@ def test_profile_command_draws_its_figure(tmp_path, capsys):
                 str(js),
                 "--figure",
                 str(fig),
-                "--ion",
+                "--figure-ion",
                 "K",
                 "--quiet",
             ]
@@ -596,7 +608,7 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
                 "scan",
                 c4_cylinder_pdb,
                 *axis,
-                "--probes",
+                "--probe-radii-A",
                 "1:5:1",
                 "--json",
                 str(js),
@@ -660,7 +672,7 @@ def test_match_command_figure_shows_the_measured_band(c4_cylinder_pdb, tmp_path)
                 "match",
                 c4_cylinder_pdb,
                 *axis,
-                "--probes",
+                "--probe-radii-A",
                 "1:4:0.5",
                 "--current-pA",
                 "20",
@@ -711,6 +723,7 @@ def test_traj_command_figures_match_its_json(kind, tmp_path):
             [
                 "traj",
                 pdb,
+                "--trajectory",
                 dcd,
                 "--json",
                 str(js),

@@ -140,7 +140,7 @@ def test_report_command_writes_the_pdf(tmp_path):
     args = [
         "report",
         demo_path("demo_closed"),
-        "--probes",
+        "--probe-radii-A",
         "1:2:1",
         "--html",
         str(html),

@@ -240,7 +240,7 @@ def test_profile_trajectory_bad_input(breathing, tmp_path):
     with pytest.raises(InputError, match="no such file"):
         profile_trajectory(str(tmp_path / "missing.pdb"))
     with pytest.raises(InputError, match="matches no atoms"):
-        profile_trajectory(*breathing, select="resname HOH")
+        profile_trajectory(*breathing, selection="resname HOH")
     with pytest.raises(InputError, match="no frames selected"):
         profile_trajectory(*breathing, start=50)
     with pytest.raises(InputError, match="backend must be one of"):

@@ -51,13 +51,14 @@ def add_ensemble_args(
         metavar="SIGMA",
         help="per-direction coordinate error of every atom, Å (with --error-source uniform)",
     )
-    g.add_argument(
-        "--resolution-A",
-        type=float,
-        default=None,
-        metavar="D",
-        help="resolution of the model, Å (with --error-source resolution)",
-    )
+    if "--resolution-A" not in parser._option_string_actions:  # check has it (map check)
+        g.add_argument(
+            "--resolution-A",
+            type=float,
+            default=None,
+            metavar="D",
+            help="resolution of the model, Å (with --error-source resolution)",
+        )
     if seed:
         g.add_argument(
             "--seed",

@@ -7,6 +7,10 @@ from dataclasses import replace
 from poreprobe._validate import check_positive, check_range
 from poreprobe.cli.common import (
     add_axis_args,
+    add_entry_end_arg,
+    add_grid_args,
+    add_lining_distance_arg,
+    add_probe_radius_arg,
     add_profile_args,
     add_structure_args,
     radius_set_from_args,
@@ -54,35 +58,11 @@ def register(sub) -> None:
         "there from the entry end (default), or clearance, the radius of the "
         "largest empty sphere centred there",
     )
-    o.add_argument(
-        "--from",
-        dest="from_end",
-        choices=("low", "high"),
-        default="low",
-        help="end of the axis where probes enter, for the reach map (default low: the --entry end)",
+    add_entry_end_arg(o)
+    add_probe_radius_arg(
+        o, purpose="for --mesh (required with --mesh; 0 gives the atoms' van der Waals surface)"
     )
-    o.add_argument(
-        "--probe-radius-A",
-        "--probe-radius",
-        dest="probe_radius_A",
-        type=float,
-        metavar="P",
-        help="probe radius for --mesh in Å (required with --mesh; "
-        "0 gives the atoms' van der Waals surface)",
-    )
-    o.add_argument(
-        "--spacing-A",
-        type=float,
-        default=0.5,
-        help="grid spacing of the map and mesh in Å (default 0.5)",
-    )
-    o.add_argument(
-        "--region-radius-A",
-        type=float,
-        default=None,
-        help="radius in Å of the cylinder around the pore axis that the map and "
-        "mesh cover (default: the widest enclosed profile sphere plus 2 Å)",
-    )
+    add_grid_args(o)
     o.add_argument(
         "--no-mesh-colors",
         dest="mesh_colors",
@@ -96,13 +76,7 @@ def register(sub) -> None:
         metavar=("LOW", "HIGH"),
         help="radii (Å) at the two ends of the mesh colour map (default: the mesh's own range)",
     )
-    o.add_argument(
-        "--contact-tol-A",
-        type=float,
-        default=0.3,
-        help="atoms within this distance (Å) of a profile sphere line it "
-        "(centre line; default 0.3)",
-    )
+    add_lining_distance_arg(o)
     o.add_argument(
         "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
     )
@@ -120,8 +94,7 @@ def _check_request(args) -> None:
     if not (args.map or args.mesh or args.centerline):
         raise InputError("nothing to export: give --map, --mesh and/or --centerline")
     check_range(args.spacing_A, "spacing_A", 0.05, 5.0)
-    if args.region_radius_A is not None:
-        check_positive(args.region_radius_A, "region_radius_A")
+    check_positive(args.search_radius_A, "search_radius_A")
     if args.map:
         check_suffix(args.map, MAP_SUFFIXES, "--map")
     if args.mesh:
@@ -137,15 +110,13 @@ def _reach_map(atoms, prof, radii_A, args):
     from poreprobe.figures import viewer_export as ve
     from poreprobe.geometry.reach import reach_field
 
-    region = (
-        ve.default_region_radius_A(prof) if args.region_radius_A is None else args.region_radius_A
-    )
+    region = args.search_radius_A
     field = reach_field(
         atoms,
         prof.axis,
         radii_A=radii_A,
         spacing_A=args.spacing_A,
-        from_end=args.from_end,
+        from_end=args.entry_end,
         pore_radius_A=region,
         max_probe_A=max(6.0, args.probe_radius_A or 0.0),
     )
@@ -172,7 +143,7 @@ def run(args) -> int:
             prof,
             radii_A=radii_A,
             spacing_A=args.spacing_A,
-            region_radius_A=args.region_radius_A,
+            region_radius_A=args.search_radius_A,
             quiet=args.quiet,
         )
         map_grid = grid
@@ -181,12 +152,14 @@ def run(args) -> int:
     if args.mesh:
         surface = ve.pore_surface(grid, prof, probe_radius_A=args.probe_radius_A)
     if args.centerline:
-        line = ve.center_line(atoms, prof, radii_A=radii_A, contact_tol_A=args.contact_tol_A)
+        line = ve.center_line(atoms, prof, radii_A=radii_A, contact_tol_A=args.lining_distance_A)
     # everything is computed before the first file is written
     if args.map:
         ve.write_map(map_grid, args.map)
         what = (
-            "reach from the " + args.from_end + " end" if map_grid.field == "reach" else "clearance"
+            "reach from the " + args.entry_end + " end"
+            if map_grid.field == "reach"
+            else "clearance"
         )
         say(
             args,

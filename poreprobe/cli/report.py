@@ -7,11 +7,19 @@ import shlex
 import sys
 
 from poreprobe.cli import ensemble_options as ens_opts
-from poreprobe.cli.common import say
+from poreprobe.cli.common import (
+    add_axis_args,
+    add_ion_arg,
+    add_probe_args,
+    add_structure_args,
+    say,
+)
 from poreprobe.errors import InputError
 
 
 def register(sub) -> None:
+    from poreprobe.bench.electrolyte import CONDUCTIVITY_TABLES
+
     p = sub.add_parser(
         "report",
         help="one self-contained HTML report (and PDF) to share: provenance, checks, "
@@ -23,50 +31,45 @@ def register(sub) -> None:
         "coordinate-error bands with --ensemble, every warning, the radius set and the "
         "definitions. --pdf prints it with headless Chromium. Model-based estimates.",
     )
-    p.add_argument(
-        "structure",
-        metavar="STRUCTURE",
-        help="channel model: PDB/mmCIF or any file MDAnalysis reads",
-    )
-    g = p.add_argument_group("model")
-    g.add_argument("--entry", metavar="SEL", help="atoms at the pore end where ions enter")
-    g.add_argument("--select", metavar="SEL", help="MDAnalysis selection of the atoms that count")
-    g.add_argument("--radii", default="bondi", help="van der Waals radius set (default bondi)")
-    g.add_argument("--ion", default="K", help="ion for the verdict and the bench match (default K)")
-    g.add_argument(
-        "--probes",
-        default="0.5:6:0.25",
-        metavar="START:STOP:STEP",
-        help="probe radii of the scan in Å (default 0.5:6:0.25)",
-    )
+    add_structure_args(p)
+    add_axis_args(p)
+    g = p.add_argument_group("checks and scan")
+    add_ion_arg(g, purpose="the permeation verdict and the bench match")
+    add_probe_args(g)
     b = p.add_argument_group("bench numbers (optional)")
     b.add_argument(
-        "--current-pA", type=float, metavar="I", help="diffusion-limited single-channel current, pA"
+        "--current-pA",
+        type=float,
+        metavar="I",
+        help="diffusion-limited single-channel current magnitude, pA (> 0): matched "
+        "against the capture curve",
     )
     b.add_argument(
         "--current-sd-pA",
         type=float,
-        default=0.0,
+        default=None,
         metavar="SD",
-        help="its standard deviation, pA (default 0)",
+        help="standard deviation of the current, pA (default 0)",
     )
     b.add_argument(
         "--conc-mM",
         type=float,
         default=150.0,
         metavar="C",
-        help="bath concentration, mM (default 150; also the resistance bath)",
+        help="bath concentration, mM (default 150): the bench match and the resistance bath",
     )
     b.add_argument(
         "--electrolyte",
+        choices=sorted(CONDUCTIVITY_TABLES),
         default="KCl",
-        choices=("KCl", "NaCl"),
-        help="bath salt of the resistance breakdown (default KCl)",
+        help="bath electrolyte of the resistance breakdown (default KCl)",
     )
     o = p.add_argument_group("output")
-    o.add_argument("--html", metavar="FILE", required=True, help="write the report as HTML")
-    o.add_argument("--pdf", metavar="FILE", help="also print it to PDF (needs chromium)")
-    o.add_argument("--quiet", action="store_true", help="no summary or progress on the terminal")
+    o.add_argument("--html", metavar="FILE", required=True, help="write the report (HTML)")
+    o.add_argument("--pdf", metavar="FILE", help="also print the report to PDF (needs Chromium)")
+    o.add_argument(
+        "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
+    )
     ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
@@ -80,7 +83,17 @@ def _check_output(path: str, suffix: str) -> None:
 
 
 def run(args) -> int:
-    from poreprobe.cli.scan import parse_probe_range
+    import numpy as np
+
+    from poreprobe.cli.check import walls_from_args
+    from poreprobe.cli.common import (
+        backend_from_args,
+        load_axis,
+        parse_probe_radii,
+        radius_set_from_args,
+    )
+    from poreprobe.io.radii import atom_radii_A
+    from poreprobe.io.structure import read_structure
 
     _check_output(args.html, ".html")
     if args.pdf:
@@ -90,19 +103,39 @@ def run(args) -> int:
         if find_chromium() is None:
             raise InputError("--pdf needs headless Chromium (Debian: apt-get install chromium)")
     ens_opts.check_ensemble_args(args)
-    probes = parse_probe_range(args.probes)
+    probes = parse_probe_radii(args.probe_radii_A)
     if args.current_pA is not None and not args.current_pA > 0:
         raise InputError(f"--current-pA must be > 0 pA, got {args.current_pA:g}")
-    from poreprobe.cli.common import backend_from_args
+    if args.current_sd_pA is not None and args.current_pA is None:
+        raise InputError("--current-sd-pA needs --current-pA")
     from poreprobe.report.build import build_report
     from poreprobe.report.render import write_html
 
     backend, workers = backend_from_args(args)
+    rset = radius_set_from_args(args)
+    atoms = read_structure(
+        args.structure,
+        trajectory=args.trajectory,
+        model=args.model,
+        frame=args.frame,
+        altloc=args.altloc,
+        hydrogens=True,
+        waters=True,
+        ions=True,
+        hetero=True,
+        selection=args.select,
+    )
+    walls = walls_from_args(args)
+    mask = np.isin(atoms.kind, walls)
+    if args.no_hydrogens:
+        mask &= ~atoms.is_hydrogen
+    wall_atoms = atoms.subset(mask)
+    axis = load_axis(args, wall_atoms, atom_radii_A(wall_atoms, rset))
     bench = None
     if args.current_pA is not None:
         bench = {
             "current_pA": args.current_pA,
-            "current_sd_pA": args.current_sd_pA,
+            "current_sd_pA": args.current_sd_pA or 0.0,
             "conc_mM": args.conc_mM,
         }
     options = {
@@ -117,8 +150,7 @@ def run(args) -> int:
     data = build_report(
         args.structure,
         entry=args.entry,
-        select=args.select,
-        radii=args.radii,
+        radii=rset,
         ion=args.ion,
         probe_radii_A=probes,
         bench=bench,
@@ -128,12 +160,21 @@ def run(args) -> int:
         ensemble_options=options,
         command_line=shlex.join(["poreprobe", *getattr(args, "argv", sys.argv[1:])]),
         quiet=args.quiet,
+        atoms=atoms,
+        axis=axis,
+        walls=walls,
+        hydrogens=not args.no_hydrogens,
+        scan_options={
+            "spacing_A": args.spacing_A,
+            "from_end": args.entry_end,
+            "pore_radius_A": args.search_radius_A,
+        },
     )
     write_html(data, args.html)
     say(
         args,
-        f"poreprobe {data.provenance.poreprobe_version}: report of {data.provenance.source}"
-        " - model-based estimates",
+        f"poreprobe {data.provenance.poreprobe_version}: report of "
+        f"{data.provenance.source} - model-based estimates",
     )
     say(args, f"report: {args.html}")
     if args.pdf:

@@ -27,6 +27,12 @@ def _jsonable(obj):
     if isinstance(obj, list | tuple):
         return [_jsonable(v) for v in obj]
     if isinstance(obj, np.ndarray):
+        if obj.dtype.kind == "f":  # whole array at once: non-finite values become None
+            out = obj.astype(object)
+            out[~np.isfinite(obj)] = None
+            return out.tolist()
+        if obj.dtype.kind in "biu":
+            return obj.tolist()
         return _jsonable(obj.tolist())
     if isinstance(obj, np.generic):
         return _jsonable(obj.item())

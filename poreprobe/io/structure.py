@@ -430,9 +430,21 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
         raise InputError(
             f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}"
         )
+    keep, dropped = altloc_keep(atoms, policy)
+    if not dropped:
+        return replace(atoms, altloc_policy=policy)
+    note = f"altlocs: kept one of each ({policy}), dropped {dropped} alternate atoms"
+    return replace(atoms.subset(keep, note), altloc_policy=policy)
+
+
+def altloc_keep(atoms: Atoms, policy: str) -> tuple[np.ndarray, int]:
+    """Which atoms :func:`resolve_altlocs` keeps (a boolean mask) and how many it drops."""
     has_alt = atoms.altloc != ""
     if not has_alt.any():
-        return replace(atoms, altloc_policy=policy)
+        return np.ones(len(atoms), dtype=bool), 0
+    if len(policy) == 1 and policy not in ALTLOC_POLICIES and policy not in atoms.altloc:
+        letters = ", ".join(sorted(set(atoms.altloc[has_alt].tolist())))
+        raise InputError(f"--altloc {policy}: the file has altlocs {letters} only")
     idx = np.flatnonzero(has_alt)
     key = np.char.add(
         np.char.add(atoms.chain[idx], "|"),
@@ -452,9 +464,7 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
     chosen = idx[order[first]]
     keep = ~has_alt
     keep[chosen] = True
-    dropped = int(len(idx) - len(chosen))
-    note = f"altlocs: kept one of each ({policy}), dropped {dropped} alternate atoms"
-    return replace(atoms.subset(keep, note), altloc_policy=policy)
+    return keep, int(len(idx) - len(chosen))
 
 
 def select(atoms: Atoms, selection: str) -> Atoms:
@@ -549,6 +559,20 @@ def clean(
         Keep hydrogens (default yes), waters, ions and other hetero groups
         (ligands, lipids, detergents; default no).
     """
+    keep, notes = clean_keep(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
+    if keep.all():
+        return atoms
+    out = atoms.subset(keep)
+    out = replace(out, notes=out.notes + tuple(notes))
+    for note in notes:
+        log.info("%s: %s", atoms.source, note)
+    return out
+
+
+def clean_keep(
+    atoms: Atoms, *, hydrogens: bool, waters: bool, ions: bool, hetero: bool
+) -> tuple[np.ndarray, list[str]]:
+    """Which atoms :func:`clean` keeps (a boolean mask), with a note per dropped kind."""
     keep = np.ones(len(atoms), dtype=bool)
     notes = []
     for kind, wanted in (("water", waters), ("ion", ions), ("hetero", hetero)):
@@ -561,13 +585,39 @@ def clean(
         if mask.any():
             keep &= ~mask
             notes.append(f"dropped {int(mask.sum())} hydrogen atoms")
-    if keep.all():
-        return atoms
-    out = atoms.subset(keep)
-    out = replace(out, notes=out.notes + tuple(notes))
-    for note in notes:
-        log.info("%s: %s", atoms.source, note)
-    return out
+    return keep, notes
+
+
+def cleaned_indices(
+    atoms: Atoms,
+    *,
+    altloc: str = "occupancy",
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
+    selection: str | None = None,
+) -> np.ndarray:
+    """Indices of the atoms :func:`read_structure` would keep with the same options.
+
+    For readers that must keep their own atom order (a trajectory's frames): the
+    same altloc policy, cleaning and selection, as indices into ``atoms``.
+    """
+    keep, _ = altloc_keep(atoms, check_altloc(altloc))
+    more, _ = clean_keep(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
+    idx = np.flatnonzero(keep & more)
+    if len(idx) == 0:
+        raise InputError(f"no atoms left in {atoms.source} after cleaning (try --keep-hetero)")
+    if selection:
+        idx = idx[select_indices(atoms.subset(idx), selection)]
+    return idx
+
+
+def check_altloc(altloc) -> str:
+    """The altloc policy, or InputError: 'occupancy', 'first' or one letter."""
+    if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
+        check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    return altloc
 
 
 def read_structure(
@@ -628,8 +678,7 @@ def read_structure(
         raise InputError(f"{path} is empty")
     model = check_int(model, "model", minimum=0)
     frame = check_int(frame, "frame", minimum=0)
-    if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
-        check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    check_altloc(altloc)
     if _is_gemmi_file(path) and trajectory is None:
         atoms, _ = _read_gemmi(path, model)
     else:

@@ -171,6 +171,11 @@ def build_report(
     ensemble_options: dict | None = None,
     command_line: str | None = None,
     quiet: bool = True,
+    atoms=None,
+    axis=None,
+    walls=("polymer",),
+    hydrogens: bool = True,
+    scan_options: dict | None = None,
 ) -> ReportData:
     """Compute everything the report of one structure shows.
 
@@ -199,11 +204,24 @@ def build_report(
         Recorded in the provenance (default: this process's arguments).
     quiet : bool
         No progress bars.
+    atoms : Atoms, optional
+        The model as read already (waters, ions and hetero groups kept, as for
+        :func:`poreprobe.checks.quality.check_model`); default: read ``path``.
+    axis : PoreAxis, optional
+        The pore axis (default: found on the wall atoms, oriented by ``entry``).
+    walls : tuple of str
+        Atom kinds that count as pore walls.
+    hydrogens : bool
+        Count hydrogens in the walls.
+    scan_options : dict, optional
+        ``spacing_A``, ``from_end``, ``pore_radius_A`` of the probe scan.
 
     Returns
     -------
     ReportData
     """
+    import numpy as np
+
     from poreprobe.bench.conductance import series_resistance
     from poreprobe.checks.quality import check_model
     from poreprobe.geometry.axis import find_pore_axis
@@ -216,12 +234,36 @@ def build_report(
     provenance = provenance_of(path, command_line=command_line, settings=settings)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        everything = read_structure(path, waters=True, ions=True, hetero=True, selection=select)
-        walls = everything.subset(everything.kind == "polymer")
-        axis = find_pore_axis(walls, entry=entry, radii_A=atom_radii_A(walls, rset))
-        check = check_model(everything, axis=axis, ion=ion, radii=rset, warn=False)
+        everything = (
+            read_structure(path, waters=True, ions=True, hetero=True, selection=select)
+            if atoms is None
+            else atoms
+        )
+        mask = np.isin(everything.kind, tuple(walls))
+        if not hydrogens:
+            mask &= ~everything.is_hydrogen
+        wall_atoms = everything.subset(mask)
+        if axis is None:
+            axis = find_pore_axis(wall_atoms, entry=entry, radii_A=atom_radii_A(wall_atoms, rset))
+        check = check_model(
+            everything,
+            axis=axis,
+            ion=ion,
+            radii=rset,
+            walls=tuple(walls),
+            hydrogens=hydrogens,
+            warn=False,
+        )
         probes = DEFAULT_PROBE_RADII_A if probe_radii_A is None else probe_radii_A
-        scan = probe_scan(walls, axis, probe_radii_A=probes, radii=rset, quiet=quiet)
+        scan = probe_scan(
+            wall_atoms,
+            axis,
+            probe_radii_A=probes,
+            radii=rset,
+            quiet=quiet,
+            **dict(scan_options or {}),
+        )
+        walls = wall_atoms
         match = None if not bench else bench_match(scan, bench, ion)
         resistance = series_resistance(
             check.profile, atoms=walls, electrolyte=electrolyte, conc_mM=conc_mM

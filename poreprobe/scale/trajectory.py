@@ -49,7 +49,12 @@ from poreprobe.geometry.axis import PoreAxis, find_pore_axis
 from poreprobe.geometry.profile import plane_positions_A, radius_profile
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
-from poreprobe.io.structure import Atoms, atoms_from_atomgroup, select_in_universe
+from poreprobe.io.structure import (
+    Atoms,
+    atoms_from_atomgroup,
+    cleaned_indices,
+    select_in_universe,
+)
 from poreprobe.scale.defaults import (
     AXIS_MODES,
     DEFAULT_PERCENTILES,
@@ -768,7 +773,12 @@ def profile_trajectory(
     topology,
     trajectory=None,
     *,
-    select: str = "protein",
+    selection: str | None = None,
+    altloc: str = "occupancy",
+    hydrogens: bool = True,
+    waters: bool = False,
+    ions: bool = False,
+    hetero: bool = False,
     start: int | None = None,
     stop: int | None = None,
     step: int | None = None,
@@ -787,8 +797,13 @@ def profile_trajectory(
         Topology or multi-model coordinate file (anything MDAnalysis reads).
     trajectory : str or os.PathLike, optional
         Trajectory file (DCD, XTC, TRR, multi-model PDB, ...).
-    select : str
-        MDAnalysis selection of the pore atoms (default ``"protein"``).
+    selection : str, optional
+        MDAnalysis selection of the pore atoms, applied after cleaning (default:
+        every polymer atom).
+    altloc, hydrogens, waters, ions, hetero
+        Alternate-location policy and atom kinds kept, as for
+        :func:`poreprobe.io.structure.read_structure` (default: polymer atoms
+        with hydrogens), judged on the first frame.
     start, stop, step : int, optional
         Frames to analyse (as for MDAnalysis ``run``).
     backend : {"serial", "multiprocessing", "dask"} or BackendBase
@@ -854,7 +869,18 @@ def profile_trajectory(
             f"no frames selected (start={start}, stop={stop}, step={step}, "
             f"{len(traj)} frames in the trajectory)"
         )
-    atomgroup = select_in_universe(universe, select)
+    first = atoms_from_atomgroup(universe.atoms, source=os.path.basename(topology))
+    atomgroup = universe.atoms[
+        cleaned_indices(
+            first,
+            altloc=altloc,
+            hydrogens=hydrogens,
+            waters=waters,
+            ions=ions,
+            hetero=hetero,
+            selection=selection,
+        )
+    ]
     analysis = PoreProfileAnalysis(atomgroup, **options)
     if isinstance(backend, BackendBase):
         context = contextlib.nullcontext(backend)
