@@ -96,7 +96,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         import matplotlib.pyplot as plt
 
         plots.save_figure(ax, out(name))
-        plt.close(ax.figure)
+        plt.close(ax if hasattr(ax, "add_subplot") else ax.figure)
 
     summary: dict = {
         "note": "model-based estimates on invented channels; invented bench "
@@ -127,7 +127,9 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         model, model_axis = (atoms, axis) if name == "demo_channel" else _load(name)
         scans[name] = probe_scan(model, model_axis, quiet=quiet)
         to_json(scans[name], out(f"scan_{name.removeprefix('demo_')}.json"))
-    figure(plots.plot_probes(scans["demo_channel"]), "probes.png")
+    from poreprobe.figures.probe_profiles import plot_probe_profiles
+
+    figure(plot_probe_profiles(scans["demo_channel"], ion_radii=bands[:1]), "probes.png")
     summary["capture_radius_at_middle_probe_A"] = {
         name.removeprefix("demo_"): float(capture_radius_at(scan, MIDDLE_PROBE_A))
         for name, scan in scans.items()
@@ -236,4 +238,5 @@ def _write_report(path, atoms, axis, report, scan, match_json, resistance) -> di
     return {
         "ensemble_members": ensemble.n_members,
         "ensemble_min_radius_A": ensemble.min_radius.to_dict(),
+        "ensemble_verdict_shares": dict(ensemble.verdict_shares),
     }

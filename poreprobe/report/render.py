@@ -71,9 +71,11 @@ CAUTION = (
 def svg_inline(fig_or_ax) -> str:
     """A figure as an SVG fragment for inlining: no prologue, metadata or namespaces,
     and sized by the page (``width: 100%``) instead of fixed points."""
+    from matplotlib.figure import Figure
+
     from poreprobe.figures import plots
 
-    fig = fig_or_ax.figure if hasattr(fig_or_ax, "figure") else fig_or_ax
+    fig = fig_or_ax if isinstance(fig_or_ax, Figure) else fig_or_ax.figure
     buf = io.BytesIO()
     import matplotlib as mpl
 
@@ -89,8 +91,10 @@ def svg_inline(fig_or_ax) -> str:
 
 def _figures(data) -> list[dict]:
     import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
     from poreprobe.figures import plots
+    from poreprobe.figures.probe_profiles import plot_probe_profiles
 
     bands = plots.ion_reference_radii(
         str(data.check.verdict.ion).rstrip("+-0123456789"), ("crystal", "hydrated")
@@ -99,9 +103,10 @@ def _figures(data) -> list[dict]:
     out = []
 
     def add(key, title, caption, draw):
-        ax = draw()
-        out.append({"key": key, "title": title, "caption": caption, "svg": svg_inline(ax)})
-        plt.close(ax.figure)
+        drawn = draw()
+        fig = drawn if isinstance(drawn, Figure) else drawn.figure
+        out.append({"key": key, "title": title, "caption": caption, "svg": svg_inline(fig)})
+        plt.close(fig)
 
     add(
         "profile",
@@ -127,8 +132,11 @@ def _figures(data) -> list[dict]:
         add(
             "probes",
             "Probe-size scan",
-            "Accessible radius along the axis for each probe that enters.",
-            lambda: plots.plot_probes(data.scan),
+            "Accessible radius along the axis of a few chosen probes (the smallest, the "
+            "largest that passes, the smallest that stops, the largest that enters), one "
+            "panel each; the dot marks where a probe stops, dotted stretches are levels "
+            "open wider than the searched region. The table lists every probe.",
+            lambda: plot_probe_profiles(data.scan, ion_radii=bands[:1]),
         )
         add(
             "capture",

@@ -23,12 +23,15 @@ What is shipped, and how often (why the dask path was slower than serial)
 -------------------------------------------------------------------------
 Every backend here ships the task function (and what it carries: for a
 trajectory the analysis object with its ``Universe``; for an ensemble the atoms)
-**once per worker**, not once per task: the process pool hands it to each
-worker process when it starts (inherited for free when the pool forks), and
-the dask backend scatters it to every worker once (``Client.scatter(...,
-broadcast=True)``) and passes the future to each task. Tasks then send back
-only their results (:class:`BlockResult` for a trajectory block, not the
-analysis object with its ``Universe``). Local worker processes are forked
+**once per worker**, not once per task: the process pool hands it, pickled
+once, to each worker process when it starts (the pool initializer), and the
+dask backend scatters it to every worker once (``Client.scatter(...,
+broadcast=True)``) and passes the future to each task. Either way each worker
+unpickles its own copy, so it opens its own trajectory file (a forked worker
+that used the parent's open file would share its file offset with the
+others: "XTC read error"). Tasks then send back only their results
+(:class:`BlockResult` for a trajectory block, not the analysis object with
+its ``Universe``). Local worker processes are forked
 where the platform allows (``"fork"`` on Linux): spawned processes start a new
 interpreter and import numpy, scipy, MDAnalysis and poreprobe again, seconds
 per worker on a small machine, while forked ones inherit the parent's imports
@@ -95,8 +98,12 @@ def _call_shared(func: Callable, task):
         return func(task)
 
 
-def _install(func: Callable) -> None:
-    _INSTALLED["func"] = func
+def _install(payload: bytes) -> None:
+    # unpickled in each worker, never inherited as it is: a forked worker would share
+    # the parent's open trajectory files (one file offset for all processes)
+    import pickle
+
+    _INSTALLED["func"] = pickle.loads(payload)
 
 
 def _call_installed(task):
@@ -206,9 +213,10 @@ class ProcessPoolBackend(BackendMultiprocessing):
     """MDAnalysis's multiprocessing backend with a progress bar over finished tasks.
 
     Uses ``multiprocessing.Pool.imap`` (results in task order, as ``Pool.map``).
-    The task function goes to each worker once, through the pool's initializer
-    (inherited without pickling when the workers are forked); the tasks carry
-    only their own arguments.
+    The task function goes to each worker once, pickled once and unpickled by
+    the pool's initializer in each worker (so each worker reopens the files the
+    function's objects hold: a forked worker must not share the parent's open
+    trajectory file); the tasks carry only their own arguments.
 
     Parameters
     ----------
@@ -238,9 +246,12 @@ class ProcessPoolBackend(BackendMultiprocessing):
         computations = list(computations)
         if not computations:
             return []
+        import pickle
+
         context = multiprocessing.get_context(self.start_method)
         processes = min(self.n_workers, len(computations))
-        with context.Pool(processes=processes, initializer=_install, initargs=(func,)) as pool:
+        payload = pickle.dumps(func, protocol=pickle.HIGHEST_PROTOCOL)
+        with context.Pool(processes=processes, initializer=_install, initargs=(payload,)) as pool:
             return list(
                 progress(
                     pool.imap(_call_installed, computations),
