@@ -42,3 +42,25 @@ def test_one_panel_per_probe_with_stop_markers_only_for_stopping_probes():
         assert ("stops" in label) == stops
     # a probe that never enters gets no panel
     assert all(scan.enters[k] for k in chosen)
+
+
+def test_scan_command_draws_the_panels(tmp_path, capsys):
+    from poreprobe.cli.main import main
+    from poreprobe.demo.run import ENTRY, demo_path
+
+    fig = tmp_path / "probes.svg"
+    args = [
+        "scan",
+        demo_path("demo_channel"),
+        "--entry",
+        ENTRY,
+        "--probe-radii-A",
+        "1,2",
+        "--figure",
+        str(fig),
+        "--figure-kind",
+        "probes",
+    ]
+    assert main(args) == 0
+    text = fig.read_text()
+    assert "p = 1 Å" in text and "colorbar" not in text

@@ -147,5 +147,21 @@ def run(args) -> int:
         write_atomic(path, text)
     for line in summary_lines(atoms, scan, ensemble):
         say(args, line)
-    save_figure(args, args.figure_kind, scan)
+    if args.figure and args.figure_kind == "probes":
+        _save_probe_panels(args, scan)
+    else:
+        save_figure(args, args.figure_kind, scan)
     return 0
+
+
+def _save_probe_panels(args, scan) -> None:
+    """--figure-kind probes: small multiples of chosen probes (figures/probe_profiles.py)."""
+    from poreprobe.cli.common import figure_ion_radii
+    from poreprobe.figures import plots
+    from poreprobe.figures.probe_profiles import plot_probe_profiles
+
+    fig = plot_probe_profiles(
+        scan, ion_radii=figure_ion_radii(args), width_mm=args.width_mm, height_mm=args.height_mm
+    )
+    plots.save_figure(fig, args.figure, dpi=args.dpi)
+    say(args, f"figure: {args.figure}")
