@@ -21,13 +21,8 @@ from _trajectory_data import (
 from poreprobe import atom_radii_A, atoms_from_atomgroup, find_pore_axis, radius_profile
 from poreprobe.errors import InputError
 from poreprobe.geometry.synthetic import expected_radius_A
-from poreprobe.scale.trajectory import (
-    PoreProfileAnalysis,
-    TrajectoryProfiles,
-    frames_csv,
-    planes_csv,
-    profile_trajectory,
-)
+from poreprobe.scale.trajectory import PoreProfileAnalysis, profile_trajectory
+from poreprobe.scale.trajectory_profiles import TrajectoryProfiles, frames_csv, planes_csv
 
 pytestmark = pytest.mark.filterwarnings("ignore:.*gives no time step")
 

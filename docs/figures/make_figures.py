@@ -175,7 +175,7 @@ def render_mesh(ply: str, png: str) -> None:
     from matplotlib.figure import Figure
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
-    from poreprobe.figures import plots
+    from poreprobe.figures.style import FONT_PT
 
     xyz, rgb, faces = read_ply(ply)
     back = xyz[faces].mean(axis=1)[:, 1] > 0
@@ -201,7 +201,7 @@ def render_mesh(ply: str, png: str) -> None:
     ax.view_init(elev=8, azim=-90)
     ax.set_box_aspect(None, zoom=1.9)
     ax.set_axis_off()
-    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)", fontsize=plots.FONT_PT)
+    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)", fontsize=FONT_PT)
     fig.savefig(png, dpi=int(DPI))
 
 

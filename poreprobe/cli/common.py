@@ -97,7 +97,7 @@ def add_radii_args(group) -> None:
     group.add_argument(
         "--radii-file",
         metavar="TOML",
-        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
+        help="TOML file overriding radii ([elements] / [residues.RESNAME] tables, Å)",
     )
 
 
@@ -466,7 +466,7 @@ def add_figure_args(
 def check_figure_path(args: argparse.Namespace) -> None:
     """Reject a bad --figure suffix, size or ion before any long computation."""
     if getattr(args, "figure", None):
-        from poreprobe.figures.plots import check_figure_options
+        from poreprobe.figures.style import check_figure_options
 
         check_figure_options(
             args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
@@ -478,7 +478,7 @@ def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
     """Labelled reference radii named by --figure-ion / --figure-ion-radii (empty without them)."""
     if not getattr(args, "figure_ion", None):
         return []
-    from poreprobe.figures.plots import ion_reference_radii
+    from poreprobe.figures.references import ion_reference_radii
 
     return ion_reference_radii(args.figure_ion, args.figure_ion_radii)
 
@@ -492,12 +492,11 @@ def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> Non
     path = getattr(args, "figure", None)
     if not path:
         return
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
+    from poreprobe.figures.draw import draw_figure
 
     if "ion_radii" not in options:
         options["ion_radii"] = figure_ion_radii(args)
-    ax = plots.draw_figure(
-        kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options
-    )
-    plots.save_figure(ax, path, dpi=args.dpi)
+    ax = draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options)
+    style.save_figure(ax, path, dpi=args.dpi)
     say(args, f"figure: {path}")

@@ -181,11 +181,11 @@ def scan_band_lines(ensemble) -> list[str]:
 def save_band_figure(args: argparse.Namespace, ensemble) -> None:
     """Write --figure as the model's profile inside the ensemble's 5-95 % band."""
     from poreprobe.cli.common import figure_ion_radii, say
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
     from poreprobe.figures.ensemble_band import plot_ensemble_band
 
     ax = plot_ensemble_band(
         ensemble, ion_radii=figure_ion_radii(args), width_mm=args.width_mm, height_mm=args.height_mm
     )
-    plots.save_figure(ax, args.figure, dpi=args.dpi)
+    style.save_figure(ax, args.figure, dpi=args.dpi)
     say(args, f"figure: {args.figure}")

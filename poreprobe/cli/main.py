@@ -53,7 +53,8 @@ COMMANDS = {
     "plot": ("poreprobe.cli.plot", "draw a figure (PNG, SVG or PDF) from saved JSON results"),
     "export": (
         "poreprobe.cli.export",
-        "pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) for molecular viewers",
+        "pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
+        "for molecular viewers",
     ),
     "traj": (
         "poreprobe.cli.traj",

@@ -102,9 +102,9 @@ def map_csv(result, path=None) -> str:
 def save_map_figure(args, result) -> None:
     """Draw the map check figure to --figure."""
     from poreprobe.cli.common import say
-    from poreprobe.figures import plots
     from poreprobe.figures.map_panel import plot_map_check
+    from poreprobe.figures.style import save_figure
 
     fig = plot_map_check(result, width_mm=args.width_mm, height_mm=args.height_mm)
-    plots.save_figure(fig, args.figure, dpi=args.dpi)
+    save_figure(fig, args.figure, dpi=args.dpi)
     say(args, f"figure: {args.figure}")

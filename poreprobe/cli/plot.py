@@ -73,9 +73,10 @@ def read_json(path: str) -> dict:
 
 
 def run(args) -> int:
-    from poreprobe.figures import plots
+    from poreprobe.figures.draw import draw_figure
+    from poreprobe.figures.style import check_figure_options, save_figure
 
-    plots.check_figure_options(
+    check_figure_options(
         args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
     )
     labels = None
@@ -88,7 +89,7 @@ def run(args) -> int:
     if args.figure_ion and args.kind in ("resistance", "kymograph"):
         raise InputError(f"--figure-ion does not apply to the {args.kind} figure")
     results = [read_json(path) for path in args.inputs]
-    ax = plots.draw_figure(
+    ax = draw_figure(
         args.kind,
         results,
         width_mm=args.width_mm,
@@ -97,6 +98,6 @@ def run(args) -> int:
         labels=labels,
         band=args.band,
     )
-    plots.save_figure(ax, args.figure, dpi=args.dpi)
+    save_figure(ax, args.figure, dpi=args.dpi)
     say(args, f"{args.kind} figure: {args.figure}")
     return 0

@@ -157,11 +157,11 @@ def run(args) -> int:
 def _save_probe_panels(args, scan) -> None:
     """--figure-kind probes: small multiples of chosen probes (figures/probe_profiles.py)."""
     from poreprobe.cli.common import figure_ion_radii
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
     from poreprobe.figures.probe_profiles import plot_probe_profiles
 
     fig = plot_probe_profiles(
         scan, ion_radii=figure_ion_radii(args), width_mm=args.width_mm, height_mm=args.height_mm
     )
-    plots.save_figure(fig, args.figure, dpi=args.dpi)
+    style.save_figure(fig, args.figure, dpi=args.dpi)
     say(args, f"figure: {args.figure}")

@@ -137,7 +137,8 @@ def register(sub) -> None:
 
 
 def run(args) -> int:
-    from poreprobe.scale.trajectory import frames_csv, planes_csv, profile_trajectory
+    from poreprobe.scale.trajectory import profile_trajectory
+    from poreprobe.scale.trajectory_profiles import frames_csv, planes_csv
 
     backend, workers = backend_from_args(args)
     check_figure_path(args)

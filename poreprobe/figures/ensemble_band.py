@@ -68,25 +68,25 @@ def plot_ensemble_band(
     -------
     Axes
     """
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
 
     data = ensemble_arrays(ensemble)
-    return plots._styled(_draw)(data, ax, ion_radii, width_mm, height_mm)
+    return style.styled(_draw)(data, ax, ion_radii, width_mm, height_mm)
 
 
 def _draw(data, ax, ion_radii, width_mm, height_mm):
-    from poreprobe.figures import plots
+    from poreprobe.figures import references, style
 
-    ax = plots._axes(ax, width_mm, height_mm)
+    ax = style.axes_for(ax, width_mm, height_mm)
     s = data["s_A"]
-    refs = plots._checked_references(ion_radii)
-    plots._draw_reference_bands(ax, refs)
+    refs = references.checked_references(ion_radii)
+    references.draw_reference_bands(ax, refs)
     n = data["n_members"]
     ax.fill_between(
         s,
         data["p5"],
         data["p95"],
-        color=plots.LINE_COLORS[0],
+        color=style.LINE_COLORS[0],
         alpha=0.25,
         linewidth=0,
         zorder=2,
@@ -95,7 +95,7 @@ def _draw(data, ax, ion_radii, width_mm, height_mm):
     ax.plot(
         s,
         data["median"],
-        color=plots.LINE_COLORS[0],
+        color=style.LINE_COLORS[0],
         linestyle=(0, (3, 1.5)),
         linewidth=0.8,
         zorder=3,
@@ -106,8 +106,8 @@ def _draw(data, ax, ion_radii, width_mm, height_mm):
     top = np.nanmax(values) if np.isfinite(values).any() else 1.0
     ax.set_xlim(s[0], s[-1])
     ax.set_ylim(0, top * 1.18)
-    ax.set_xlabel(plots.S_LABEL)
-    ax.set_ylabel(plots.RADIUS_LABEL)
+    ax.set_xlabel(style.S_LABEL)
+    ax.set_ylabel(style.RADIUS_LABEL)
     ax.legend(loc="best", handlelength=1.6)
-    plots._finish(ax)
+    style.finish_axes(ax)
     return ax

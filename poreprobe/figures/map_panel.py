@@ -15,14 +15,26 @@ from collections.abc import Mapping
 import numpy as np
 
 from poreprobe.errors import InputError
-from poreprobe.figures import plots
+from poreprobe.figures.data import as_result_dict
+from poreprobe.figures.style import (
+    BAND_EDGE_COLOR,
+    BAND_GREYS,
+    FONT_PT,
+    LINE_COLORS,
+    LINE_PT,
+    RADIUS_LABEL,
+    S_LABEL,
+    SMALL_FONT_PT,
+    finish_axes,
+    new_figure,
+)
 
 #: Default height of the two-panel figure (mm); one journal column wide.
 MAP_HEIGHT_MM = 90.0
 
 
 def _map_dict(result) -> dict:
-    d = plots.as_result_dict(result, "map check")
+    d = as_result_dict(result, "map check")
     if "density_map" in d and isinstance(d["density_map"], Mapping):
         d = dict(d["density_map"])
     if "profile" not in d or "map_radius_A" not in d.get("profile", {}):
@@ -43,15 +55,15 @@ def plot_map_check(result, *, width_mm: float | None = None, height_mm: float | 
     map_r = _array(prof["map_radius_A"])
     centre = _array(prof["centre_line_rms"])
     lo, hi = d.get("radius_band_A", (np.nan, np.nan))
-    fig, ax = plots.new_figure(width_mm=width_mm, height_mm=height_mm or MAP_HEIGHT_MM)
+    fig, ax = new_figure(width_mm=width_mm, height_mm=height_mm or MAP_HEIGHT_MM)
     fig.clear()
     top, bottom = fig.subplots(2, 1, sharex=True, height_ratios=(3, 2))
-    colors = plots.LINE_COLORS
+    colors = LINE_COLORS
     top.fill_between(
-        s, model_r + lo, model_r + hi, color=plots.BAND_GREYS[1], lw=0, label="expected band"
+        s, model_r + lo, model_r + hi, color=BAND_GREYS[1], lw=0, label="expected band"
     )
-    top.plot(s, model_r, color=colors[0], lw=plots.LINE_PT, label="model")
-    top.plot(s, map_r, color=colors[1], lw=plots.LINE_PT, ls="--", label="map, at contour")
+    top.plot(s, model_r, color=colors[0], lw=LINE_PT, label="model")
+    top.plot(s, map_r, color=colors[1], lw=LINE_PT, ls="--", label="map, at contour")
     blobs = d.get("blobs", [])
     if blobs:
         vol = np.array([b["volume_A3"] for b in blobs], dtype=float)
@@ -65,22 +77,22 @@ def plot_map_check(result, *, width_mm: float | None = None, height_mm: float | 
             label="unmodelled density",
             zorder=5,
         )
-    top.set_ylabel(plots.RADIUS_LABEL, fontsize=plots.FONT_PT)
+    top.set_ylabel(RADIUS_LABEL, fontsize=FONT_PT)
     top.set_ylim(bottom=0)
-    top.legend(fontsize=plots.SMALL_FONT_PT, frameon=False, loc="upper right")
-    bottom.plot(s, centre, color=colors[0], lw=plots.LINE_PT)
+    top.legend(fontsize=SMALL_FONT_PT, frameon=False, loc="upper right")
+    bottom.plot(s, centre, color=colors[0], lw=LINE_PT)
     contour = d.get("contour")
     info = d.get("map", {})
     if contour is not None and info.get("rms"):
         level = (contour - info["mean"]) / info["rms"]
-        bottom.axhline(level, color=plots.BAND_EDGE_COLOR, lw=0.6, ls=":", label="contour")
-        bottom.legend(fontsize=plots.SMALL_FONT_PT, frameon=False, loc="upper right")
-    bottom.set_ylabel("Map on centre line (RMS)", fontsize=plots.FONT_PT)
-    bottom.set_xlabel(plots.S_LABEL, fontsize=plots.FONT_PT)
+        bottom.axhline(level, color=BAND_EDGE_COLOR, lw=0.6, ls=":", label="contour")
+        bottom.legend(fontsize=SMALL_FONT_PT, frameon=False, loc="upper right")
+    bottom.set_ylabel("Map on centre line (RMS)", fontsize=FONT_PT)
+    bottom.set_xlabel(S_LABEL, fontsize=FONT_PT)
     for a in (top, bottom):
-        plots._finish(a)
+        finish_axes(a)
     top.set_title(
         f"model vs map (d = {d.get('resolution_A', float('nan')):g} Å); model-based estimates",
-        fontsize=plots.SMALL_FONT_PT,
+        fontsize=SMALL_FONT_PT,
     )
     return fig

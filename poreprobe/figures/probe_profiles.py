@@ -1,6 +1,6 @@
 """Readable probe-scan figure: a handful of chosen probes, each with its own line and label.
 
-The colour-bar figure (:func:`poreprobe.figures.plots.plot_probes`) draws every probe in
+The colour-bar figure (:func:`poreprobe.figures.probes_plot.plot_probes`) draws every probe in
 nearly the same colour, so no line can be told from another. This one draws a few
 chosen probes (by default: the smallest, the largest that passes, the smallest that
 stops, the largest that still enters, and one between), each in its own colour and
@@ -65,7 +65,7 @@ def plot_probe_profiles(
     Parameters
     ----------
     scan : ProbeScan or dict
-        A probe-size scan or its JSON (as for :func:`poreprobe.figures.plots.plot_probes`).
+        A probe-size scan or its JSON (as for :func:`poreprobe.figures.probes_plot.plot_probes`).
     n_probes : int
         How many probes to draw (1 to 7), one panel each.
     ion_radii : sequence of (label, radius_A)
@@ -77,18 +77,21 @@ def plot_probe_profiles(
     -------
     Figure
     """
-    from poreprobe.figures import plots
+    from poreprobe.figures import probes_plot, style
 
     if not 1 <= int(n_probes) <= 7:
         raise InputError(f"n_probes must be between 1 and 7, got {n_probes}")
-    data = plots.scan_arrays(scan)
+    data = probes_plot.scan_arrays(scan)
     if data["accessible_radius_A"] is None:
         raise InputError("the scan holds no accessible-radius profiles")
-    return plots._styled(_draw)(plots, data, int(n_probes), ion_radii, width_mm, height_mm)
+    return style.styled(_draw)(data, int(n_probes), ion_radii, width_mm, height_mm)
 
 
-def _draw(plots, data, n_probes, ion_radii, width_mm, height_mm):
+def _draw(data, n_probes, ion_radii, width_mm, height_mm):
     from matplotlib.figure import Figure
+
+    from poreprobe._validate import check_range
+    from poreprobe.figures import references, style
 
     p, s, acc = data["probe_radius_A"], data["s_A"], data["accessible_radius_A"]
     finite_any = np.isfinite(acc).any(axis=1)
@@ -97,16 +100,16 @@ def _draw(plots, data, n_probes, ion_radii, width_mm, height_mm):
     chosen = choose_probes(p, passes, enters & finite_any, n_probes=n_probes)
     if not chosen:
         raise InputError("no probe of the scan enters the pore: nothing to draw")
-    width = 85.0 if width_mm is None else plots.check_range(width_mm, "width_mm", 20, 600)
+    width = 85.0 if width_mm is None else check_range(width_mm, "width_mm", 20, 600)
     default_h = 14.0 + 20.0 * len(chosen)
-    height = default_h if height_mm is None else plots.check_range(height_mm, "height_mm", 20, 600)
+    height = default_h if height_mm is None else check_range(height_mm, "height_mm", 20, 600)
     fig = Figure(figsize=(width / 25.4, height / 25.4), layout="constrained")
     axes = fig.subplots(len(chosen), 1, sharex=True, sharey=True, squeeze=False)[:, 0]
-    refs = plots._checked_references(ion_radii)
+    refs = references.checked_references(ion_radii)
     top = max([np.nanmax(acc[chosen])] + [v for _, v in refs]) * 1.15
     for j, (ax, k) in enumerate(zip(axes, chosen, strict=True)):
-        color = plots.LINE_COLORS[j % len(plots.LINE_COLORS)]
-        plots._draw_reference_bands(ax, refs)
+        color = style.LINE_COLORS[j % len(style.LINE_COLORS)]
+        references.draw_reference_bands(ax, refs)
         row = acc[k]
         ok = np.flatnonzero(np.isfinite(row))
         seg_s, seg_r = s[ok[0] : ok[-1] + 1], row[ok[0] : ok[-1] + 1]
@@ -137,13 +140,13 @@ def _draw(plots, data, n_probes, ion_radii, width_mm, height_mm):
             transform=ax.transAxes,
             ha="left",
             va="top",
-            fontsize=plots.FONT_PT - 0.5,
+            fontsize=style.FONT_PT - 0.5,
             color="black",
         )
         ax.set_ylim(0, top)
-        plots._finish(ax)
+        style.finish_axes(ax)
     covered = s[np.isfinite(acc[chosen]).any(axis=0)]
     axes[0].set_xlim(covered[0], covered[-1])
-    axes[-1].set_xlabel(plots.S_LABEL)
-    fig.supylabel("Accessible radius (Å)", fontsize=plots.FONT_PT)
+    axes[-1].set_xlabel(style.S_LABEL)
+    fig.supylabel("Accessible radius (Å)", fontsize=style.FONT_PT)
     return fig

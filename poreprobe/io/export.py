@@ -121,3 +121,12 @@ def profile_csv(profile, path=None) -> str:
     return to_csv(
         ("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path, comments
     )
+
+
+def check_suffix(path, suffixes, what: str) -> str:
+    """The lower-case suffix of ``path`` if it is one of ``suffixes`` (InputError otherwise)."""
+    path = os.fspath(path)
+    suffix = os.path.splitext(path)[1].lower()
+    if suffix not in suffixes:
+        raise InputError(f"{what} file must end in {', '.join(suffixes)}; got {path!r}")
+    return suffix

@@ -73,13 +73,13 @@ def svg_inline(fig_or_ax) -> str:
     and sized by the page (``width: 100%``) instead of fixed points."""
     from matplotlib.figure import Figure
 
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
 
     fig = fig_or_ax if isinstance(fig_or_ax, Figure) else fig_or_ax.figure
     buf = io.BytesIO()
     import matplotlib as mpl
 
-    with mpl.rc_context(plots.house_rc()):
+    with mpl.rc_context(style.house_rc()):
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
     text = buf.getvalue().decode("utf-8")
     text = _SVG_PROLOGUE.sub("", text)
@@ -93,10 +93,13 @@ def _figures(data) -> list[dict]:
     import matplotlib.pyplot as plt
     from matplotlib.figure import Figure
 
-    from poreprobe.figures import plots
+    from poreprobe.figures.capture_plot import plot_capture
     from poreprobe.figures.probe_profiles import plot_probe_profiles
+    from poreprobe.figures.profile_plot import plot_profile
+    from poreprobe.figures.references import ion_reference_radii
+    from poreprobe.figures.resistance_plot import plot_resistance
 
-    bands = plots.ion_reference_radii(
+    bands = ion_reference_radii(
         str(data.check.verdict.ion).rstrip("+-0123456789"), ("crystal", "hydrated")
     )
     check = data.check.to_dict()
@@ -114,7 +117,7 @@ def _figures(data) -> list[dict]:
         f"Pore radius along the axis ({data.check.profile.radius_set} radii), with the "
         "crystal and hydrated radii of the ion and the constrictions labelled by their "
         "lining residues.",
-        lambda: plots.plot_profile(
+        lambda: plot_profile(
             data.check.profile, ion_radii=bands, constrictions=check.get("constrictions")
         ),
     )
@@ -147,14 +150,14 @@ def _figures(data) -> list[dict]:
                 if data.match
                 else "."
             ),
-            lambda: plots.plot_capture(data.scan, match=data.match),
+            lambda: plot_capture(data.scan, match=data.match),
         )
     if data.resistance is not None:
         add(
             "resistance",
             "Resistance breakdown",
             "Series resistance of the pore segments and the access resistance at each mouth.",
-            lambda: plots.plot_resistance(data.resistance),
+            lambda: plot_resistance(data.resistance),
         )
     return out
 
