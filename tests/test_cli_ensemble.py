@@ -227,3 +227,27 @@ def test_resolution_rule_in_check_with_resolution(channel, capsys):
     )
     assert code == 0
     assert "0.15 x resolution 3.5 Å" in capsys.readouterr().out
+
+
+def test_match_figure_keeps_the_capture_marker_styles(channel, tmp_path):
+    fig = tmp_path / "capture.svg"
+    args = [
+        "match",
+        channel,
+        "--entry",
+        ENTRY,
+        "--probe-radii-A",
+        "0.5:4:0.5",
+        "--current-pA",
+        "20",
+        "--conc-mM",
+        "150",
+        "--figure",
+        str(fig),
+        "--quiet",
+    ]
+    assert main(args) == 0
+    text = fig.read_text()
+    # the legend of the demo's capture figure: filled, open and crossed markers
+    assert "probe passes (bottleneck)" in text and "probe stops in the pore" in text
+    assert "scanned probe radii" not in text

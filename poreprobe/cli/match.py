@@ -354,5 +354,12 @@ def run(args) -> int:
         to_json(out, args.json)
     for line in summary_lines(out) + extra:
         say(args, line)
-    save_figure(args, "capture", out)
+    if args.figure:
+        # the structure's own curve with its pass / stop / no-entry flags, so the markers
+        # are those of the demo's capture figure (the match alone carries a bare curve)
+        curve = {
+            key: out["structure"][key]
+            for key in ("probe_radius_A", "capture_radius_A", "passes", "enters")
+        }
+        save_figure(args, "capture", {"capture": curve}, out)
     return 0
