@@ -113,7 +113,10 @@ def test_check_ensemble_gives_verdict_shares(channel, tmp_path, capsys):
         ]
     )
     assert code == 0
-    assert "verdict for K+" in capsys.readouterr().out
+    text = capsys.readouterr().out
+    assert "verdict for K+" in text
+    narrowest = next(line for line in text.splitlines() if line.startswith("narrowest:"))
+    assert "ensemble of 3" in narrowest
     shares = json.loads(out.read_text())["ensemble"]["summary"]["verdict"]["shares"]
     assert sum(shares.values()) == pytest.approx(1.0)
 

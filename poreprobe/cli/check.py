@@ -228,6 +228,12 @@ def run(args) -> int:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
     lines = report.report_lines()
     if ensemble is not None:
+        lines = [
+            line + ens_opts.narrowest_line_suffix(ensemble)
+            if line.startswith("narrowest:")
+            else line
+            for line in lines
+        ]
         lines += [""] + ensemble.report_lines()
     lines += ([""] + chem.report_lines()) if chem else []
     for line in lines + ([""] + density.report_lines() if density else []):
