@@ -81,6 +81,7 @@ def run(args) -> int:
         ions=args.keep_ions,
         hetero=args.keep_hetero,
         selection=args.select,
+        assembly=args.assembly,
         axis_method=args.axis_method,
         axis_point_A=args.axis_point,
         axis_direction=args.axis_direction,

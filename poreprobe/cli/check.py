@@ -23,6 +23,7 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     save_figure,
     say,
+    with_assembly,
 )
 from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
@@ -171,6 +172,7 @@ def run(args) -> int:
         ions=True,
         hetero=True,
         selection=args.select,
+        assembly=args.assembly,
     )
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
@@ -199,7 +201,7 @@ def run(args) -> int:
     )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
     if args.json:
-        to_json(chem_opts.with_chemistry(report, chem), args.json)
+        to_json(with_assembly(chem_opts.with_chemistry(report, chem), atoms), args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:

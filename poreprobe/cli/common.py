@@ -33,6 +33,14 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
         help="0-based model index of a multi-model PDB/mmCIF (default 0)",
     )
     g.add_argument(
+        "--assembly",
+        default="auto",
+        metavar="ID",
+        help="biological assembly of a PDB/mmCIF file: 'auto' (default: build the first "
+        "declared assembly when it differs from the deposited model, and say so), "
+        "'deposited' (coordinates as they are) or an assembly id such as 1",
+    )
+    g.add_argument(
         "--frame",
         type=int,
         default=0,
@@ -158,7 +166,15 @@ def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
         ions=args.keep_ions,
         hetero=args.keep_hetero,
         selection=args.select,
+        assembly=getattr(args, "assembly", "auto"),
     )
+
+
+def with_assembly(result, atoms: Atoms) -> dict:
+    """The result as a JSON dictionary with an ``assembly`` entry (which one, how built)."""
+    out = dict(result) if isinstance(result, dict) else result.to_dict()
+    out["assembly"] = None if atoms.assembly is None else atoms.assembly.to_dict()
+    return out
 
 
 def radius_set_from_args(args: argparse.Namespace):

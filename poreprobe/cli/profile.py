@@ -14,6 +14,7 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     save_figure,
     say,
+    with_assembly,
 )
 from poreprobe.geometry.profile import radius_profile
 from poreprobe.io.export import profile_csv, to_json
@@ -85,7 +86,7 @@ def run(args) -> int:
     atoms, _, prof = compute(args)
     chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
-        to_json(chem_opts.with_chemistry(prof, chem), args.json)
+        to_json(with_assembly(chem_opts.with_chemistry(prof, chem), atoms), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
     if chem is not None and args.chemistry_csv:

@@ -16,6 +16,7 @@ from poreprobe.cli.common import (
     load_model,
     save_figure,
     say,
+    with_assembly,
 )
 from poreprobe.errors import InputError
 from poreprobe.geometry.probes import probe_scan, profiles_csv, scan_csv
@@ -171,7 +172,7 @@ def run(args) -> int:
     atoms, scan = compute(args)
     texts = []
     if args.json:
-        texts.append((args.json, to_json(scan)))
+        texts.append((args.json, to_json(with_assembly(scan, atoms))))
     if args.csv:
         texts.append((args.csv, scan_csv(scan)))
     if args.profiles_csv:

@@ -19,7 +19,13 @@ from dataclasses import dataclass, field, fields, replace
 import numpy as np
 
 from poreprobe._validate import as_coords_A, check_choice, check_int
-from poreprobe.errors import InputError
+from poreprobe.errors import AssemblyWarning, InputError
+from poreprobe.io.assembly import (
+    AssemblyInfo,
+    apply_assembly,
+    check_assembly_choice,
+    deposited_info,
+)
 
 log = logging.getLogger("poreprobe")
 
@@ -97,6 +103,9 @@ class Atoms:
         How alternate locations were resolved.
     notes : tuple of str
         What was dropped or changed while reading.
+    assembly : AssemblyInfo or None
+        Which biological assembly the atoms are and how it was built (None for
+        tables made from arrays).
     """
 
     coords_A: np.ndarray
@@ -113,6 +122,7 @@ class Atoms:
     source: str = ""
     altloc_policy: str = "occupancy"
     notes: tuple[str, ...] = field(default_factory=tuple)
+    assembly: AssemblyInfo | None = None
 
     def __post_init__(self):
         n = len(self.coords_A)
@@ -158,6 +168,7 @@ class Atoms:
             "n_atoms": len(self),
             "altloc_policy": self.altloc_policy,
             "notes": list(self.notes),
+            "assembly": None if self.assembly is None else self.assembly.to_dict(),
         }
 
 
@@ -243,7 +254,7 @@ def _fixed_strings(raw: np.ndarray) -> np.ndarray:
     return raw.view(f"S{raw.shape[1]}").ravel().astype(str)
 
 
-def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
+def _read_gemmi(path: str, model: int, assembly: str = "deposited") -> tuple[Atoms, int]:
     import gemmi
 
     try:
@@ -260,6 +271,7 @@ def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
     for idx in range(n_models - 1, -1, -1):
         if st[idx].num != keep:
             del st[idx]
+    info = apply_assembly(st, 0, assembly)
     flat = gemmi.FlatStructure(st)
     if len(flat.pos) == 0:
         raise InputError(f"{path} holds no atoms")
@@ -285,6 +297,7 @@ def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
         b_factor=np.asarray(flat.b_iso, dtype=np.float64),
         kind=kind.astype(str),
         source=os.path.basename(path),
+        assembly=info,
     )
     return _mark_ions(atoms), n_models
 
@@ -582,6 +595,7 @@ def read_structure(
     ions: bool = False,
     hetero: bool = False,
     selection: str | None = None,
+    assembly: str = "auto",
 ) -> Atoms:
     """Read a channel model into :class:`Atoms`.
 
@@ -602,10 +616,17 @@ def read_structure(
         Which atom kinds to keep (default: polymer atoms with hydrogens).
     selection : str, optional
         MDAnalysis selection applied after cleaning.
+    assembly : str
+        ``"auto"`` (default: the first declared biological assembly, built when
+        it differs from the deposited model, with an :class:`AssemblyWarning`),
+        ``"deposited"`` (coordinates as they are) or an assembly id; see
+        :mod:`poreprobe.io.assembly`. Files read through MDAnalysis declare no
+        assembly and are used as they are.
 
     Returns
     -------
     Atoms
+        With ``Atoms.assembly`` recording the assembly used.
 
     Raises
     ------
@@ -630,9 +651,23 @@ def read_structure(
     frame = check_int(frame, "frame", minimum=0)
     if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
         check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    assembly = check_assembly_choice(assembly)
     if _is_gemmi_file(path) and trajectory is None:
-        atoms, _ = _read_gemmi(path, model)
+        atoms, _ = _read_gemmi(path, model, assembly)
+        if atoms.assembly.built:
+            atoms = replace(atoms, notes=atoms.notes + (f"assembly: {atoms.assembly.note}",))
+        if atoms.assembly.built and assembly == "auto":
+            import warnings
+
+            warnings.warn(
+                f"{atoms.source}: {atoms.assembly.note} (use assembly 'deposited' for the "
+                "coordinates as they are)",
+                AssemblyWarning,
+                stacklevel=2,
+            )
     else:
+        if assembly not in ("auto", "deposited"):
+            raise InputError(f"{path} declares no assemblies (only PDB/mmCIF files can)")
         universe = open_universe(path, trajectory)
         n_frames = len(universe.trajectory)
         if not 0 <= frame < n_frames:
@@ -641,6 +676,9 @@ def read_structure(
         if len(universe.atoms) == 0:
             raise InputError(f"{path} holds no atoms")
         atoms = atoms_from_atomgroup(universe.atoms, source=os.path.basename(path))
+        atoms = replace(
+            atoms, assembly=deposited_info(assembly, (), "no assembly records in this format")
+        )
     atoms = resolve_altlocs(atoms, altloc)
     atoms = clean(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
     if len(atoms) == 0:

@@ -308,6 +308,7 @@ def profile_files(
     ions: bool = False,
     hetero: bool = False,
     selection: str | None = None,
+    assembly: str = "auto",
     axis_method: str = "auto",
     axis_point_A=None,
     axis_direction=None,
@@ -342,7 +343,7 @@ def profile_files(
         Radius set and optional TOML overrides (see :func:`poreprobe.get_radius_set`).
     step_A, margin_A, max_radius_A : float
         Profile options (Å), as in :func:`poreprobe.radius_profile`.
-    model, altloc, hydrogens, waters, ions, hetero, selection
+    model, altloc, hydrogens, waters, ions, hetero, selection, assembly
         Reading and cleaning options of :func:`poreprobe.read_structure`.
     axis_method, axis_point_A, axis_direction, axis_selections, entry
         Axis options of :func:`poreprobe.find_pore_axis`.
@@ -376,6 +377,7 @@ def profile_files(
             "ions": ions,
             "hetero": hetero,
             "selection": selection,
+            "assembly": assembly,
         },
         axis={
             "method": axis_method,
