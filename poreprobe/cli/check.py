@@ -25,6 +25,7 @@ from poreprobe.cli.common import (
     say,
     with_assembly,
 )
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
 from poreprobe.io.export import to_csv, to_json
@@ -199,14 +200,19 @@ def run(args) -> int:
         symmetry_tolerance_A=args.symmetry_tolerance_A,
         warn=False,
     )
+    presence = require_pore(
+        args, wall_atoms, atom_radii_A(wall_atoms, rset), axis, report.profile, rset.name
+    )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
     if args.json:
-        to_json(with_assembly(chem_opts.with_chemistry(report, chem), atoms), args.json)
+        to_json(with_assembly(chem_opts.with_chemistry(report, chem), atoms, presence), args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
+    lines = report.report_lines()
+    lines.insert(1, presence.message())
+    for line in lines + ([""] + chem.report_lines() if chem else []):
         say(args, line)
     if args.figure:
         if chem is None:

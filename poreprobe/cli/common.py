@@ -170,10 +170,17 @@ def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
     )
 
 
-def with_assembly(result, atoms: Atoms) -> dict:
-    """The result as a JSON dictionary with an ``assembly`` entry (which one, how built)."""
+def with_assembly(result, atoms: Atoms, presence=None) -> dict:
+    """The result as a JSON dictionary with an ``assembly`` entry (which one, how built).
+
+    With a :class:`~poreprobe.geometry.pore_presence.PorePresence`, ``pore_found`` and
+    ``pore_presence`` are added too.
+    """
     out = dict(result) if isinstance(result, dict) else result.to_dict()
     out["assembly"] = None if atoms.assembly is None else atoms.assembly.to_dict()
+    if presence is not None:
+        out["pore_found"] = presence.pore_found
+        out["pore_presence"] = presence.to_dict()
     return out
 
 

@@ -15,6 +15,7 @@ import sys
 import warnings
 
 from poreprobe._version import __version__
+from poreprobe.cli.pore_gate import NoPoreFound, report_no_pore
 from poreprobe.errors import PoreprobeError
 
 #: Every command: name -> (its module, the one-line summary ``poreprobe --help`` lists).
@@ -123,6 +124,8 @@ def main(argv=None) -> int:
             warnings.simplefilter("ignore")
         try:
             return int(args.func(args) or 0)
+        except NoPoreFound as exc:  # a result, not an error: one line, exit status 0
+            return report_no_pore(args, exc)
         except PoreprobeError as exc:
             sys.stderr.write(f"poreprobe: error: {exc}\n")
             return 2

@@ -16,6 +16,7 @@ from poreprobe.cli.common import (
     say,
     with_assembly,
 )
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.profile import radius_profile
 from poreprobe.io.export import profile_csv, to_json
 
@@ -37,7 +38,16 @@ def register(sub) -> None:
 
 
 def compute(args):
-    """Atoms, axis and profile as the options ask (shared with other commands)."""
+    """Atoms, axis and profile as the options ask (shared with other commands).
+
+    Raises :class:`~poreprobe.cli.pore_gate.NoPoreFound` when the model encloses no pore.
+    """
+    atoms, axis, prof, _ = compute_with_presence(args)
+    return atoms, axis, prof
+
+
+def compute_with_presence(args):
+    """Atoms, axis, profile and :class:`PorePresence`; no pore raises ``NoPoreFound``."""
     atoms, rset, radii_A, axis = load_model(args)
     prof = radius_profile(
         atoms,
@@ -48,7 +58,8 @@ def compute(args):
         max_radius_A=args.max_radius_A,
     )
     prof = _with_set_name(prof, rset.name)
-    return atoms, axis, prof
+    presence = require_pore(args, atoms, radii_A, axis, prof, rset.name)
+    return atoms, axis, prof, presence
 
 
 def _with_set_name(prof, name):
@@ -83,15 +94,17 @@ def _fmt(vec, digits=2):
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
-    atoms, _, prof = compute(args)
+    atoms, _, prof, presence = compute_with_presence(args)
     chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
-        to_json(with_assembly(chem_opts.with_chemistry(prof, chem), atoms), args.json)
+        to_json(with_assembly(chem_opts.with_chemistry(prof, chem), atoms, presence), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in summary_lines(atoms, prof) + ([] if chem is None else chem.report_lines()):
+    lines = summary_lines(atoms, prof)
+    lines.insert(3, presence.message())
+    for line in lines + ([] if chem is None else chem.report_lines()):
         say(args, line)
     if chem is None:
         save_figure(args, "profile", prof)

@@ -18,6 +18,7 @@ from poreprobe.cli.common import (
     say,
     with_assembly,
 )
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.errors import InputError
 from poreprobe.geometry.probes import probe_scan, profiles_csv, scan_csv
 from poreprobe.io.export import to_json, write_atomic
@@ -151,6 +152,7 @@ def compute(args):
     """Atoms and probe-size scan as the options ask (shared with ``match``)."""
     probes = parse_probe_range(args.probes)
     atoms, rset, radii_A, axis = load_model(args)
+    require_pore(args, atoms, radii_A, axis, radius_set=rset.name)
     scan = probe_scan(
         atoms,
         axis,
