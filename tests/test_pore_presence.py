@@ -117,7 +117,7 @@ def test_batch_rows_carry_the_flag(tmp_path):
 
 def test_a_user_axis_is_not_tested(tmp_path, capsys):
     out = tmp_path / "r.json"
-    axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
+    axis = ["--axis-selections", "resid 1:40", "resid 90:129"]
     argv = ["profile", entry("9lyz"), *axis, "--no-chemistry", "--json", str(out)]
     assert main(argv) == 0
     assert "pore presence not tested" in capsys.readouterr().out
