@@ -81,10 +81,16 @@ def summary_lines(atoms, prof) -> list[str]:
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
         f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
-        f"lined by {', '.join(prof.min_residues[:8]) or 'n/a'}",
+        f"lined by {_lined_by(prof.min_residues)}",
     ]
     lines += [f"note: {n}" for n in atoms.notes]
     return lines
+
+
+def _lined_by(labels) -> str:
+    from poreprobe.figures.plots import residue_summary
+
+    return residue_summary(labels, limit=6) if len(labels) else "n/a"
 
 
 def _fmt(vec, digits=2):
