@@ -28,6 +28,7 @@ from poreprobe.cli.common import (
 from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
+from poreprobe.geometry.pore_region import drop_stray_atoms
 from poreprobe.io.export import to_csv, to_json
 from poreprobe.io.radii import atom_radii_A
 from poreprobe.io.structure import read_structure
@@ -175,6 +176,7 @@ def run(args) -> int:
         selection=args.select,
         assembly=args.assembly,
     )
+    atoms = drop_stray_atoms(atoms)
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
     wall_mask = np.isin(atoms.kind, walls)

@@ -154,7 +154,17 @@ def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> Non
 
 
 def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
-    """Read the structure named on the command line with its cleaning options."""
+    """Read the structure named on the command line with its cleaning options.
+
+    Stray atoms far from the rest of the model are reported and left out
+    (:mod:`poreprobe.geometry.pore_region`).
+    """
+    from poreprobe.geometry.pore_region import drop_stray_atoms
+
+    return drop_stray_atoms(_read_atoms(args, path))
+
+
+def _read_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
     return read_structure(
         path or args.structure,
         trajectory=args.trajectory,

@@ -228,15 +228,21 @@ def principal_axes(atoms: Atoms) -> list[PoreAxis]:
     return [PoreAxis(centre, vecs[:, j], "principal") for j in (2, 1, 0)]
 
 
-def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray) -> float:
-    """Smallest clearance along the axis line within the middle 80 % of the atoms (Å)."""
-    from poreprobe.geometry.kernel import AtomSpheres
+def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray, spheres=None) -> float:
+    """Smallest clearance along the axis line within the middle 80 % of the atoms (Å).
 
+    ``spheres`` (an :class:`~poreprobe.geometry.kernel.AtomSpheres` of the same atoms)
+    saves building the search tree again when several lines are compared.
+    """
+    if spheres is None:
+        from poreprobe.geometry.kernel import AtomSpheres
+
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
     s = axis.s_A(atoms.coords_A)
     lo, hi = np.quantile(s, [0.1, 0.9])
     samples = np.linspace(lo, hi, max(int((hi - lo) / 0.25), 2))
     pts = axis.point_A + samples[:, None] * axis.direction
-    return float(AtomSpheres(atoms.coords_A, radii_A).clearance_A(pts).min())
+    return float(spheres.clearance_A(pts).min())
 
 
 def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreAxis:
@@ -349,6 +355,8 @@ def find_pore_axis(
         from poreprobe.io.radii import atom_radii_A
 
         radii_A = atom_radii_A(atoms)
+    from poreprobe.geometry.kernel import AtomSpheres
+
     sym = symmetry_axis(atoms)
     if method == "symmetry":
         if sym is None:
@@ -358,12 +366,16 @@ def find_pore_axis(
             )
         chosen = sym
     elif method == "principal":
-        chosen = max(principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A))
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
+        chosen = max(
+            principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A, spheres)
+        )
     elif sym is not None and sym.n_fold >= 3:
         chosen = sym
     else:
         candidates = ([sym] if sym is not None else []) + principal_axes(atoms)
-        openness = [line_openness_A(atoms, ax, radii_A) for ax in candidates]
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
+        openness = [line_openness_A(atoms, ax, radii_A, spheres) for ax in candidates]
         chosen = candidates[int(np.argmax(openness))]
     if sym is not None and chosen is not sym:
         # a rejected two-fold: the pore runs across it, keep the notes on the choice

@@ -58,12 +58,30 @@ def sorted_chains(chains) -> list[str]:
     return sorted(set(chains), key=natural_key)
 
 
-def chain_residues(atoms: Atoms, chain: str) -> tuple[list[tuple[int, str]], list[str]]:
-    """(resid, icode) keys and names of a chain's polymer residues that have a CA, in order."""
-    mask = (atoms.kind == "polymer") & (atoms.chain == chain) & (atoms.name == "CA")
-    keys = list(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True))
+def polymer_index(atoms: Atoms) -> dict[str, np.ndarray]:
+    """Chain id -> indices of its polymer atoms (in file order), computed in one pass."""
+    idx = np.flatnonzero(atoms.kind == "polymer")
+    chains = atoms.chain[idx]
+    order = np.argsort(chains, kind="stable")
+    names, starts = np.unique(chains[order], return_index=True)
+    bounds = list(starts) + [len(order)]
+    return {str(n): idx[order[bounds[i] : bounds[i + 1]]] for i, n in enumerate(names.tolist())}
+
+
+def chain_residues(
+    atoms: Atoms, chain: str, index: dict | None = None
+) -> tuple[list[tuple[int, str]], list[str]]:
+    """(resid, icode) keys and names of a chain's polymer residues that have a CA, in order.
+
+    ``index`` (from :func:`polymer_index`) saves a pass over all atoms per chain.
+    """
+    if index is None:
+        index = {chain: np.flatnonzero((atoms.kind == "polymer") & (atoms.chain == chain))}
+    rows = index.get(chain, np.zeros(0, dtype=np.int64))
+    rows = rows[atoms.name[rows] == "CA"]
+    keys = list(zip(atoms.resid[rows].tolist(), atoms.icode[rows].tolist(), strict=True))
     first: dict = {}
-    for key, name in zip(keys, atoms.resname[mask].tolist(), strict=True):
+    for key, name in zip(keys, atoms.resname[rows].tolist(), strict=True):
         first.setdefault(key, name)
     order = sorted(first, key=lambda k: (k[0], k[1]))
     return order, [first[k] for k in order]
@@ -77,7 +95,9 @@ def _alignment(ref_names: list[str], names: list[str]) -> dict[int, int]:
     return {a + t: b + t for a, b, size in matcher.get_matching_blocks() for t in range(size)}
 
 
-def aligned_residues(atoms: Atoms, chains: list[str]) -> list[list[tuple[int, str]]]:
+def aligned_residues(
+    atoms: Atoms, chains: list[str], index: dict | None = None
+) -> list[list[tuple[int, str]]]:
     """Residue keys of equivalent chains, aligned column by column.
 
     The sequences (residue names of residues with a CA) are aligned to the first
@@ -89,11 +109,12 @@ def aligned_residues(atoms: Atoms, chains: list[str]) -> list[list[tuple[int, st
     list of list of (int, str)
         ``out[k][j]``: (resid, icode) of column j in chain ``chains[k]``.
     """
-    ref_keys, ref_names = chain_residues(atoms, chains[0])
+    index = polymer_index(atoms) if index is None else index
+    ref_keys, ref_names = chain_residues(atoms, chains[0], index)
     common = set(range(len(ref_keys)))
     maps = []
     for ch in chains[1:]:
-        keys, names = chain_residues(atoms, ch)
+        keys, names = chain_residues(atoms, ch, index)
         mapping = _alignment(ref_names, names)
         maps.append((keys, mapping))
         common &= set(mapping)
@@ -101,7 +122,7 @@ def aligned_residues(atoms: Atoms, chains: list[str]) -> list[list[tuple[int, st
     return [[ref_keys[j] for j in cols]] + [[keys[m[j]] for j in cols] for keys, m in maps]
 
 
-def chain_groups(atoms: Atoms) -> list[list[str]]:
+def chain_groups(atoms: Atoms, index: dict | None = None) -> list[list[str]]:
     """Groups of chains with the same sequence (two or more chains each).
 
     Returns
@@ -110,10 +131,10 @@ def chain_groups(atoms: Atoms) -> list[list[str]]:
         Chain ids of each group in natural sorted order; groups ordered by size
         (largest first), then by their first chain id.
     """
-    poly = atoms.kind == "polymer"
+    index = polymer_index(atoms) if index is None else index
     seqs = {}
-    for ch in sorted_chains(atoms.chain[poly].tolist()):
-        _, names = chain_residues(atoms, ch)
+    for ch in sorted_chains(index):
+        _, names = chain_residues(atoms, ch, index)
         if names:
             seqs[ch] = names
     groups: list[list[str]] = []
@@ -130,19 +151,20 @@ def chain_groups(atoms: Atoms) -> list[list[str]]:
     return sorted(groups, key=lambda g: (-len(g), natural_key(g[0])))
 
 
-def matched_backbone(atoms: Atoms, group: list[str]) -> np.ndarray:
+def matched_backbone(atoms: Atoms, group: list[str], index: dict | None = None) -> np.ndarray:
     """Backbone (N, CA, C) coordinates present in every chain of ``group``, (n, m, 3)."""
-    poly = atoms.kind == "polymer"
-    columns = aligned_residues(atoms, group)
+    index = polymer_index(atoms) if index is None else index
+    columns = aligned_residues(atoms, group, index)
     coords_per_chain = []
     for ch in group:
-        mask = poly & (atoms.chain == ch) & np.isin(atoms.name, BACKBONE)
+        rows = index[ch]
+        rows = rows[np.isin(atoms.name[rows], BACKBONE)]
         table: dict = {}
         for r, i, n, xyz in zip(
-            atoms.resid[mask].tolist(),
-            atoms.icode[mask].tolist(),
-            atoms.name[mask].tolist(),
-            atoms.coords_A[mask],
+            atoms.resid[rows].tolist(),
+            atoms.icode[rows].tolist(),
+            atoms.name[rows].tolist(),
+            atoms.coords_A[rows],
             strict=True,
         ):
             table.setdefault((r, i, n), xyz)
@@ -223,10 +245,10 @@ def cyclic_order(atoms: Atoms, chains, point, direction) -> tuple[str, ...]:
     return tuple(chains[i] for i in np.argsort(angles, kind="stable"))
 
 
-def fit_symmetry(atoms: Atoms, group: list[str]) -> SymmetryFit | None:
+def fit_symmetry(atoms: Atoms, group: list[str], index: dict | None = None) -> SymmetryFit | None:
     """The n-fold symmetry axis of one group of equivalent chains (None if too few atoms)."""
     group = sorted_chains(group)
-    matched = matched_backbone(atoms, group)
+    matched = matched_backbone(atoms, group, index)
     if matched.shape[1] < 3:
         return None
     n = len(group)
@@ -262,7 +284,9 @@ def choose_symmetry(atoms: Atoms) -> tuple[SymmetryFit | None, tuple[str, ...]]:
     notes : tuple of str
         Rejected fits (with their RMSD and the threshold) and the chains left out.
     """
-    fits = [f for f in (fit_symmetry(atoms, g) for g in chain_groups(atoms)) if f is not None]
+    index = polymer_index(atoms)
+    groups = chain_groups(atoms, index)
+    fits = [f for f in (fit_symmetry(atoms, g, index) for g in groups) if f is not None]
     notes = [
         f"{f.describe()} > {MAX_SYMMETRY_RMSD_A:g} Å: not the axis of a symmetric channel, ignored"
         for f in fits
@@ -272,8 +296,7 @@ def choose_symmetry(atoms: Atoms) -> tuple[SymmetryFit | None, tuple[str, ...]]:
     if not accepted:
         return None, tuple(notes)
     best = max(accepted, key=lambda f: (f.n_fold, -f.radial_A))
-    poly_chains = sorted_chains(atoms.chain[atoms.kind == "polymer"].tolist())
-    others = [c for c in poly_chains if c not in best.chains]
+    others = [c for c in sorted_chains(index) if c not in best.chains]
     if others:
         notes.append(
             f"axis from chains {', '.join(sorted_chains(best.chains))} (C{best.n_fold}); "
