@@ -41,7 +41,8 @@ from poreprobe.geometry.chain_groups import (
     matched_backbone,
 )
 from poreprobe.geometry.frame import canonical_frame, canonical_point
-from poreprobe.io.structure import Atoms, select_indices
+from poreprobe.io.cleaning import select_indices
+from poreprobe.io.structure import Atoms
 
 __all__ = [
     "AXIS_METHODS",
