@@ -122,3 +122,11 @@ def test_mmcif_conversion_keeps_the_assembly(tmp_path):
     np.testing.assert_allclose(
         from_cif.coords_A[order_cif], from_pdb.coords_A[order_pdb], atol=1e-3
     )
+
+
+def test_batch_rows_record_the_assembly(tmp_path):
+    out = tmp_path / "b.json"
+    assert main(["batch", entry("5vke"), entry("3pjs"), "--quiet", "--json", str(out)]) == 0
+    rows = {os.path.basename(r["path"]): r for r in json.loads(out.read_text())["rows"]}
+    assert rows["5vke.pdb.gz"]["assembly"] == "1 (built)"
+    assert rows["3pjs.pdb.gz"]["assembly"] == "1"

@@ -53,6 +53,9 @@ class BatchRow:
         Whether the model encloses a pore (:mod:`poreprobe.geometry.pore_presence`);
         without one the narrowest radius is NaN (null) and no scan or check is run.
         None when the file failed or the axis was given by the user (not tested).
+    assembly : str
+        The biological assembly used (``"1 (built)"``, ``"deposited"``; see
+        :mod:`poreprobe.io.assembly`).
     capture_radius_A : tuple of float
         Capture radius (Å, area-equivalent) for each of the summary's
         ``capture_probe_radii_A``; NaN where the scan failed for this file.
@@ -74,6 +77,7 @@ class BatchRow:
     axis_method: str = ""
     min_residues: tuple[str, ...] = ()
     pore_found: bool | None = None
+    assembly: str = ""
     capture_radius_A: tuple[float, ...] = ()
     findings: tuple[int, ...] = ()
     verdict: str = ""
@@ -94,6 +98,7 @@ class BatchRow:
             "axis_method": self.axis_method,
             "min_residues": list(self.min_residues),
             "pore_found": self.pore_found,
+            "assembly": self.assembly or None,
             "capture_radius_A": list(self.capture_radius_A),
             "findings": (
                 dict(zip(_severities(), self.findings, strict=True)) if self.findings else None
@@ -243,6 +248,11 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
         axis_method=axis.method,
         min_residues=prof.min_residues if found is not False else (),
         pore_found=found,
+        assembly=(
+            ""
+            if atoms.assembly is None
+            else atoms.assembly.used + (" (built)" if atoms.assembly.built else "")
+        ),
         capture_radius_A=capture,
         findings=findings,
         verdict=verdict,
