@@ -8,7 +8,9 @@
    (order-free), fits with a symmetry RMSD above 4 Å rejected and reported, and the
    accepted group of highest order closest to its axis chosen; accessory chains
    (Fabs, beta subunits, toxins) neither break the symmetry nor decide the axis.
-   ``PoreAxis.chains`` lists the chains that define the axis.
+   ``PoreAxis.chains`` lists the chains that define the axis. A single chain of four
+   homologous repeats (eukaryotic Na+ and Ca2+ channels) gets a pseudo-four-fold axis
+   from its repeats (:mod:`poreprobe.geometry.repeats`; method ``"pseudo-C4 (repeats)"``).
 2. For n >= 3 that axis is used. For n = 2 (a two-fold axis may run across the
    pore, as in a head-to-head dimer) and without symmetry, the candidates are
    the symmetry axis (if any) and the three principal axes of the atoms
@@ -359,6 +361,9 @@ def find_pore_axis(
     from poreprobe.geometry.kernel import AtomSpheres
 
     sym = symmetry_axis(atoms)
+    repeat_notes: tuple[str, ...] = ()
+    if sym is None:
+        sym, repeat_notes = _repeat_axis(atoms)
     if method == "symmetry":
         if sym is None:
             raise InputError(
@@ -383,5 +388,28 @@ def find_pore_axis(
         chosen = replace(chosen, notes=sym.notes + (f"{sym.method} axis not along the pore",))
     elif sym is None:
         _, notes = choose_symmetry(atoms)
-        chosen = replace(chosen, notes=notes)
+        chosen = replace(chosen, notes=notes + repeat_notes)
     return orient_axis(chosen, atoms, entry)
+
+
+def _repeat_axis(atoms: Atoms) -> tuple[PoreAxis | None, tuple[str, ...]]:
+    """Pseudo-four-fold axis of a single chain of four repeats (geometry.repeats), if accepted."""
+    from poreprobe.geometry.repeats import fit_repeats
+
+    fit = fit_repeats(atoms)
+    if fit is None:
+        return None, ()
+    if not fit.accepted:
+        return None, (
+            f"{fit.describe()} > {MAX_SYMMETRY_RMSD_A:g} Å: not a four-repeat channel, ignored",
+        )
+    axis = PoreAxis(
+        fit.point_A,
+        fit.direction,
+        "pseudo-C4 (repeats)",
+        n_fold=4,
+        symmetry_rmsd_A=fit.deviation_A,
+        chains=(fit.chain,),
+        notes=(fit.describe(),),
+    )
+    return axis, ()
