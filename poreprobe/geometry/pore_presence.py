@@ -24,8 +24,8 @@ from the entries in the tests (Bondi radii, planes every 0.2, 0.5 or 1 Å): the
 channels there have 21-22 Å (gramicidin A, 1GRM, and the K+ channel inner-helix
 fragment, the shortest) to over 80 Å (GLIC) of walled lumen, while the packing
 voids of lysozyme (9LYZ) add up to 3-7 Å, the ligand pocket and cavities of
-the P2Y1 receptor (4XNW, assembly 1 or 2) to 5-10 Å, and its deposited pair of
-receptors to 13-14 Å. A channel whose
+the P2Y1 receptor (4XNW, assembly 1) to 8-10 Å, and its deposited pair of
+receptors to 13.5-14 Å (``benchmarks/bench_pore_presence.py`` prints them). A channel whose
 pore is narrower than water over nearly its whole length is also reported
 without one.
 
