@@ -8,7 +8,7 @@ Models:
   channel, 200,000 atoms in all: 216 chains, the Fab chains forming groups of 54 that must
   not decide the axis;
 * each again with two stray atoms 20,000 Å from the model (left out by
-  poreprobe.geometry.pore_region, as every command does).
+  poreprobe.io.sanity.drop_far_atoms, as reading a file does).
 
 Each case runs in its own process; printed: compute time of the profile (axis, pore
 presence and radius profile at 0.2 Å, after reading), of the readiness check, and the
@@ -75,7 +75,7 @@ def run_case(kind: str, strays: bool) -> None:
     import poreprobe as pp
     from poreprobe.checks.quality import check_model
     from poreprobe.geometry.pore_presence import pore_presence
-    from poreprobe.geometry.pore_region import drop_stray_atoms
+    from poreprobe.io.sanity import drop_far_atoms
 
     atoms = build(kind)
     if strays:
@@ -86,7 +86,7 @@ def run_case(kind: str, strays: bool) -> None:
     small = atoms.subset(np.arange(2000))
     pp.find_pore_axis(small)
     t0 = time.perf_counter()
-    atoms = drop_stray_atoms(atoms)
+    atoms = drop_far_atoms(atoms)
     radii = pp.atom_radii_A(atoms)
     axis = pp.find_pore_axis(atoms, radii_A=radii)
     prof = pp.radius_profile(atoms, axis, radii_A=radii, step_A=0.2)

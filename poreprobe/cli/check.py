@@ -30,7 +30,6 @@ from poreprobe.cli.common import (
 from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A
-from poreprobe.geometry.pore_region import drop_stray_atoms
 from poreprobe.io.export import to_csv, to_json
 from poreprobe.io.radii import atom_radii_A
 from poreprobe.io.structure import read_structure
@@ -180,7 +179,6 @@ def run(args) -> int:
         selection=args.select,
         assembly=args.assembly,
     )
-    atoms = drop_stray_atoms(atoms)
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
     wall_mask = np.isin(atoms.kind, walls)

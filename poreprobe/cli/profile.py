@@ -42,14 +42,9 @@ def register(sub) -> None:
 def compute(args):
     """Atoms, axis and profile as the options ask (shared with other commands).
 
-    Raises :class:`~poreprobe.cli.pore_gate.NoPoreFound` when the model encloses no pore.
+    Raises :class:`~poreprobe.cli.pore_gate.NoPoreFound` when the model encloses no pore;
+    the :class:`PorePresence` is kept on ``args`` for the command's JSON.
     """
-    atoms, axis, prof, _ = compute_with_presence(args)
-    return atoms, axis, prof
-
-
-def compute_with_presence(args):
-    """Atoms, axis, profile and :class:`PorePresence`; no pore raises ``NoPoreFound``."""
     atoms, rset, radii_A, axis = load_model(args)
     prof = radius_profile(
         atoms,
@@ -60,8 +55,8 @@ def compute_with_presence(args):
         max_radius_A=args.max_radius_A,
     )
     prof = _with_set_name(prof, rset.name)
-    presence = require_pore(args, atoms, radii_A, axis, prof, rset.name)
-    return atoms, axis, prof, presence
+    args._pore_presence = require_pore(args, atoms, radii_A, axis, prof, rset.name)
+    return atoms, axis, prof
 
 
 def _with_set_name(prof, name):
@@ -102,7 +97,8 @@ def _fmt(vec, digits=2):
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
-    atoms, _, prof, presence = compute_with_presence(args)
+    atoms, _, prof = compute(args)
+    presence = args._pore_presence
     chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     if args.json:
         to_json(with_assembly(chem_opts.with_chemistry(prof, chem), atoms, presence), args.json)

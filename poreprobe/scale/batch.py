@@ -24,7 +24,6 @@ from poreprobe._validate import check_choice, check_int, check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError, PoreprobeError, QualityWarning
 from poreprobe.geometry.axis import find_pore_axis
-from poreprobe.geometry.pore_region import drop_stray_atoms
 from poreprobe.geometry.profile import radius_profile
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
@@ -210,7 +209,7 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
         try:
             if _GLOB_CHARS & set(path) and not os.path.exists(path):
                 raise InputError(f"pattern {path} matches no files")
-            atoms = drop_stray_atoms(read_structure(path, **options.read))
+            atoms = read_structure(path, **options.read)
             radii_A = atom_radii_A(atoms, options.radius_set)
             axis = find_pore_axis(atoms, radii_A=radii_A, **options.axis)
             prof = radius_profile(
@@ -290,11 +289,8 @@ def _check(path: str, axis, options: _FileOptions) -> tuple[tuple[int, ...], str
     kept = {"hetero": read["hetero"], "ion": read["ions"], "water": read["waters"]}
     walls = ("polymer",) + tuple(kind for kind, keep in kept.items() if keep)
     try:
-        everything = drop_stray_atoms(
-            read_structure(
-                path, **{**read, "hydrogens": True, "waters": True, "ions": True, "hetero": True}
-            ),
-            warn=False,
+        everything = read_structure(
+            path, **{**read, "hydrogens": True, "waters": True, "ions": True, "hetero": True}
         )
         report = check_model(
             everything,
