@@ -21,3 +21,7 @@ class PoreNotFoundError(PoreprobeError, RuntimeError):
 
 class QualityWarning(UserWarning):
     """Suspect but usable input (missing hydrogens, altlocs, unknown elements, ...)."""
+
+
+class AssemblyWarning(UserWarning):
+    """The model used is not the file's coordinates as deposited (an assembly was built)."""

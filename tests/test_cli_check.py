@@ -43,7 +43,7 @@ def test_check_writes_json_and_report(model_files, capsys):
     out = model_files / "clean.json"
     assert main(["check", str(model_files / "clean.pdb"), "--ion", "K", "--json", str(out)]) == 0
     text = capsys.readouterr().out
-    assert "readiness report" in text and "ring of 4 x LEU 12 side chains" in text
+    assert "readiness report" in text and "Leu12 (A-D) side chains" in text
     assert "model-based estimates" in text
     data = json.loads(out.read_text())
     assert {"lining", "findings", "verdict", "constrictions", "sensitivity"} <= set(data)

@@ -48,7 +48,8 @@ def test_traj_writes_json_and_csv(breathing, tmp_path, capsys):
     frames = [ln.split(",") for ln in out_frames.read_text().splitlines() if not ln.startswith("#")]
     assert [row[-1] for row in frames[1:]].count("1") == 2
     stdout = capsys.readouterr().out
-    assert "closed below 1.38 Å: 2 of 12 frames (2, 10)" in stdout
+    assert "closed below 1.13 Å: 2 of 12 frames (2, 10)" in stdout
+    assert "borderline (1.13 to 1.63 Å): 4 of 12 frames" in stdout
     assert "model-based estimates" in stdout
 
 

@@ -53,9 +53,12 @@ def test_demo_results_are_consistent(demo_out):
     # the closed state is narrower than a bare K+ ion anywhere along its pore
     assert summary["closed_min_radius_A"] < K_CRYSTAL_RADIUS_A
     assert summary["closed_verdict"] == "closed"
-    # the open channel admits a dehydrated but not a hydrated K+
+    # the open channel admits a bare but not a hydrated K+; its narrowest radius lies
+    # within the 0.25 Å borderline band above the crystal radius, so the verdict says so
     assert K_CRYSTAL_RADIUS_A <= summary["min_radius_A"] < K_HYDRATED_RADIUS_A
-    assert summary["verdict"] == "dehydrated"
+    assert summary["verdict"] == (
+        "borderline" if summary["min_radius_A"] < K_CRYSTAL_RADIUS_A + 0.25 else "dehydrated"
+    )
     profile = json.loads((demo_out / "profile.json").read_text())
     assert profile["min_radius_A"] == pytest.approx(summary["min_radius_A"])
     assert profile["axis"]["method"] == "symmetry C4"
@@ -126,7 +129,8 @@ def test_demo_report_has_its_band(demo_out):
     assert band["p5"] <= band["median"] <= band["p95"] and band["n"] == 8
     assert 'id="figure-ensemble"' in text and "8 perturbed copies" in text
     # displacing the atoms narrows the narrowest point on average (a minimum over atoms):
-    # the model's "dehydrated" verdict becomes "closed" in most members (README says so)
+    # the model's "dehydrated" verdict becomes "closed" or "borderline" (README says so)
     assert band["median"] < summary["min_radius_A"]
-    assert summary["ensemble_verdict_shares"]["closed"] > 0.5
+    shares = summary["ensemble_verdict_shares"]
+    assert shares["closed"] + shares["borderline"] == 1.0
     assert "invented" in text and "Model-based estimates" in text

@@ -322,7 +322,7 @@ def test_profile_axes_carry_profile_and_ion_bands(profile_a):
     ) == pytest.approx((crystal, hydrated))
     note = ax.texts[0].get_text()
     assert f"{profile_a['min_radius_A']:.2f} Å" in note
-    assert "ALA" in note and "×4" in note  # four symmetric copies condensed
+    assert "Ala" in note and "(A-D)" in note  # four symmetric copies grouped by chain
 
 
 def test_profile_constrictions_from_a_check_result(profile_a):
@@ -335,7 +335,7 @@ def test_profile_constrictions_from_a_check_result(profile_a):
     }
     ax = draw_figure("profile", [profile_a, check])
     texts = [t.get_text() for t in ax.texts]
-    assert texts == ["2.30 Å\nTHR75", "3.10 Å\nLEU12 ×2"]  # narrowest first
+    assert texts == ["2.30 Å\nThr75 (A)", "3.10 Å\nLeu12 (A, B)"]  # narrowest first
 
 
 def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, trajectory):
@@ -467,8 +467,12 @@ def test_radius_colours_follow_the_perceptual_map():
 
 
 def test_residue_summary_and_ion_radii():
-    assert residue_summary(["A:LEU12", "B:LEU12", "A:THR75", "C:LEU12"]) == "LEU12 ×3, THR75"
-    assert residue_summary([f"A:GLY{k}" for k in range(5)], limit=2) == "GLY0, GLY1, +3 more"
+    got = residue_summary(["A:LEU12", "B:LEU12", "A:THR75", "C:LEU12", "D:LEU12"])
+    assert got == "Leu12 (A-D), Thr75 (A)"
+    assert residue_summary([f"A:GLY{k}" for k in range(5)], limit=2) == (
+        "Gly0 (A), Gly1 (A), +3 more"
+    )
+    assert residue_summary(["A:TRP15", "A:TRP13", "B:TRP15"]) == "Trp15 (A, B), Trp13 (A)"
     refs = ion_reference_radii(["Na", "Cl-"], "crystal,stokes")
     assert [round(v, 6) for _, v in refs] == [
         round(v, 6)
@@ -673,7 +677,7 @@ def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
     assert len(markers) == len(data["constrictions"]) >= 2
     labels = [t.get_text() for t in ax.texts]
     # one label per narrow stretch: the gate (ring radius 4.3 Å) and the filter (3.3 Å)
-    assert len(labels) == 2 and all("×4" in t for t in labels)
+    assert len(labels) == 2 and all("(A-D)" in t for t in labels)
     gate = min(data["constrictions"], key=lambda c: abs(c["s_A"] + 5))
     assert any(t.startswith(f"{gate['radius_A']:.2f} Å") for t in labels)
 

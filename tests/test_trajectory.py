@@ -74,9 +74,12 @@ def test_breathing_profile_matches_closed_form(breathing_fixed):
 
 def test_closed_frames_use_k_crystal_radius(breathing_fixed):
     ana = breathing_fixed
-    assert ana.closed_below_A == pytest.approx(K_CRYSTAL_A, abs=1e-12)
-    # minimum radius 2.3 - 1.2 sin(pi t / 4) < 1.38 only where sin = 1: t = 2, 10
+    # the verdict's rule: closed below the K+ crystal radius less the 0.25 Å borderline band
+    assert ana.closed_below_A == pytest.approx(K_CRYSTAL_A - 0.25, abs=1e-12)
+    # minimum radius 2.3 - 1.2 sin(pi t / 4) < 1.13 only where sin = 1: t = 2, 10
     np.testing.assert_array_equal(ana.results.closed_frames, [2, 10])
+    # 1.13 <= 2.3 - 1.2 sin(pi t / 4) < 1.63 where sin = sqrt(2)/2: t = 1, 3, 9, 11
+    np.testing.assert_array_equal(ana.results.borderline_frames, [1, 3, 9, 11])
 
 
 def test_fit_recovers_the_rigid_motion(breathing_fixed):

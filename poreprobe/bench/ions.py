@@ -24,6 +24,11 @@ from scipy import constants
 
 from poreprobe.errors import InputError
 
+#: Borderline band around an ion radius (Å): half the 0.50 Å RMS displacement of atoms
+#: with B = 20 Å² (sqrt(B / 8 pi^2), common practice); our choice. Used by the permeation
+#: verdict and the trajectory "closed" count (poreprobe.checks.verdict).
+BORDERLINE_BAND_A = 0.25
+
 T_REF_K = 298.15
 ETA_WATER_25C_MPA_S = 0.8903
 

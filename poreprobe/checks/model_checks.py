@@ -533,6 +533,21 @@ def check_hydrogens(atoms, radius_set) -> list[Finding]:
                 {"residues_without_hydrogens": len(lacking)},
             )
         ]
+    from poreprobe.checks.hydrogens import hydrogen_coverage
+
+    coverage = hydrogen_coverage(atoms)
+    if coverage.status == "partial":
+        return [
+            Finding(
+                "medium",
+                "hydrogens-partial",
+                f"Only some atom types carry hydrogens ({coverage.describe()}): a profile with "
+                "them is neither the heavy-atom nor the all-atom answer. Add all hydrogens or "
+                "leave them out (--no-hydrogens).",
+                (),
+                coverage.to_dict(),
+            )
+        ]
     return [
         Finding(
             "info",

@@ -25,6 +25,7 @@ import numpy as np
 from poreprobe._validate import check_positive, check_range
 from poreprobe._version import __version__
 from poreprobe.bench.ions import get_ion
+from poreprobe.checks.hydrogens import hydrogen_coverage
 from poreprobe.checks.model_checks import (  # noqa: F401 (SEVERITIES and thresholds re-exported)
     B_FACTOR_SIGMAS,
     NEAR_DISTANCE_A,
@@ -87,6 +88,8 @@ class QualityReport:
         Whether hydrogens (if any) were counted in the main profile.
     model_has_hydrogens : bool
         Whether the model's wall atoms include hydrogens at all.
+    hydrogen_coverage : str
+        ``"none"``, ``"partial"`` or ``"full"`` (:mod:`poreprobe.checks.hydrogens`).
     settings : dict
         Distances, thresholds and fractions used.
     notes : tuple of str
@@ -107,6 +110,7 @@ class QualityReport:
     notes: tuple[str, ...] = ()
     source: str = ""
     version: str = field(default=__version__)
+    hydrogen_coverage: str = ""
 
     def by_code(self, code: str) -> tuple[Finding, ...]:
         """Findings with one code."""
@@ -125,6 +129,7 @@ class QualityReport:
             "radius_set": prof.radius_set,
             "hydrogens": self.hydrogens,
             "model_has_hydrogens": self.model_has_hydrogens,
+            "hydrogen_coverage": self.hydrogen_coverage,
             "walls": list(self.walls),
             "settings": dict(self.settings),
             "axis": prof.axis.to_dict(),
@@ -145,7 +150,8 @@ class QualityReport:
     def _hydrogen_text(self) -> str:
         if not self.model_has_hydrogens:
             return "no hydrogens in the model"
-        return "hydrogens counted" if self.hydrogens else "hydrogens left out"
+        kind = "partial hydrogens" if self.hydrogen_coverage == "partial" else "hydrogens"
+        return f"{kind} counted" if self.hydrogens else f"{kind} left out"
 
     def report_lines(self) -> list[str]:
         """The human-readable report, findings sorted by severity."""
@@ -366,6 +372,7 @@ def check_model(
         walls=walls,
         hydrogens=bool(hydrogens),
         model_has_hydrogens=bool((atoms.is_hydrogen & np.isin(atoms.kind, walls)).any()),
+        hydrogen_coverage=hydrogen_coverage(atoms.subset(np.isin(atoms.kind, walls))).status,
         settings={
             "lining_distance_A": lining_d,
             "near_distance_A": near,

@@ -92,6 +92,7 @@ def run(args) -> int:
         ions=args.keep_ions,
         hetero=args.keep_hetero,
         selection=args.select,
+        assembly=args.assembly,
         axis_method=args.axis_method,
         axis_point_A=args.axis_point,
         axis_direction=args.axis_direction,
@@ -118,7 +119,9 @@ def run(args) -> int:
     )
     width = max(len(row.path) for row in summary.rows)
     for row in summary.rows:
-        if row.ok:
+        if row.ok and row.pore_found is False:
+            say(args, f"  {row.path:<{width}}  no pore found (no narrowest radius)")
+        elif row.ok:
             capture = "".join(
                 f", capture {c:.2f} Å (probe {p:g} Å)"
                 for p, c in zip(summary.capture_probe_radii_A, row.capture_radius_A, strict=True)

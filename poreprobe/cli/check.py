@@ -26,7 +26,9 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     save_figure,
     say,
+    with_assembly,
 )
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A
 from poreprobe.io.export import to_csv, to_json
@@ -178,6 +180,7 @@ def run(args) -> int:
         ions=True,
         hetero=True,
         selection=args.select,
+        assembly=args.assembly,
     )
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
@@ -204,6 +207,9 @@ def run(args) -> int:
         symmetry_tolerance_A=args.symmetry_tolerance_A,
         warn=False,
     )
+    presence = require_pore(
+        args, wall_atoms, atom_radii_A(wall_atoms, rset), axis, report.profile, rset.name
+    )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
     ensemble = ens_opts.ensemble_from_args(args, wall_atoms, axis, ion=args.ion)
     density = None
@@ -221,12 +227,13 @@ def run(args) -> int:
         result["density_map"] = density.to_dict()
     result = ens_opts.with_ensemble(result, ensemble)
     if args.json:
-        to_json(result, args.json)
+        to_json(with_assembly(result, atoms, presence), args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
     lines = report.report_lines()
+    lines.insert(1, presence.message())
     if ensemble is not None:
         lines = [
             line + ens_opts.narrowest_line_suffix(ensemble)

@@ -53,6 +53,14 @@ def add_structure_args(
             metavar="N",
             help="0-based frame of --trajectory (default 0)",
         )
+        g.add_argument(
+            "--assembly",
+            default="auto",
+            metavar="ID",
+            help="biological assembly of a PDB/mmCIF file: 'auto' (default: build the first "
+            "declared assembly when it differs from the deposited model, and say so), "
+            "'deposited' (coordinates as they are) or an assembly id such as 1",
+        )
     g.add_argument(
         "--altloc",
         default="occupancy",
@@ -182,7 +190,22 @@ def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
         model=args.model,
         frame=args.frame,
         **cleaning_from_args(args),
+        assembly=getattr(args, "assembly", "auto"),
     )
+
+
+def with_assembly(result, atoms: Atoms, presence=None) -> dict:
+    """The result as a JSON dictionary with an ``assembly`` entry (which one, how built).
+
+    With a :class:`~poreprobe.geometry.pore_presence.PorePresence`, ``pore_found`` and
+    ``pore_presence`` are added too.
+    """
+    out = dict(result) if isinstance(result, dict) else result.to_dict()
+    out["assembly"] = None if atoms.assembly is None else atoms.assembly.to_dict()
+    if presence is not None:
+        out["pore_found"] = presence.pore_found
+        out["pore_presence"] = presence.to_dict()
+    return out
 
 
 def radius_set_from_args(args: argparse.Namespace):

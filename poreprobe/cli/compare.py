@@ -118,7 +118,9 @@ def run(args) -> int:
         labels=args.structures,
     )
     if args.json:
-        to_json(result, args.json)
+        out = result.to_dict()
+        out["assemblies"] = [None if m.assembly is None else m.assembly.to_dict() for m in models]
+        to_json(out, args.json)
     if args.csv:
         result.to_csv(args.csv)
     for line in summary_lines(result):

@@ -175,11 +175,15 @@ def _run(args: argparse.Namespace, argv: list[str]) -> int:
 def _run_planned(args: argparse.Namespace, record) -> int:
     from poreprobe.cli.dependencies import check_dependent_options
     from poreprobe.cli.outputs import plan_outputs
+    from poreprobe.cli.pore_gate import NoPoreFound, report_no_pore
 
     try:
         check_dependent_options(args.command, args, args.given)
         with plan_outputs(args, annotate=record.annotate) as plan:
-            code = int(args.func(args) or 0)
+            try:
+                code = int(args.func(args) or 0)
+            except NoPoreFound as exc:  # a result, not an error: one line, exit status 0
+                code = report_no_pore(args, exc)
             plan.commit()
         return code
     except PoreprobeError as exc:

@@ -69,9 +69,13 @@ def run(args) -> int:
         ),
         radius_set=rset.name,
     )
+    from poreprobe.cli.common import with_assembly
+    from poreprobe.cli.pore_gate import require_pore
+
+    presence = require_pore(args, atoms, radii_A, axis, profile, rset.name)
     result = map_opts.map_check_from_args(args, args.density_map, atoms, profile)
     if args.json:
-        to_json(result, args.json)
+        to_json(with_assembly(result, atoms, presence), args.json)
     if args.csv:
         map_opts.map_csv(result, args.csv)
     for line in result.report_lines():

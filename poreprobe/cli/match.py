@@ -257,6 +257,7 @@ def compute(args) -> dict:
             "passes": scan.passes.tolist(),
             "enters": scan.enters.tolist(),
             "notes": [*atoms.notes, *scan.notes],
+            "assembly": None if atoms.assembly is None else atoms.assembly.to_dict(),
         }
         ensemble = ens_opts.ensemble_from_args(
             args,

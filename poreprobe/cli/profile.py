@@ -16,7 +16,9 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     save_figure,
     say,
+    with_assembly,
 )
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.profile import radius_profile
 from poreprobe.io.export import profile_csv, to_json
 
@@ -40,7 +42,11 @@ def register(sub) -> None:
 
 
 def compute(args):
-    """Atoms, axis and profile as the options ask (shared with other commands)."""
+    """Atoms, axis and profile as the options ask (shared with other commands).
+
+    Raises :class:`~poreprobe.cli.pore_gate.NoPoreFound` when the model encloses no pore;
+    the :class:`PorePresence` is kept on ``args`` for the command's JSON.
+    """
     atoms, rset, radii_A, axis = load_model(args)
     prof = radius_profile(
         atoms,
@@ -51,6 +57,7 @@ def compute(args):
         max_radius_A=args.max_radius_A,
     )
     prof = _with_set_name(prof, rset.name)
+    args._pore_presence = require_pore(args, atoms, radii_A, axis, prof, rset.name)
     return atoms, axis, prof
 
 
@@ -73,13 +80,18 @@ def summary_lines(atoms, prof, ensemble=None) -> list[str]:
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
         f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
-        f"lined by {', '.join(prof.min_residues[:8]) or 'n/a'}"
-        + ens_opts.narrowest_line_suffix(ensemble),
+        f"lined by {_lined_by(prof.min_residues)}" + ens_opts.narrowest_line_suffix(ensemble),
     ]
     if ensemble is not None:
         lines += ensemble.report_lines()
     lines += [f"note: {n}" for n in atoms.notes]
     return lines
+
+
+def _lined_by(labels) -> str:
+    from poreprobe.figures.data import residue_summary
+
+    return residue_summary(labels, limit=6) if len(labels) else "n/a"
 
 
 def _fmt(vec, digits=2):
@@ -91,15 +103,22 @@ def run(args) -> int:
     chem_opts.check_chemistry_args(args)
     ens_opts.check_ensemble_args(args)
     atoms, axis, prof = compute(args)
+    presence = args._pore_presence
     chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
     ensemble = ens_opts.ensemble_from_args(args, atoms, axis)
     if args.json:
-        to_json(ens_opts.with_ensemble(chem_opts.with_chemistry(prof, chem), ensemble), args.json)
+        to_json(
+            ens_opts.with_ensemble(
+                with_assembly(chem_opts.with_chemistry(prof, chem), atoms, presence), ensemble
+            ),
+            args.json,
+        )
     if args.csv:
         profile_csv(prof, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
     lines = summary_lines(atoms, prof, ensemble)
+    lines.insert(3, presence.message())
     for line in lines + ([] if chem is None else chem.report_lines()):
         say(args, line)
     if ensemble is not None and args.figure:

@@ -126,6 +126,7 @@ def run(args) -> int:
         trajectory=args.trajectory,
         model=args.model,
         frame=args.frame,
+        assembly=args.assembly,
         altloc=args.altloc,
         hydrogens=True,
         waters=True,

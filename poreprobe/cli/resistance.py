@@ -24,6 +24,7 @@ from poreprobe.cli.common import (
     check_figure_path,
     save_figure,
     say,
+    with_assembly,
 )
 from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError, QualityWarning
@@ -314,6 +315,7 @@ def run(args) -> int:
     if est is not None:
         out = est.to_dict()
         out["axis"] = prof.axis.to_dict()
+        out = with_assembly(out, atoms)
         if split is not None:
             out["inverse"] = split.to_dict()
     else:

@@ -16,8 +16,10 @@ from poreprobe.cli.common import (
     parse_probe_radii,
     save_figure,
     say,
+    with_assembly,
 )
 from poreprobe.cli.outputs import OutputPath
+from poreprobe.cli.pore_gate import require_pore
 from poreprobe.geometry.probes import probe_scan, profiles_csv, scan_csv
 from poreprobe.io.export import to_json
 
@@ -92,6 +94,7 @@ def compute(args):
     """Atoms and probe-size scan as the options ask (shared with ``match``)."""
     probes = parse_probe_radii(args.probe_radii_A)
     atoms, rset, radii_A, axis = load_model(args)
+    require_pore(args, atoms, radii_A, axis, radius_set=rset.name)
     scan = probe_scan(
         atoms,
         axis,
@@ -129,7 +132,7 @@ def run(args) -> int:
     ensemble = scan_ensemble(args, atoms, scan)
     # the command's output plan writes these together, after the figure (all or nothing)
     if args.json:
-        to_json(ens_opts.with_ensemble(scan.to_dict(), ensemble), args.json)
+        to_json(ens_opts.with_ensemble(with_assembly(scan, atoms), ensemble), args.json)
     if args.csv:
         scan_csv(scan, args.csv)
     if args.profiles_csv:

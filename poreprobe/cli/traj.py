@@ -100,8 +100,8 @@ def register(sub) -> None:
         type=float,
         default=None,
         help="a frame is closed when its narrowest radius is below this, Å "
-        f"(default {default_closing_threshold():g}: K+ crystal radius, "
-        "Shannon 1976)",
+        f"(default {default_closing_threshold():g}: K+ crystal radius 1.38 Å, "
+        "Shannon 1976, less the 0.25 Å borderline band of the verdict)",
     )
     g.add_argument(
         "--percentiles",
@@ -224,6 +224,11 @@ def summary_lines(result, backend: str) -> list[str]:
     lines.append(
         f"closed below {result.closed_below_A:g} Å: {len(closed)} of "
         f"{result.n_frames} frames" + (f" ({shown})" if closed else "")
+    )
+    border = result.borderline_frames.tolist()
+    lines.append(
+        f"borderline ({result.closed_below_A:g} to {result.closed_below_A + 0.5:g} Å): "
+        f"{len(border)} of {result.n_frames} frames"
     )
     open_frames = int((~np.isfinite(mins)).sum())
     if open_frames:

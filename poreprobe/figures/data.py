@@ -82,15 +82,22 @@ def float_or_nan(value) -> float:
 
 
 def residue_summary(labels: Sequence[str], *, limit: int = 3) -> str:
-    """Condense residue labels ``"A:LEU12"`` over chains: ``"LEU12 x4, THR75 x4"``."""
-    counts: dict[str, int] = {}
-    for label in labels:
-        key = str(label).split(":", 1)[-1]
-        counts[key] = counts.get(key, 0) + 1
-    parts = [f"{k} ×{n}" if n > 1 else k for k, n in counts.items()]
-    if len(parts) > limit:
-        parts = parts[:limit] + [f"+{len(parts) - limit} more"]
-    return ", ".join(parts)
+    """Chain-aware summary of residue labels ``"A:LEU12"``: ``"Leu12 (A-D), Thr75 (A)"``.
+
+    Copies of one residue in several chains are grouped (:mod:`poreprobe.io.labels`);
+    labels past ``limit`` are counted (``"+2 more"``).
+    """
+    from poreprobe.errors import InputError
+    from poreprobe.io.labels import summarise_labels
+
+    labels = [str(lab) for lab in labels]
+    try:
+        return summarise_labels(labels, limit=limit)
+    except InputError:  # labels not of the chain:NAMEnumber form: shown as they are
+        parts = list(dict.fromkeys(labels))
+        if len(parts) > limit:
+            parts = parts[:limit] + [f"+{len(parts) - limit} more"]
+        return ", ".join(parts)
 
 
 def runs(mask: np.ndarray) -> list[tuple[int, int]]:

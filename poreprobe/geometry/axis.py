@@ -2,43 +2,64 @@
 
 ``method="auto"`` (default):
 
-1. Chains with the same residue sequence (at least 90 % of the shorter chain
-   aligned with identical residue names, so a missing loop in one subunit is
-   tolerated) form a group of equivalent subunits (the largest group wins).
-   Their matched backbone atoms (N, CA, C) give, by least-squares
-   superposition of the first subunit onto each other one, a set of
-   rotations; the common rotation axis through the group's centroid is the
-   n-fold symmetry axis. ``symmetry_rmsd_A`` is the RMSD between each subunit
-   and the first subunit carried onto it by the ideal n-fold rotation about
-   that axis (the deviation from perfect C_n symmetry).
+1. The chains that make the pore are found as in
+   :mod:`poreprobe.geometry.chain_groups`: groups of chains with the same sequence
+   (>= 90 % identity), each group's n-fold axis from all its subunits treated alike
+   (order-free), fits with a symmetry RMSD above 4 Å rejected and reported, and the
+   accepted group of highest order closest to its axis chosen; accessory chains
+   (Fabs, beta subunits, toxins) neither break the symmetry nor decide the axis.
+   ``PoreAxis.chains`` lists the chains that define the axis. A single chain of four
+   homologous repeats (eukaryotic Na+ and Ca2+ channels) gets a pseudo-four-fold axis
+   from its repeats (:mod:`poreprobe.geometry.repeats`; method ``"pseudo-C4 (repeats)"``).
 2. For n >= 3 that axis is used. For n = 2 (a two-fold axis may run across the
    pore, as in a head-to-head dimer) and without symmetry, the candidates are
    the symmetry axis (if any) and the three principal axes of the atoms
    through their centroid; the one whose line is most open (largest smallest
    clearance along the line within the middle 80 % of the protein) is used.
 
-Sign convention: with an entry selection, s increases from the entry end. Without
-one, the direction is chosen so that the chains' N-terminal residues lie at
-negative s; where that is ambiguous (|mean s| < 1 Å), the largest Cartesian
-component of the direction is made positive. The axis point is always the
-centroid of the atoms projected onto the axis, so s = 0 at the protein's centre.
+Canonical frame (the same for any order of chains, residues and atoms and for any
+rigid motion of the input; see :mod:`poreprobe.geometry.frame`): s = 0 at the
+projection of the centroid of the pore-forming chains; the sign of s from the
+structure (an entry selection, else the N-termini of the pore-forming chains at
+negative s, else the N-to-C direction of the chain with the smallest id); an
+in-plane reference direction towards the first pore-forming chain
+(``PoreAxis.reference_basis``).
 """
 
 from __future__ import annotations
 
-import difflib
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from poreprobe._validate import as_unit_vector, as_vector3, check_choice
 from poreprobe.errors import InputError
-from poreprobe.geometry.superpose import kabsch_rotation, rotate_about, rotation_axis_angle
+from poreprobe.geometry.chain_groups import (
+    MAX_SYMMETRY_RMSD_A,
+    aligned_residues,
+    chain_groups,
+    chain_residues,
+    choose_symmetry,
+    matched_backbone,
+)
+from poreprobe.geometry.frame import canonical_frame, canonical_point
 from poreprobe.io.cleaning import select_indices
 from poreprobe.io.structure import Atoms
 
+__all__ = [
+    "AXIS_METHODS",
+    "MAX_SYMMETRY_RMSD_A",
+    "PoreAxis",
+    "aligned_residues",
+    "chain_residues",
+    "equivalent_chains",
+    "find_pore_axis",
+    "orient_axis",
+    "principal_axes",
+    "symmetry_axis",
+]
+
 AXIS_METHODS = ("auto", "symmetry", "principal", "user", "selections")
-BACKBONE = ("N", "CA", "C")
 
 
 @dataclass(frozen=True)
@@ -60,6 +81,14 @@ class PoreAxis:
         Deviation from ideal n-fold symmetry (Å), if symmetry was analysed.
     oriented_by : str
         What fixed the sign of ``direction``.
+    chains : tuple of str
+        Chains that define the axis (the pore-forming group, in order around the
+        axis, starting at the smallest id); empty when no symmetry group is used.
+    reference_direction : ndarray of shape (3,) or None
+        Canonical in-plane unit vector (perpendicular to ``direction``) from the
+        axis towards the first pore-forming chain; see :meth:`reference_basis`.
+    notes : tuple of str
+        How the axis was chosen: rejected symmetry fits, accessory chains.
     """
 
     point_A: np.ndarray
@@ -68,12 +97,25 @@ class PoreAxis:
     n_fold: int | None = None
     symmetry_rmsd_A: float | None = None
     oriented_by: str = "default"
+    chains: tuple[str, ...] = ()
+    reference_direction: np.ndarray | None = None
+    notes: tuple[str, ...] = ()
 
     def __post_init__(self):
         object.__setattr__(self, "point_A", as_vector3(self.point_A, "point_A"))
         object.__setattr__(self, "direction", as_unit_vector(self.direction, "direction"))
+        object.__setattr__(self, "chains", tuple(str(c) for c in self.chains))
+        object.__setattr__(self, "notes", tuple(str(n) for n in self.notes))
         self.point_A.setflags(write=False)
         self.direction.setflags(write=False)
+        if self.reference_direction is not None:
+            ref = as_vector3(self.reference_direction, "reference_direction")
+            ref = ref - (ref @ self.direction) * self.direction
+            if np.linalg.norm(ref) < 1e-9:
+                raise InputError("reference_direction must not be parallel to the direction")
+            ref = ref / np.linalg.norm(ref)
+            ref.setflags(write=False)
+            object.__setattr__(self, "reference_direction", ref)
 
     def basis(self) -> tuple[np.ndarray, np.ndarray]:
         """Two unit vectors (e1, e2) completing a right-handed frame with the direction."""
@@ -82,6 +124,17 @@ class PoreAxis:
         e1 = np.cross(d, ref)
         e1 /= np.linalg.norm(e1)
         return e1, np.cross(d, e1)
+
+    def reference_basis(self) -> tuple[np.ndarray, np.ndarray]:
+        """Canonical in-plane frame (e1, e2): e1 the reference direction, e2 = direction x e1.
+
+        Defined from the structure (see :mod:`poreprobe.geometry.frame`), so a grid laid
+        out in it turns with the model; falls back to :meth:`basis` without a reference.
+        """
+        if self.reference_direction is None:
+            return self.basis()
+        e1 = np.array(self.reference_direction)
+        return e1, np.cross(self.direction, e1)
 
     def s_A(self, coords_A) -> np.ndarray:
         """Axial coordinate of points (Å)."""
@@ -103,14 +156,7 @@ class PoreAxis:
 
     def flipped(self, oriented_by: str) -> PoreAxis:
         """The same line with the opposite direction."""
-        return PoreAxis(
-            self.point_A,
-            -self.direction,
-            self.method,
-            self.n_fold,
-            self.symmetry_rmsd_A,
-            oriented_by,
-        )
+        return replace(self, direction=-self.direction, oriented_by=oriented_by)
 
     def to_dict(self) -> dict:
         return {
@@ -120,149 +166,60 @@ class PoreAxis:
             "n_fold": self.n_fold,
             "symmetry_rmsd_A": self.symmetry_rmsd_A,
             "oriented_by": self.oriented_by,
+            "chains": list(self.chains),
+            "reference_direction": (
+                None if self.reference_direction is None else self.reference_direction.tolist()
+            ),
+            "notes": list(self.notes),
         }
 
 
-SEQUENCE_MATCH = 0.9
-
-
-def chain_residues(atoms: Atoms, chain: str) -> tuple[list[tuple[int, str]], list[str]]:
-    """(resid, icode) keys and names of a chain's polymer residues that have a CA, in order."""
-    mask = (atoms.kind == "polymer") & (atoms.chain == chain) & (atoms.name == "CA")
-    keys = list(
-        dict.fromkeys(zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True))
-    )
-    first = {}
-    for key, name in zip(
-        zip(atoms.resid[mask].tolist(), atoms.icode[mask].tolist(), strict=True),
-        atoms.resname[mask].tolist(),
-        strict=True,
-    ):
-        first.setdefault(key, name)
-    return keys, [first[k] for k in keys]
-
-
-def _alignment(ref_names: list[str], names: list[str]) -> dict[int, int]:
-    """Residue index in ``ref_names`` -> index in ``names`` for the matching blocks."""
-    if ref_names == names:
-        return dict(zip(range(len(names)), range(len(names)), strict=True))
-    matcher = difflib.SequenceMatcher(None, ref_names, names, autojunk=False)
-    return {a + t: b + t for a, b, size in matcher.get_matching_blocks() for t in range(size)}
-
-
-def aligned_residues(atoms: Atoms, chains: list[str]) -> list[list[tuple[int, str]]]:
-    """Residue keys of equivalent chains, aligned column by column.
-
-    The sequences (residue names of residues with a CA) are aligned to the first
-    chain's with :class:`difflib.SequenceMatcher`, so missing residues and
-    different numbering are tolerated; only residues present in every chain are
-    kept.
-
-    Returns
-    -------
-    list of list of (int, str)
-        ``out[k][j]``: (resid, icode) of column j in chain ``chains[k]``.
-    """
-    ref_keys, ref_names = chain_residues(atoms, chains[0])
-    common = set(range(len(ref_keys)))
-    maps = []
-    for ch in chains[1:]:
-        keys, names = chain_residues(atoms, ch)
-        mapping = _alignment(ref_names, names)
-        maps.append((keys, mapping))
-        common &= set(mapping)
-    cols = sorted(common)
-    return [[ref_keys[j] for j in cols]] + [[keys[m[j]] for j in cols] for keys, m in maps]
-
-
 def equivalent_chains(atoms: Atoms) -> tuple[list[str], np.ndarray]:
-    """The largest group of chains with the same polymer sequence.
+    """The group of equivalent chains that makes the pore, and their matched backbone.
 
-    Two chains are equivalent when at least 90 % of the shorter one's residues
-    (those with a CA) align with identical names to the other's (a missing loop
-    or a different numbering in one subunit is tolerated).
+    See :mod:`poreprobe.geometry.chain_groups`: the accepted n-fold group of highest
+    order closest to its axis, or, when no group's symmetry is accepted, the
+    largest group of chains with the same sequence.
 
     Returns
     -------
     chains : list of str
-        Chain ids of the group (at least 2), or an empty list.
+        Chain ids of the group (at least 2) in natural sorted order, or an empty list.
     matched : ndarray of shape (n_chains, m, 3)
-        Coordinates of the backbone atoms present in every chain of the group
-        (residues matched through the alignment).
+        Coordinates of the backbone atoms present in every chain of the group.
     """
-    poly = atoms.kind == "polymer"
-    seqs = {}
-    for ch in dict.fromkeys(atoms.chain[poly].tolist()):
-        keys, names = chain_residues(atoms, ch)
-        if names:
-            seqs[ch] = names
-    groups: list[list[str]] = []
-    for ch, names in seqs.items():
-        for group in groups:
-            ref = seqs[group[0]]
-            shorter = min(len(ref), len(names))
-            if len(_alignment(ref, names)) >= SEQUENCE_MATCH * shorter:
-                group.append(ch)
-                break
-        else:
-            groups.append([ch])
-    groups = [g for g in groups if len(g) >= 2]
-    if not groups:
+    fit, _ = choose_symmetry(atoms)
+    if fit is not None:
+        chains = list(fit.chains)
+    else:
+        groups = chain_groups(atoms)
+        if not groups:
+            return [], np.empty((0, 0, 3))
+        chains = groups[0]
+    matched = matched_backbone(atoms, chains)
+    if matched.shape[1] < 3:
         return [], np.empty((0, 0, 3))
-    group = max(groups, key=lambda g: (len(g), -groups.index(g)))
-    columns = aligned_residues(atoms, group)
-    coords_per_chain = []
-    for ch in group:
-        mask = poly & (atoms.chain == ch) & np.isin(atoms.name, BACKBONE)
-        coords_per_chain.append(
-            {
-                (r, i, n): xyz
-                for r, i, n, xyz in zip(
-                    atoms.resid[mask].tolist(),
-                    atoms.icode[mask].tolist(),
-                    atoms.name[mask].tolist(),
-                    atoms.coords_A[mask],
-                    strict=True,
-                )
-            }
-        )
-    matched_rows = []
-    for j in range(len(columns[0])):
-        for name in BACKBONE:
-            keys = [(*columns[k][j], name) for k in range(len(group))]
-            if all(key in kc for key, kc in zip(keys, coords_per_chain, strict=True)):
-                matched_rows.append(
-                    [kc[key] for key, kc in zip(keys, coords_per_chain, strict=True)]
-                )
-    if len(matched_rows) < 3:
-        return [], np.empty((0, 0, 3))
-    return group, np.array(matched_rows).transpose(1, 0, 2)
+    return chains, matched
 
 
 def symmetry_axis(atoms: Atoms) -> PoreAxis | None:
-    """The n-fold axis of the largest group of equivalent chains, or None."""
-    chains, matched = equivalent_chains(atoms)
-    if not chains:
+    """The n-fold axis of the chains that make the pore, or None (see :func:`choose_symmetry`).
+
+    The axis point is the centroid of the group's matched backbone atoms; the sign
+    of the direction is not yet fixed (see :func:`orient_axis`). Notes on rejected
+    fits and accessory chains are kept in ``PoreAxis.notes``.
+    """
+    fit, notes = choose_symmetry(atoms)
+    if fit is None:
         return None
-    n = len(chains)
-    centre = matched.reshape(-1, 3).mean(0)
-    axes, weights = [], []
-    for k in range(1, n):
-        axis, angle = rotation_axis_angle(kabsch_rotation(matched[0], matched[k]))
-        axes.append(axis)
-        weights.append(max(np.sin(angle / 2), 1e-6))
-    ref = axes[int(np.argmax(weights))]
-    total = sum(w * (a if a @ ref >= 0 else -a) for a, w in zip(axes, weights, strict=True))
-    direction = total / np.linalg.norm(total)
-    deviations = []
-    for k in range(1, n):
-        best = np.inf
-        for m in range(1, n):
-            moved = rotate_about(matched[0], centre, direction, 2 * np.pi * m / n)
-            best = min(best, float(np.sqrt(((moved - matched[k]) ** 2).sum(1).mean())))
-        deviations.append(best)
     return PoreAxis(
-        centre, direction, f"symmetry C{n}", n_fold=n, symmetry_rmsd_A=float(np.mean(deviations))
+        fit.point_A,
+        fit.direction,
+        f"symmetry C{fit.n_fold}",
+        n_fold=fit.n_fold,
+        symmetry_rmsd_A=fit.rmsd_A,
+        chains=fit.chains,
+        notes=notes,
     )
 
 
@@ -274,27 +231,25 @@ def principal_axes(atoms: Atoms) -> list[PoreAxis]:
     return [PoreAxis(centre, vecs[:, j], "principal") for j in (2, 1, 0)]
 
 
-def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray) -> float:
-    """Smallest clearance along the axis line within the middle 80 % of the atoms (Å)."""
-    from poreprobe.geometry.kernel import AtomSpheres
+def line_openness_A(atoms: Atoms, axis: PoreAxis, radii_A: np.ndarray, spheres=None) -> float:
+    """Smallest clearance along the axis line within the middle 80 % of the atoms (Å).
 
+    ``spheres`` (an :class:`~poreprobe.geometry.kernel.AtomSpheres` of the same atoms)
+    saves building the search tree again when several lines are compared.
+    """
+    if spheres is None:
+        from poreprobe.geometry.kernel import AtomSpheres
+
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
     s = axis.s_A(atoms.coords_A)
     lo, hi = np.quantile(s, [0.1, 0.9])
     samples = np.linspace(lo, hi, max(int((hi - lo) / 0.25), 2))
     pts = axis.point_A + samples[:, None] * axis.direction
-    return float(AtomSpheres(atoms.coords_A, radii_A).clearance_A(pts).min())
-
-
-def _recentre(axis: PoreAxis, atoms: Atoms) -> PoreAxis:
-    centre = atoms.coords_A.mean(0)
-    point = axis.point_A + ((centre - axis.point_A) @ axis.direction) * axis.direction
-    return PoreAxis(
-        point, axis.direction, axis.method, axis.n_fold, axis.symmetry_rmsd_A, axis.oriented_by
-    )
+    return float(spheres.clearance_A(pts).min())
 
 
 def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreAxis:
-    """Fix the sign of the axis direction (see module docstring).
+    """Put an axis in its canonical frame and fix the sign of its direction.
 
     Parameters
     ----------
@@ -302,7 +257,8 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
     atoms : Atoms
     entry : str, optional
         MDAnalysis selection of atoms at the end of the pore where ions enter;
-        s then increases from that end.
+        s then increases from that end. Without it, the sign comes from the
+        structure (see :mod:`poreprobe.geometry.frame`).
 
     Raises
     ------
@@ -310,57 +266,25 @@ def orient_axis(axis: PoreAxis, atoms: Atoms, entry: str | None = None) -> PoreA
         If the entry selection matches nothing or lies in the middle third of
         the protein's axial extent.
     """
+    if entry is None:
+        return canonical_frame(axis, atoms)
+    axis = canonical_point(axis, atoms)
     s = axis.s_A(atoms.coords_A)
-    if entry is not None:
-        idx = select_indices(atoms, entry)
-        s_entry = float(s[idx].mean())
-        lo, hi = float(s.min()), float(s.max())
-        third = (hi - lo) / 3
-        if lo + third < s_entry < hi - third:
-            raise InputError(
-                f"entry selection {entry!r} lies in the middle of the pore "
-                f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
-                "select atoms at one end"
-            )
-        mid = 0.5 * (lo + hi)
-        if s_entry > mid:
-            return axis.flipped(f"entry {entry!r}")
-        return PoreAxis(
-            axis.point_A,
-            axis.direction,
-            axis.method,
-            axis.n_fold,
-            axis.symmetry_rmsd_A,
-            f"entry {entry!r}",
+    idx = select_indices(atoms, entry)
+    s_entry = float(s[idx].mean())
+    lo, hi = float(s.min()), float(s.max())
+    third = (hi - lo) / 3
+    if lo + third < s_entry < hi - third:
+        raise InputError(
+            f"entry selection {entry!r} lies in the middle of the pore "
+            f"(s = {s_entry:.1f} Å within {lo:.1f}..{hi:.1f} Å); "
+            "select atoms at one end"
         )
-    poly = atoms.kind == "polymer"
-    firsts = []
-    for ch in np.unique(atoms.chain[poly]):
-        in_chain = poly & (atoms.chain == ch)
-        first_res = atoms.resid[in_chain].min()
-        firsts.append(s[in_chain & (atoms.resid == first_res)].mean())
-    mean_first = float(np.mean(firsts)) if firsts else 0.0
-    if abs(mean_first) >= 1.0:
-        if mean_first > 0:
-            return axis.flipped("N-termini at negative s")
-        return PoreAxis(
-            axis.point_A,
-            axis.direction,
-            axis.method,
-            axis.n_fold,
-            axis.symmetry_rmsd_A,
-            "N-termini at negative s",
-        )
-    if axis.direction[int(np.argmax(np.abs(axis.direction)))] < 0:
-        return axis.flipped("largest component positive")
-    return PoreAxis(
-        axis.point_A,
-        axis.direction,
-        axis.method,
-        axis.n_fold,
-        axis.symmetry_rmsd_A,
-        "largest component positive",
-    )
+    if s_entry > 0.5 * (lo + hi):
+        axis = axis.flipped(f"entry {entry!r}")
+    else:
+        axis = replace(axis, oriented_by=f"entry {entry!r}")
+    return canonical_frame(axis, atoms, orient=False)
 
 
 def find_pore_axis(
@@ -415,9 +339,9 @@ def find_pore_axis(
             raise InputError("method 'user' needs a direction")
         point = atoms.coords_A.mean(0) if point_A is None else as_vector3(point_A, "point_A")
         axis = PoreAxis(point, as_unit_vector(direction, "direction"), "user")
-        axis = _recentre(axis, atoms)
         if entry is None:
-            return PoreAxis(axis.point_A, axis.direction, "user", oriented_by="user direction")
+            axis = replace(axis, oriented_by="user direction")
+            return canonical_frame(axis, atoms, orient=False)
         return orient_axis(axis, atoms, entry)
     if method == "selections":
         if selections is None or len(selections) != 2:
@@ -426,17 +350,20 @@ def find_pore_axis(
         b = atoms.coords_A[select_indices(atoms, selections[1])].mean(0)
         if np.linalg.norm(b - a) < 1e-6:
             raise InputError("the two axis selections have the same centroid")
-        axis = _recentre(PoreAxis(a, b - a, "selections"), atoms)
+        axis = PoreAxis(a, b - a, "selections", oriented_by="first to second selection")
         if entry is None:
-            return PoreAxis(
-                axis.point_A, axis.direction, "selections", oriented_by="first to second selection"
-            )
+            return canonical_frame(axis, atoms, orient=False)
         return orient_axis(axis, atoms, entry)
     if radii_A is None:
         from poreprobe.io.radii import atom_radii_A
 
         radii_A = atom_radii_A(atoms)
+    from poreprobe.geometry.kernel import AtomSpheres
+
     sym = symmetry_axis(atoms)
+    repeat_notes: tuple[str, ...] = ()
+    if sym is None:
+        sym, repeat_notes = _repeat_axis(atoms)
     if method == "symmetry":
         if sym is None:
             raise InputError(
@@ -445,11 +372,44 @@ def find_pore_axis(
             )
         chosen = sym
     elif method == "principal":
-        chosen = max(principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A))
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
+        chosen = max(
+            principal_axes(atoms), key=lambda ax: line_openness_A(atoms, ax, radii_A, spheres)
+        )
     elif sym is not None and sym.n_fold >= 3:
         chosen = sym
     else:
         candidates = ([sym] if sym is not None else []) + principal_axes(atoms)
-        openness = [line_openness_A(atoms, ax, radii_A) for ax in candidates]
+        spheres = AtomSpheres(atoms.coords_A, radii_A)
+        openness = [line_openness_A(atoms, ax, radii_A, spheres) for ax in candidates]
         chosen = candidates[int(np.argmax(openness))]
-    return orient_axis(_recentre(chosen, atoms), atoms, entry)
+    if sym is not None and chosen is not sym:
+        # a rejected two-fold: the pore runs across it, keep the notes on the choice
+        chosen = replace(chosen, notes=sym.notes + (f"{sym.method} axis not along the pore",))
+    elif sym is None:
+        _, notes = choose_symmetry(atoms)
+        chosen = replace(chosen, notes=notes + repeat_notes)
+    return orient_axis(chosen, atoms, entry)
+
+
+def _repeat_axis(atoms: Atoms) -> tuple[PoreAxis | None, tuple[str, ...]]:
+    """Pseudo-four-fold axis of a single chain of four repeats (geometry.repeats), if accepted."""
+    from poreprobe.geometry.repeats import fit_repeats
+
+    fit = fit_repeats(atoms)
+    if fit is None:
+        return None, ()
+    if not fit.accepted:
+        return None, (
+            f"{fit.describe()} > {MAX_SYMMETRY_RMSD_A:g} Å: not a four-repeat channel, ignored",
+        )
+    axis = PoreAxis(
+        fit.point_A,
+        fit.direction,
+        "pseudo-C4 (repeats)",
+        n_fold=4,
+        symmetry_rmsd_A=fit.deviation_A,
+        chains=(fit.chain,),
+        notes=(fit.describe(),),
+    )
+    return axis, ()

@@ -128,17 +128,32 @@ class ResidueGroup:
     part: str
 
     @property
+    def label(self) -> str:
+        """Chain-aware label: ``"Leu12 (A-D)"`` (:mod:`poreprobe.io.labels`)."""
+        from poreprobe.io.labels import chain_span, residue_name
+
+        return f"{residue_name(self.resname, f'{self.resid}{self.icode}')} " + (
+            f"({chain_span(self.chains)})"
+        )
+
+    @property
     def text(self) -> str:
         """Plain description: ``"ring of 4 x LEU 12 side chains"``."""
         name = f"{self.resname} {self.resid}{self.icode}"
         if len(self.chains) == 1:
             return f"{name} {self.part} (chain {self.chains[0]})"
-        plural = {
+        return f"ring of {len(self.chains)} x {name} {self.parts}"
+
+    @property
+    def parts(self) -> str:
+        """The lining part, plural for copies in several chains (``"side chains"``)."""
+        if len(self.chains) == 1:
+            return self.part
+        return {
             "side chain": "side chains",
             "backbone": "backbone",
             "side chain and backbone": "side chains and backbone",
         }[self.part]
-        return f"ring of {len(self.chains)} x {name} {plural}"
 
     def to_dict(self) -> dict:
         return {
@@ -148,6 +163,7 @@ class ResidueGroup:
             "chains": list(self.chains),
             "part": self.part,
             "text": self.text,
+            "label": self.label,
         }
 
 
@@ -175,8 +191,8 @@ class Constriction:
 
     @property
     def text(self) -> str:
-        """``"s = -1.0 Å, radius 2.77 Å: ring of 4 x LEU 12 side chains"``."""
-        lined = "; ".join(g.text for g in self.groups) or "no residue within reach"
+        """``"s = -1.0 Å, radius 2.77 Å: Leu12 (A-D) side chains"`` (chain-aware labels)."""
+        lined = "; ".join(f"{g.label} {g.parts}" for g in self.groups) or "no residue within reach"
         return f"s = {self.s_A:.1f} Å, radius {self.radius_A:.2f} Å: {lined}"
 
     def to_dict(self) -> dict:

@@ -19,7 +19,13 @@ from dataclasses import dataclass, field, fields, replace
 import numpy as np
 
 from poreprobe._validate import as_coords_A, check_int
-from poreprobe.errors import InputError
+from poreprobe.errors import AssemblyWarning, InputError
+from poreprobe.io.assembly import (
+    AssemblyInfo,
+    apply_assembly,
+    check_assembly_choice,
+    deposited_info,
+)
 
 log = logging.getLogger("poreprobe")
 
@@ -96,6 +102,9 @@ class Atoms:
         How alternate locations were resolved.
     notes : tuple of str
         What was dropped or changed while reading.
+    assembly : AssemblyInfo or None
+        Which biological assembly the atoms are and how it was built (None for
+        tables made from arrays).
     """
 
     coords_A: np.ndarray
@@ -112,6 +121,7 @@ class Atoms:
     source: str = ""
     altloc_policy: str = "occupancy"
     notes: tuple[str, ...] = field(default_factory=tuple)
+    assembly: AssemblyInfo | None = None
 
     def __post_init__(self):
         n = len(self.coords_A)
@@ -157,6 +167,7 @@ class Atoms:
             "n_atoms": len(self),
             "altloc_policy": self.altloc_policy,
             "notes": list(self.notes),
+            "assembly": None if self.assembly is None else self.assembly.to_dict(),
         }
 
 
@@ -242,7 +253,7 @@ def _fixed_strings(raw: np.ndarray) -> np.ndarray:
     return raw.view(f"S{raw.shape[1]}").ravel().astype(str)
 
 
-def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
+def _read_gemmi(path: str, model: int, assembly: str = "deposited") -> tuple[Atoms, int]:
     import gemmi
 
     try:
@@ -259,6 +270,7 @@ def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
     for idx in range(n_models - 1, -1, -1):
         if st[idx].num != keep:
             del st[idx]
+    info = apply_assembly(st, 0, assembly)
     flat = gemmi.FlatStructure(st)
     if len(flat.pos) == 0:
         raise InputError(f"{path} holds no atoms")
@@ -284,8 +296,25 @@ def _read_gemmi(path: str, model: int) -> tuple[Atoms, int]:
         b_factor=np.asarray(flat.b_iso, dtype=np.float64),
         kind=kind.astype(str),
         source=os.path.basename(path),
+        assembly=info,
     )
     return _mark_ions(atoms), n_models
+
+
+def _merge_special_positions(atoms: Atoms) -> Atoms:
+    """One atom where an assembly's operators put copies on the same spot.
+
+    Atoms on a symmetry axis (ions in a K+ channel's filter, on its four-fold axis) are
+    copied onto themselves by the assembly's operators; the copies are the same atom.
+    """
+    from poreprobe.io.sanity import duplicate_mask
+
+    dup = duplicate_mask(atoms.coords_A)
+    if not dup.any():
+        return atoms
+    return atoms.subset(
+        ~dup, f"assembly: {int(dup.sum())} copies on special positions (on a symmetry axis) merged"
+    )
 
 
 def _mark_ions(atoms: Atoms) -> Atoms:
@@ -434,6 +463,7 @@ def read_structure(
     ions: bool = False,
     hetero: bool = False,
     selection: str | None = None,
+    assembly: str = "auto",
 ) -> Atoms:
     """Read a channel model into :class:`Atoms`.
 
@@ -454,10 +484,17 @@ def read_structure(
         Which atom kinds to keep (default: polymer atoms with hydrogens).
     selection : str, optional
         MDAnalysis selection applied after cleaning.
+    assembly : str
+        ``"auto"`` (default: the first declared biological assembly, built when
+        it differs from the deposited model, with an :class:`AssemblyWarning`),
+        ``"deposited"`` (coordinates as they are) or an assembly id; see
+        :mod:`poreprobe.io.assembly`. Files read through MDAnalysis declare no
+        assembly and are used as they are.
 
     Returns
     -------
     Atoms
+        With ``Atoms.assembly`` recording the assembly used.
 
     Raises
     ------
@@ -487,9 +524,24 @@ def read_structure(
     model = check_int(model, "model", minimum=0)
     frame = check_int(frame, "frame", minimum=0)
     check_altloc(altloc)
+    assembly = check_assembly_choice(assembly)
     if _is_gemmi_file(path) and trajectory is None:
-        atoms, _ = _read_gemmi(path, model)
+        atoms, _ = _read_gemmi(path, model, assembly)
+        if atoms.assembly.built:
+            atoms = replace(atoms, notes=atoms.notes + (f"assembly: {atoms.assembly.note}",))
+            atoms = _merge_special_positions(atoms)
+        if atoms.assembly.built and assembly == "auto":
+            import warnings
+
+            warnings.warn(
+                f"{atoms.source}: {atoms.assembly.note} (use assembly 'deposited' for the "
+                "coordinates as they are)",
+                AssemblyWarning,
+                stacklevel=2,
+            )
     else:
+        if assembly not in ("auto", "deposited"):
+            raise InputError(f"{path} declares no assemblies (only PDB/mmCIF files can)")
         universe = open_universe(path, trajectory)
         n_frames = len(universe.trajectory)
         if not 0 <= frame < n_frames:
@@ -498,6 +550,9 @@ def read_structure(
         if len(universe.atoms) == 0:
             raise InputError(f"{path} holds no atoms")
         atoms = atoms_from_atomgroup(universe.atoms, source=os.path.basename(path))
+        atoms = replace(
+            atoms, assembly=deposited_info(assembly, (), "no assembly records in this format")
+        )
     sanity.check_coordinates(atoms, path)
     atoms = sanity.drop_duplicate_atoms(resolve_altlocs(atoms, altloc))
     atoms = clean(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)

@@ -48,6 +48,13 @@ class BatchRow:
         How the axis was found (``""`` on failure).
     min_residues : tuple of str
         Residues lining the narrowest point.
+    pore_found : bool or None
+        Whether the model encloses a pore (:mod:`poreprobe.geometry.pore_presence`);
+        without one the narrowest radius is NaN (null) and no scan or check is run.
+        None when the file failed or the axis was given by the user (not tested).
+    assembly : str
+        The biological assembly used (``"1 (built)"``, ``"deposited"``; see
+        :mod:`poreprobe.io.assembly`).
     capture_radius_A : tuple of float
         Capture radius (Å, area-equivalent) for each of the summary's
         ``capture_probe_radii_A``; NaN where the scan failed for this file.
@@ -68,6 +75,8 @@ class BatchRow:
     min_s_A: float = float("nan")
     axis_method: str = ""
     min_residues: tuple[str, ...] = ()
+    pore_found: bool | None = None
+    assembly: str = ""
     capture_radius_A: tuple[float, ...] = ()
     findings: tuple[int, ...] = ()
     verdict: str = ""
@@ -87,6 +96,8 @@ class BatchRow:
             "min_s_A": self.min_s_A,
             "axis_method": self.axis_method,
             "min_residues": list(self.min_residues),
+            "pore_found": self.pore_found,
+            "assembly": self.assembly or None,
             "capture_radius_A": list(self.capture_radius_A),
             "findings": (
                 dict(zip(_severities(), self.findings, strict=True)) if self.findings else None
@@ -209,8 +220,19 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
                 margin_A=options.margin_A,
                 max_radius_A=options.max_radius_A,
             )
-            capture = _capture_radii_A(atoms, axis, radii_A, options)
-            findings, verdict = _check(path, axis, options)
+            from poreprobe.geometry.pore_presence import applies_to, pore_presence
+
+            found = (
+                pore_presence(prof, atoms.coords_A, radii_A).pore_found
+                if applies_to(axis)
+                else None
+            )
+            if found is not False:
+                capture = _capture_radii_A(atoms, axis, radii_A, options)
+                findings, verdict = _check(path, axis, options)
+            else:
+                capture = tuple(float("nan") for _ in options.capture_probe_radii_A or ())
+                findings, verdict = (), "no pore"
         except Exception as exc:  # a failed file is reported, never fatal to the batch
             return BatchRow(
                 path=path,
@@ -220,10 +242,16 @@ def profile_file(path: str, options: _FileOptions) -> BatchRow:
     return BatchRow(
         path=path,
         n_atoms=len(atoms),
-        min_radius_A=prof.min_radius_A,
-        min_s_A=prof.min_s_A,
+        min_radius_A=prof.min_radius_A if found is not False else float("nan"),
+        min_s_A=prof.min_s_A if found is not False else float("nan"),
         axis_method=axis.method,
-        min_residues=prof.min_residues,
+        min_residues=prof.min_residues if found is not False else (),
+        pore_found=found,
+        assembly=(
+            ""
+            if atoms.assembly is None
+            else atoms.assembly.used + (" (built)" if atoms.assembly.built else "")
+        ),
         capture_radius_A=capture,
         findings=findings,
         verdict=verdict,
@@ -308,6 +336,7 @@ def profile_files(
     ions: bool = False,
     hetero: bool = False,
     selection: str | None = None,
+    assembly: str = "auto",
     axis_method: str = "auto",
     axis_point_A=None,
     axis_direction=None,
@@ -342,7 +371,7 @@ def profile_files(
         Radius set and optional TOML overrides (see :func:`poreprobe.get_radius_set`).
     step_A, margin_A, max_radius_A : float
         Profile options (Å), as in :func:`poreprobe.radius_profile`.
-    model, altloc, hydrogens, waters, ions, hetero, selection
+    model, altloc, hydrogens, waters, ions, hetero, selection, assembly
         Reading and cleaning options of :func:`poreprobe.read_structure`.
     axis_method, axis_point_A, axis_direction, axis_selections, entry
         Axis options of :func:`poreprobe.find_pore_axis`.
@@ -376,6 +405,7 @@ def profile_files(
             "ions": ions,
             "hetero": hetero,
             "selection": selection,
+            "assembly": assembly,
         },
         axis={
             "method": axis_method,
@@ -451,6 +481,7 @@ def batch_csv(summary: BatchSummary, path=None) -> str:
         "n_atoms",
         "min_radius_A",
         "min_s_A",
+        "pore_found",
         *(f"capture_radius_A_p{p:g}" for p in probes),
         *check_header,
         "axis_method",
@@ -471,6 +502,7 @@ def batch_csv(summary: BatchSummary, path=None) -> str:
             row.n_atoms,
             float(row.min_radius_A),
             float(row.min_s_A),
+            "" if row.pore_found is None else str(row.pore_found).lower(),
             *(row.capture_radius_A if row.ok else (float("nan"),) * len(probes)),
             *check_cells(row),
             row.axis_method,

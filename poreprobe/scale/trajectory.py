@@ -104,7 +104,10 @@ class PoreProfileAnalysis(AnalysisBase):
         ``direction``, ``selections``, ``entry``).
     closed_below_A : float, optional
         A frame counts as closed when its minimum radius is below this (Å).
-        Default: the crystal radius of K+ (Shannon 1976, CN 6; 1.38 Å).
+        Default: the crystal radius of K+ (Shannon 1976, CN 6; 1.38 Å) less the
+        0.25 Å borderline band of the permeation verdict, 1.13 Å. Frames from this
+        value up to 0.5 Å above it (K+ crystal radius +- 0.25 Å by default) are
+        counted as borderline.
     percentiles : sequence of float
         Percentile levels (0-100) reported per plane and for the minimum radius.
     capture_probe_radius_A : float, optional
@@ -451,6 +454,11 @@ class PoreProfileAnalysis(AnalysisBase):
         self.results.n_enclosed = np.isfinite(radius).sum(axis=0)
         self.results.closed = np.isfinite(min_r) & (min_r < self.closed_below_A)
         self.results.closed_frames = np.asarray(self.frames)[self.results.closed]
+        from poreprobe.bench.ions import BORDERLINE_BAND_A
+
+        upper = self.closed_below_A + 2 * BORDERLINE_BAND_A
+        borderline = np.isfinite(min_r) & (min_r >= self.closed_below_A) & (min_r < upper)
+        self.results.borderline_frames = np.asarray(self.frames)[borderline]
         self.results.s_A = self.s_A
 
     # -- results ------------------------------------------------------------
@@ -491,6 +499,7 @@ class PoreProfileAnalysis(AnalysisBase):
             min_radius_percentiles_A=np.asarray(r.min_radius_percentiles_A),
             closed_below_A=self.closed_below_A,
             closed_frames=np.asarray(r.closed_frames, dtype=np.int64),
+            borderline_frames=np.asarray(r.borderline_frames, dtype=np.int64),
             reference_axis=self.reference_axis,
             axis_mode=self.axis_mode,
             reference_frame=self.reference_frame,

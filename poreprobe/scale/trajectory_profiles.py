@@ -54,6 +54,9 @@ class TrajectoryProfiles:
     closed_below_A : float
     closed_frames : ndarray of int
         Frames whose minimum radius is below ``closed_below_A``.
+    borderline_frames : ndarray of int
+        Frames whose minimum radius lies from ``closed_below_A`` to 0.5 Å above it
+        (the K+ crystal radius +- 0.25 Å by default: the verdict's borderline band).
     reference_axis : PoreAxis
     axis_mode, align_selection, radius_set, source, trajectory, version : str
     reference_frame, n_atoms : int
@@ -95,6 +98,7 @@ class TrajectoryProfiles:
     source: str = ""
     trajectory: str = ""
     version: str = field(default=__version__)
+    borderline_frames: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
 
     def __post_init__(self):
         for value in vars(self).values():
@@ -156,6 +160,7 @@ class TrajectoryProfiles:
                 else None
             ),
             "closed_frames": self.closed_frames,
+            "borderline_frames": self.borderline_frames,
             "per_frame": {
                 "frame": self.frames,
                 "time_ps": self.times_ps,
