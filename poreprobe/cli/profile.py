@@ -68,8 +68,7 @@ def summary_lines(atoms, prof) -> list[str]:
         f"oriented by {ax.oriented_by}",
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
-        f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
-        f"lined by {', '.join(prof.min_residues[:8]) or 'n/a'}",
+        f"narrowest: {prof.narrowest_text()}, lined by {', '.join(prof.min_residues[:8]) or 'n/a'}",
     ]
     lines += [f"note: {n}" for n in atoms.notes]
     return lines

@@ -82,6 +82,8 @@ RADIUS_CMAP = "cividis"
 OPEN_COLOR = "#d9d9d9"
 #: Open planes on the profile figure are hatched, so they never read as a radius band.
 OPEN_HATCH_COLOR = "#a6a6a6"
+#: Fill behind occluded planes (no free point: radius 0).
+OCCLUDED_COLOR = "#e0c8c8"
 GRID_COLOR = "#e6e6e6"
 
 ION_RADIUS_KINDS = ("crystal", "hydrated", "stokes")
@@ -344,7 +346,17 @@ def profile_arrays(profile) -> dict:
         "radius_set": d.get("radius_set") or "",
         "source": d.get("source") or "",
         "max_radius_A": _float_or_nan(d.get("max_radius_A")),
+        "occluded": _occluded_flags(d, len(s)),
+        "min_occluded": bool(d.get("min_occluded") or False),
     }
+
+
+def _occluded_flags(d, n: int) -> np.ndarray:
+    """Per-plane occluded flags of a profile's JSON (all False when absent)."""
+    flags = (d.get("profile") or {}).get("occluded")
+    if flags is None or len(flags) != n:
+        return np.zeros(n, dtype=bool)
+    return np.asarray(flags, dtype=bool)
 
 
 def _float_or_nan(value) -> float:
@@ -506,6 +518,17 @@ def plot_profile(
             linewidth=0,
             zorder=0.7,
         )
+    occ = data["occluded"]
+    for n_run, (i, j) in enumerate(_runs(occ)):
+        half = (s[1] - s[0]) / 2 if len(s) > 1 else 0.0
+        ax.axvspan(
+            s[i] - half,
+            s[j] + half,
+            facecolor=OCCLUDED_COLOR,
+            linewidth=0,
+            zorder=0.8,
+            label="occluded (no free point)" if n_run == 0 else None,
+        )
     line_label = label or (
         f"pore radius ({data['radius_set']} radii)" if data["radius_set"] else "pore radius"
     )
@@ -519,7 +542,7 @@ def plot_profile(
                     "residues": data["min_residues"],
                 }
             ]
-            if np.isfinite(data["min_radius_A"])
+            if np.isfinite(data["min_radius_A"]) and not data["min_occluded"]
             else []
         )
     top = np.nanmax(np.concatenate([r, [v for _, v in refs]]))
