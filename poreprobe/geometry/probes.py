@@ -277,7 +277,7 @@ def probe_scan(
         levels_A=probes,
         method="label",
     )
-    frame = axis.to_frame(atoms.coords_A)
+    frame = field_.to_grid_frame(atoms.coords_A)
     ctx = _Context(field_, frame, radii_arr, refine_factor)
     n_p, n_s = len(probes), field_.shape[2]
     out = {
