@@ -48,26 +48,20 @@ import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy import ndimage
-from scipy.spatial import cKDTree
 
 from poreprobe._progress import progress
 from poreprobe._validate import check_int, check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.axis import PoreAxis
-from poreprobe.geometry.kernel import AtomSpheres
-from poreprobe.geometry.reach import ReachField, check_levels, reach_field, resolve_radii
+from poreprobe.geometry.reach import check_levels, reach_field, resolve_radii
+from poreprobe.geometry.sections import ScanContext, path_bottleneck, scan_one
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet
 from poreprobe.io.structure import Atoms
 
 #: Default probe radii (Å): 0.5 to 6.0 in steps of 0.25 (23 probes).
 DEFAULT_PROBE_RADII_A = np.round(np.arange(0.5, 6.0 + 1e-9, 0.25), 10)
-_BIG = np.float32(1e30)
-_PLANAR = np.zeros((3, 3, 3), dtype=bool)
-_PLANAR[:, :, 1] = ndimage.generate_binary_structure(2, 1)
-_CROSS2 = ndimage.generate_binary_structure(2, 1)
 
 
 #: The per-probe columns of a scan (fields of ProbeScan, columns of its CSV).
@@ -120,6 +114,22 @@ class ProbeScan:
         Which variant ``capture_radius_A`` holds.
     notes : tuple of str
         Per-probe caveats.
+    bottleneck_clearance_A : float
+        Off-grid bottleneck ``B`` (Å): the largest probe radius that passes, from the
+        atoms (see :mod:`poreprobe.geometry.scanrefine`); probes pass exactly when
+        ``p <= B``. NaN if not found.
+    bottleneck_s_A : float
+        Its level along the axis (Å).
+    discretisation_error_A : float
+        Estimate of the grid's remaining effect: the largest change of a capture radius
+        (probes that enter on both grids) between this scan and one at
+        ``error_spacing_A`` (Å); NaN if not estimated.
+    error_spacing_A : float
+        The coarser spacing of that comparison (1.5 x ``spacing_A``); NaN if not estimated.
+    pass_changes_with_spacing : int
+        Number of probes whose pass / enter decision differs between the two spacings.
+    grid_angle_rad : float
+        Rotation of the grid's in-plane axes from the axis frame, fixed by the structure.
     source, version : str
     """
 
@@ -141,6 +151,12 @@ class ProbeScan:
     entry: str
     capture_definition: str = "area-equivalent"
     notes: tuple[str, ...] = ()
+    bottleneck_clearance_A: float = math.nan
+    bottleneck_s_A: float = math.nan
+    discretisation_error_A: float = math.nan
+    error_spacing_A: float = math.nan
+    pass_changes_with_spacing: int = 0
+    grid_angle_rad: float = 0.0
     source: str = ""
     version: str = field(default=__version__)
 
@@ -169,6 +185,17 @@ class ProbeScan:
             "entry": self.entry,
             "capture_definition": self.capture_definition,
             "largest_passing_probe_A": self.largest_passing_probe_A,
+            "bottleneck_clearance_A": _none_if_nan(self.bottleneck_clearance_A),
+            "bottleneck_s_A": _none_if_nan(self.bottleneck_s_A),
+            "discretisation": {
+                "spacing_A": self.spacing_A,
+                "compared_spacing_A": _none_if_nan(self.error_spacing_A),
+                "max_capture_change_A": _none_if_nan(self.discretisation_error_A),
+                "pass_changes": self.pass_changes_with_spacing,
+                "meaning": "largest |change| of a capture radius between the two spacings: "
+                "an estimate of the grid's remaining effect",
+            },
+            "grid_angle_rad": self.grid_angle_rad,
             "capture": {
                 "probe_radius_A": self.probe_radius_A.tolist(),
                 "capture_radius_A": self.capture_radius_A.tolist(),
@@ -204,6 +231,7 @@ def probe_scan(
     pore_radius_A: float = 15.0,
     refine_factor: int = 4,
     quiet: bool = True,
+    error_estimate: bool = True,
 ) -> ProbeScan:
     """Scan probe sizes: stop level, accessible-radius profile and capture radius of each.
 
@@ -232,6 +260,9 @@ def probe_scan(
         the grid (>= 1).
     quiet : bool
         No progress bar.
+    error_estimate : bool
+        Also scan at 1.5 x ``spacing_A`` and report the largest change of a capture
+        radius (``discretisation_error_A``), an estimate of the grid's remaining effect.
 
     Returns
     -------
@@ -278,7 +309,7 @@ def probe_scan(
         method="label",
     )
     frame = field_.to_grid_frame(atoms.coords_A)
-    ctx = _Context(field_, frame, radii_arr, refine_factor)
+    ctx = ScanContext(field_, frame, radii_arr, refine_factor)
     n_p, n_s = len(probes), field_.shape[2]
     out = {
         name: np.full(n_p, np.nan) for name in ("capture", "capture_in", "open", "open_in", "stop")
@@ -288,8 +319,13 @@ def probe_scan(
     prof = np.full((n_p, n_s), np.nan)
     prof_in = np.full((n_p, n_s), np.nan)
     notes: list[str] = []
+    grid_pass = np.array([bool(field_.region(p)[:, :, field_.exit_layer].any()) for p in probes])
+    bneck = path_bottleneck(ctx, probes, grid_pass)
+    final_pass = (probes <= bneck.clearance_A) if bneck.accepted else grid_pass
+    if bneck.note:
+        notes.append(bneck.note)
     for i in progress(range(n_p), total=n_p, desc="probe scan", quiet=quiet):
-        res = _scan_one(ctx, float(probes[i]))
+        res = scan_one(ctx, float(probes[i]), bool(final_pass[i]), bneck)
         passes[i], enters[i] = res.passes, res.enters
         prof[i], prof_in[i] = res.profile, res.profile_inscribed
         out["stop"][i] = res.stop_s
@@ -303,6 +339,31 @@ def probe_scan(
             f"{pore_radius_A:g} Å of the axis; check the axis or "
             "enlarge pore_radius_A"
         )
+    err, err_h, n_changed = math.nan, math.nan, 0
+    if error_estimate:
+        err_h = 1.5 * spacing_A
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", QualityWarning)
+            try:
+                coarse = probe_scan(
+                    atoms,
+                    axis,
+                    probe_radii_A=probes,
+                    radii_A=radii_arr,
+                    spacing_A=err_h,
+                    from_end=from_end,
+                    pore_radius_A=pore_radius_A,
+                    refine_factor=refine_factor,
+                    error_estimate=False,
+                )
+            except PoreNotFoundError:
+                coarse = None
+        if coarse is not None:
+            both = enters & coarse.enters
+            diff = np.abs(out["capture"] - coarse.capture_radius_A)[both]
+            diff = diff[np.isfinite(diff)]
+            err = float(diff.max()) if diff.size else 0.0
+            n_changed = int(np.count_nonzero((passes != coarse.passes) | (enters != coarse.enters)))
     for note in notes:
         warnings.warn(note, QualityWarning, stacklevel=2)
     return ProbeScan(
@@ -323,8 +384,18 @@ def probe_scan(
         pore_radius_A=float(pore_radius_A),
         entry=field_.entry,
         notes=tuple(notes),
+        bottleneck_clearance_A=float(bneck.clearance_A) if bneck.accepted else math.nan,
+        bottleneck_s_A=float(bneck.s_A) if bneck.accepted else math.nan,
+        discretisation_error_A=err,
+        error_spacing_A=err_h,
+        pass_changes_with_spacing=n_changed,
+        grid_angle_rad=float(field_.grid_angle_rad),
         source=atoms.source,
     )
+
+
+def _none_if_nan(value: float):
+    return None if not math.isfinite(value) else float(value)
 
 
 def capture_radius_at(scan: ProbeScan, probe_radius_A, *, inscribed: bool = False):
@@ -429,405 +500,3 @@ def profiles_csv(scan: ProbeScan, path=None) -> str:
 # ----------------------------------------------------------------------------------------
 class _Context:
     """Grid, atoms and fixed 2-D masks shared by every probe of one scan."""
-
-    def __init__(self, field_: ReachField, frame_A, radii_A, refine_factor: int):
-        self.field = field_
-        self.h = field_.spacing_A
-        self.frame = frame_A
-        self.radii = radii_A
-        self.tree = cKDTree(frame_A)
-        self.spheres = AtomSpheres(frame_A, radii_A)
-        self._half: dict[int, np.ndarray] = {}
-        self.max_r = float(radii_A.max())
-        self.refine = refine_factor
-        self.u = field_.u_A
-        self.disk = field_.inside[:, :, 0]
-        self.rim = self.disk & ~ndimage.binary_erosion(self.disk, _CROSS2, border_value=0)
-        self.rho2 = self.u[:, None] ** 2 + self.u[None, :] ** 2
-        self.clear32 = np.where(field_.inside, field_.clearance_A, -1.0).astype(np.float32)
-        self.margin = 2 * self.h
-        s = field_.s_A
-        lo, hi = field_.protein_s_A
-        inner = np.flatnonzero((s >= lo) & (s <= hi))
-        self.k_protein = (int(inner[0]), int(inner[-1])) if inner.size else (0, len(s) - 1)
-
-    def clip(self, p: float) -> float:
-        return p + self.margin
-
-    def half_layer(self, k: int) -> np.ndarray:
-        """Exact clearance at the body-centred points between layers k and k+1 (cached).
-
-        Shape (n_u - 1, n_v - 1); -inf outside the pore cylinder.
-        """
-        if k not in self._half:
-            f = self.field
-            uc = self.u[:-1] + 0.5 * self.h
-            uu, vv = np.meshgrid(uc, uc, indexing="ij")
-            ok = uu**2 + vv**2 <= f.pore_radius_A**2
-            out = np.full(uu.shape, -np.inf)
-            pts = np.column_stack([uu[ok], vv[ok], np.full(int(ok.sum()), f.s_A[k] + 0.5 * self.h)])
-            out[ok] = self.spheres.clearance_A(pts, max_clearance_A=f.clearance_cap_A)
-            self._half[k] = out
-        return self._half[k]
-
-
-@dataclass
-class _OneProbe:
-    passes: bool
-    enters: bool
-    stop_s: float
-    open_radius: float
-    open_radius_inscribed: float
-    capture: float
-    capture_inscribed: float
-    profile: np.ndarray
-    profile_inscribed: np.ndarray
-    note: str = ""
-
-
-@dataclass
-class _Sections:
-    area: np.ndarray  # (L,) Å²
-    inscribed: np.ndarray  # (L,) Å
-    enclosed: np.ndarray  # (L,) bool
-    covered: np.ndarray  # (L,) bool: any swept pixel at all
-
-
-def _scan_one(ctx: _Context, p: float) -> _OneProbe:
-    f = ctx.field
-    n_s = f.shape[2]
-    region = f.region(p)
-    layers = region.any(axis=(0, 1))
-    profile = np.full(n_s, np.nan)
-    profile_in = np.full(n_s, np.nan)
-    if not layers.any():
-        return _OneProbe(
-            False,
-            False,
-            math.nan,
-            0.0,
-            0.0,
-            0.0,
-            0.0,
-            profile,
-            profile_in,
-            "cannot sit in the entry bulk",
-        )
-    passes = bool(layers[f.exit_layer])
-    ks = np.flatnonzero(layers)
-    # levels beyond the protein hold no atom, so their sections are open bulk: measure only
-    # levels within the protein, with centres from up to one ball radius beyond it
-    k0, k1 = max(int(ks[0]), ctx.k_protein[0]), min(int(ks[-1]), ctx.k_protein[1])
-    if k1 < k0:
-        k0 = k1 = int(ks[-1]) if f.entry == "low" else int(ks[0])
-    sec = _grid_sections(ctx, region, p, k0, k1)
-    radius = np.sqrt(sec.area / np.pi)
-    inscribed = np.minimum(sec.inscribed, radius)
-    profile[k0 : k1 + 1] = np.where(sec.enclosed, radius, np.nan)
-    profile_in[k0 : k1 + 1] = np.where(sec.enclosed, inscribed, np.nan)
-    if passes:
-        if not sec.enclosed.any():
-            return _OneProbe(
-                True,
-                True,
-                math.nan,
-                math.nan,
-                math.nan,
-                math.nan,
-                math.nan,
-                profile,
-                profile_in,
-                "passes, but no enclosed section on its path (enlarge pore_radius_A)",
-            )
-        s_b, r_b, ri_b = _refine_bottleneck(
-            ctx, region, p, k0 + int(np.nanargmin(np.where(sec.enclosed, radius, np.inf)))
-        )
-        # a probe centre sits in every level it passes, so its disk bounds both radii below
-        r_b, ri_b = max(r_b, p), min(max(ri_b, p), max(r_b, p))
-        return _OneProbe(True, True, s_b, r_b, ri_b, r_b - p, ri_b - p, profile, profile_in)
-    deepest = k1 if f.entry == "low" else k0
-    tip = _refine_tip(ctx, region, p, deepest)
-    stop_s = float(tip[2])
-    fine = _fine_section(ctx, region, p, stop_s, tip=tip)
-    if fine is None or not fine[2]:
-        # the section where the probe stops is open bulk: it never got into the pore
-        return _OneProbe(False, False, stop_s, 0.0, 0.0, 0.0, 0.0, profile, profile_in)
-    # the probe's own equatorial disk lies in the section, so neither radius is below p
-    r_open = max(math.sqrt(fine[0] / math.pi), p)
-    ri_open = min(max(fine[1], p), r_open)
-    return _OneProbe(
-        False, True, stop_s, r_open, ri_open, r_open - p, ri_open - p, profile, profile_in
-    )
-
-
-def _power_cover(f: np.ndarray, window: int, h: float) -> np.ndarray:
-    """``G(x) = min_y (|x - y|^2 + f(y))`` over a cube window of +-``window`` voxels.
-
-    Separable: one 1-D pass per axis (the squared distance is a sum over axes).
-    """
-    for ax in (2, 0, 1):
-        if f.shape[ax] < 2:
-            continue
-        g = f.copy()
-        src = np.moveaxis(f, ax, 0)
-        dst = np.moveaxis(g, ax, 0)
-        for j in range(1, min(window, f.shape[ax] - 1) + 1):
-            add = np.float32((j * h) ** 2)
-            np.minimum(dst[j:], src[:-j] + add, out=dst[j:])
-            np.minimum(dst[:-j], src[j:] + add, out=dst[:-j])
-        f = g
-    return f
-
-
-def _grid_sections(ctx: _Context, region: np.ndarray, p: float, k0: int, k1: int) -> _Sections:
-    """Swept cross-sections of probe p on grid layers k0..k1."""
-    h = ctx.h
-    clip = ctx.clip(p)
-    window = int(math.ceil(clip / h))
-    n_u, _, n_s = ctx.field.shape
-    e0, e1 = max(k0 - window, 0), min(k1 + window + 1, n_s)  # centres up to a ball away
-    sub = region[:, :, e0:e1]
-    cols = sub.any(axis=2)
-    iu, iv = np.nonzero(cols)
-    a0, a1 = max(int(iu.min()) - window, 0), min(int(iu.max()) + window + 1, n_u)
-    b0, b1 = max(int(iv.min()) - window, 0), min(int(iv.max()) + window + 1, n_u)
-    box = sub[a0:a1, b0:b1]
-    c = np.minimum(ctx.clear32[a0:a1, b0:b1, e0:e1], np.float32(clip))
-    f = np.where(box, -(c * c), _BIG).astype(np.float32)
-    g = _power_cover(f, window, h)[:, :, k0 - e0 : k1 - e0 + 1]
-    return _measure_sections(
-        g,
-        ctx.disk[a0:a1, b0:b1],
-        ctx.rim[a0:a1, b0:b1],
-        ctx.u[a0:a1],
-        ctx.u[b0:b1],
-        h,
-        near_uv=None,
-    )
-
-
-def _measure_sections(
-    g: np.ndarray, disk: np.ndarray, rim: np.ndarray, u_A, v_A, h: float, near_uv=None
-) -> _Sections:
-    """Area, inscribed radius and openness of the chosen part of each layer of ``g <= 0``.
-
-    ``g`` has shape (n_u, n_v, L); the chosen part of a layer is the connected
-    (4-neighbour) component holding the swept pixel nearest ``near_uv``
-    (default: the axis). Areas get a sub-pixel edge correction: a pixel
-    counts the fraction ``clip(1/2 - d/h, 0, 1)`` with ``d = g / |grad g|``,
-    the signed distance to the edge.
-    """
-    n_u, n_v, n_l = g.shape
-    covered = (g <= 0) & disk[:, :, None]
-    has = covered.any(axis=(0, 1))
-    area = np.zeros(n_l)
-    inscribed = np.zeros(n_l)
-    enclosed = np.zeros(n_l, dtype=bool)
-    if not has.any():
-        return _Sections(area, inscribed, enclosed, has)
-    if n_l > 1:
-        labels, n_lab = ndimage.label(covered, structure=_PLANAR)
-    else:
-        labels, n_lab = _label_single(covered)
-    su, sv = (0.0, 0.0) if near_uv is None else near_uv
-    dist2 = (u_A[:, None] - su) ** 2 + (v_A[None, :] - sv) ** 2
-    score = np.where(covered, dist2[:, :, None], np.inf).reshape(n_u * n_v, n_l)
-    pick = np.argmin(score, axis=0)
-    chosen = labels.reshape(n_u * n_v, n_l)[pick, np.arange(n_l)]
-    chosen[~has] = 0
-    open_lab = np.zeros(n_lab + 1, dtype=bool)
-    open_lab[np.unique(labels[rim])] = True
-    open_lab[0] = False
-    enclosed = has & ~open_lab[chosen]
-    comp = (labels == chosen[None, None, :]) & (chosen[None, None, :] > 0)
-    # sub-pixel area: fractional coverage of the component's pixels and its rim of neighbours
-    dtype = np.float32 if g.dtype == np.float32 else np.float64
-    gf = np.minimum(g, 1e6).astype(dtype, copy=False)
-    gu, gv = np.gradient(gf, h, axis=(0, 1)) if min(n_u, n_v) > 1 else (gf * 0, gf * 0)
-    grad = np.maximum(np.hypot(gu, gv), 1e-9)
-    frac = np.clip(0.5 - gf / grad / h, 0.0, 1.0)
-    ring_struct = _PLANAR if n_l > 1 else _CROSS2
-    near = ndimage.binary_dilation(comp if n_l > 1 else comp[:, :, 0], ring_struct)
-    if n_l == 1:
-        near = near[:, :, None]
-    near &= disk[:, :, None] & ((labels == 0) | comp)
-    area = (frac * near).sum(axis=(0, 1), dtype=np.float64) * h * h
-    # inscribed: largest disk in the component (pixel distance transform) and never less
-    # than the largest single empty-sphere cut sqrt(-g) that the component holds
-    cut = np.sqrt(np.clip(np.where(comp, -gf, 0.0), 0.0, None)).max(axis=(0, 1))
-    padded = np.pad(comp, ((1, 1), (1, 1), (0, 0)))
-    for k in np.flatnonzero(enclosed):
-        ii, jj = np.nonzero(comp[:, :, k])
-        crop = padded[ii.min() : ii.max() + 3, jj.min() : jj.max() + 3, k]
-        edt = ndimage.distance_transform_edt(crop, sampling=h)
-        inscribed[k] = max(float(edt.max()) - 0.5 * h, float(cut[k]))
-    return _Sections(area, inscribed, enclosed, has)
-
-
-def _label_single(covered: np.ndarray):
-    lab, n = ndimage.label(covered[:, :, 0], structure=_CROSS2)
-    return lab[:, :, None], n
-
-
-def _fine_section(
-    ctx: _Context, region: np.ndarray, p: float, s_star: float, *, tip=None, near_uv=None
-):
-    """Swept cross-section of probe p in the plane at ``s_star`` on a fine raster.
-
-    Sphere centres: the grid voxels of the probe's region, the body-centred
-    points between them (exact clearance, for twice the centre density), and
-    the refined tip. Returns (area_A2, inscribed_A, enclosed), or None when
-    nothing is swept.
-    """
-    f = ctx.field
-    h = ctx.h
-    clip = ctx.clip(p)
-    s = f.s_A
-    lattices = []
-    ks = np.flatnonzero((np.abs(s - s_star) <= clip) & region.any(axis=(0, 1)))
-    g = np.full(f.shape[:2], np.inf)
-    for k in ks:
-        c = np.minimum(np.asarray(f.clearance_A[:, :, k]), clip)
-        np.minimum(g, np.where(region[:, :, k], (s_star - s[k]) ** 2 - c * c, np.inf), out=g)
-    lattices.append((ctx.u, g))
-    g2 = np.full((f.shape[0] - 1, f.shape[1] - 1), np.inf)
-    for k in range(
-        max(int(ks.min()) - 1, 0) if ks.size else 0,
-        min(int(ks.max()) + 1, f.shape[2] - 1) if ks.size else 0,
-    ):
-        s_half = s[k] + 0.5 * h
-        if abs(s_half - s_star) > clip:
-            continue
-        near = region[:, :, k] | region[:, :, k + 1]
-        near = near[:-1, :-1] | near[1:, :-1] | near[:-1, 1:] | near[1:, 1:]
-        if not near.any():
-            continue
-        c2 = ctx.half_layer(k)
-        member = near & (c2 >= p)
-        c2 = np.minimum(c2, clip)
-        np.minimum(g2, np.where(member, (s_star - s_half) ** 2 - c2 * c2, np.inf), out=g2)
-    lattices.append((ctx.u[:-1] + 0.5 * h, g2))
-    if tip is not None:
-        near_uv = (float(tip[0]), float(tip[1]))
-    cols = [np.nonzero(np.isfinite(gl)) for _, gl in lattices]
-    if not any(c[0].size for c in cols) and tip is None:
-        return None
-    reach_A = clip + 2 * h
-    lo, hi = -f.pore_radius_A - h, f.pore_radius_A + h
-    found = [
-        (coords[c[0]], coords[c[1]])
-        for (coords, _), c in zip(lattices, cols, strict=True)
-        if c[0].size
-    ]
-    if found:
-        u_lo = max(min(x[0].min() for x in found) - reach_A, lo)
-        u_hi = min(max(x[0].max() for x in found) + reach_A, hi)
-        v_lo = max(min(x[1].min() for x in found) - reach_A, lo)
-        v_hi = min(max(x[1].max() for x in found) + reach_A, hi)
-    else:
-        u_lo, u_hi, v_lo, v_hi = lo, hi, lo, hi
-    hf = h / ctx.refine
-    uf = np.arange(np.floor(u_lo / hf), np.ceil(u_hi / hf) + 1) * hf
-    vf = np.arange(np.floor(v_lo / hf), np.ceil(v_hi / hf) + 1) * hf
-    gfine = np.full((len(uf), len(vf)), np.inf)
-    for coords, gl in lattices:
-        np.minimum(gfine, _to_raster(coords, gl, uf, vf, reach_A), out=gfine)
-    if tip is not None:
-        ball = (
-            (uf[:, None] - tip[0]) ** 2
-            + (vf[None, :] - tip[1]) ** 2
-            + (s_star - tip[2]) ** 2
-            - p * p
-        )
-        np.minimum(gfine, ball, out=gfine)
-    disk = (uf[:, None] ** 2 + vf[None, :] ** 2) <= f.pore_radius_A**2 + 1e-9
-    rim = disk & ~ndimage.binary_erosion(disk, _CROSS2, border_value=0)
-    gfine = np.where(np.isfinite(gfine), gfine, 1e6)
-    sec = _measure_sections(gfine[:, :, None], disk, rim, uf, vf, hf, near_uv=near_uv)
-    if not sec.covered[0]:
-        return None
-    return float(sec.area[0]), float(sec.inscribed[0]), bool(sec.enclosed[0])
-
-
-def _to_raster(coords, g, uf, vf, reach_A) -> np.ndarray:
-    """``min over lattice columns (|x - y|^2 + g(y))`` at raster points, two separable passes."""
-    rows = np.flatnonzero(np.isfinite(g).any(axis=1))
-    colv = np.flatnonzero(np.isfinite(g).any(axis=0))
-    out = np.full((len(uf), len(vf)), np.inf)
-    if rows.size == 0:
-        return out
-    uc = coords[rows[0] : rows[-1] + 1]
-    vc = coords[colv[0] : colv[-1] + 1]
-    gsub = g[rows[0] : rows[-1] + 1, colv[0] : colv[-1] + 1]
-    dv2 = (vf[None, :] - vc[:, None]) ** 2  # (n_vc, n_vf)
-    a_pass = np.empty((len(uc), len(vf)))
-    chunk = max(1, 2_000_000 // max(dv2.size, 1))
-    for i0 in range(0, len(uc), chunk):
-        a_pass[i0 : i0 + chunk] = (gsub[i0 : i0 + chunk, :, None] + dv2[None, :, :]).min(axis=1)
-    du2 = (uf[:, None] - uc[None, :]) ** 2  # (n_uf, n_uc)
-    chunk = max(1, 2_000_000 // max(len(uc) * len(vf), 1))
-    for i0 in range(0, len(uf), chunk):
-        out[i0 : i0 + chunk] = (du2[i0 : i0 + chunk, :, None] + a_pass[None, :, :]).min(axis=1)
-    return out
-
-
-def _refine_bottleneck(ctx: _Context, region: np.ndarray, p: float, k_b: int):
-    """Narrowest enclosed section near grid layer ``k_b``, on the fine raster."""
-    s = ctx.field.s_A
-    best = (float(s[k_b]), math.inf, math.nan)
-    for off in (-0.5, 0.0, 0.5):
-        s_try = float(s[k_b]) + off * ctx.h
-        res = _fine_section(ctx, region, p, s_try)
-        if res is None or not res[2]:
-            continue
-        r = math.sqrt(res[0] / math.pi)
-        if r < best[1]:
-            best = (s_try, r, min(res[1], r))
-    if not math.isfinite(best[1]):
-        return float(s[k_b]), math.nan, math.nan
-    return best
-
-
-def _refine_tip(ctx: _Context, region: np.ndarray, p: float, k_tip: int) -> np.ndarray:
-    """Deepest point with clearance >= p near the deepest grid voxel, against the atoms.
-
-    Maximises ``depth_sign * s`` subject to ``|x - a_i| - r_i >= p`` for the
-    atoms near the start (SLSQP), within +-2 grid spacings of the start; falls
-    back to the grid voxel if the optimiser fails.
-    """
-    from scipy.optimize import minimize
-
-    f = ctx.field
-    layer = region[:, :, k_tip]
-    iu, iv = np.nonzero(layer)
-    best = int(np.argmax(f.clearance_A[iu, iv, k_tip]))
-    x0 = np.array([ctx.u[iu[best]], ctx.u[iv[best]], f.s_A[k_tip]])
-    sign = f.depth_sign
-    reach = p + ctx.max_r + 4 * ctx.h
-    near = np.asarray(ctx.tree.query_ball_point(x0, reach), dtype=np.int64)
-    if near.size == 0:
-        return x0
-    centres, radii = ctx.frame[near], ctx.radii[near] + p
-
-    def gaps(x):
-        return np.linalg.norm(x - centres, axis=1) - radii
-
-    def gaps_jac(x):
-        d = x - centres
-        return d / np.maximum(np.linalg.norm(d, axis=1), 1e-12)[:, None]
-
-    span = 2 * ctx.h
-    res = minimize(
-        lambda x: -sign * x[2],
-        x0,
-        jac=lambda x: np.array([0.0, 0.0, -sign]),
-        method="SLSQP",
-        bounds=[(v - span, v + span) for v in x0],
-        constraints=[{"type": "ineq", "fun": gaps, "jac": gaps_jac}],
-        options={"ftol": 1e-10, "maxiter": 200},
-    )
-    x = res.x
-    # atoms beyond `reach` of x0 are farther than p from any point of the search box
-    if not np.isfinite(x).all() or gaps(x).min() < -1e-6 or sign * (x[2] - x0[2]) < 0:
-        return x0
-    return x
