@@ -83,11 +83,14 @@ class PlaneMaxima:
         uv[~has[k]] = fallback_uv
         return uv
 
-    def __call__(self, s_A, start_uv):
+    def __call__(self, s_A, start_uv, *, region: bool = True):
+        """Centres and values of ``m`` at levels ``s_A``; ``region=False``: the local
+        maximum climbed from ``start_uv`` only (for refinements next to a known maximum)."""
         s = np.atleast_1d(np.asarray(s_A, dtype=np.float64))
         start = np.broadcast_to(np.asarray(start_uv, dtype=np.float64), (len(s), 2)).copy()
-        c, v = maximise_in_planes(self.spheres, s, start, self.cap)
-        c, v = region_maximum(self.spheres, s, c, v, self.cap)
+        c, v = maximise_in_planes(self.spheres, s, start, self.cap, delta_A=0.25)
+        if region:
+            c, v = region_maximum(self.spheres, s, c, v, self.cap)
         return c, v
 
 
@@ -117,17 +120,16 @@ def continuous_bottleneck(
     if not np.isfinite(v).any():
         return Bottleneck(math.nan, math.nan, np.full(3, np.nan), False, "every level open")
     best_s, best_v, best_c = math.nan, math.inf, np.full(2, np.nan)
-    for j in np.argsort(v)[:3]:  # refine around the three smallest samples
+    for j in np.argsort(v)[:2]:  # refine around the two smallest samples
         if not np.isfinite(v[j]):
             continue
         lo, hi = s_path[j] - h, s_path[j] + h
-        uv0 = c[j]
         fine = np.arange(lo, hi + 1e-9, _SAMPLE_A)
-        cf, vf = pm(fine, uv0)
+        cf, vf = pm(fine, np.broadcast_to(c[j], (len(fine), 2)))
         k = int(np.argmin(vf))
         a, b = fine[max(k - 1, 0)], fine[min(k + 1, len(fine) - 1)]
         res = minimize_scalar(
-            lambda x, uv=cf[k]: float(pm(x, uv)[1][0]),
+            lambda x, uv=cf[k]: float(pm(x, uv, region=False)[1][0]),
             bounds=(a, b),
             method="bounded",
             options={"xatol": 1e-4},
@@ -153,31 +155,34 @@ def continuous_bottleneck(
     )
 
 
-def stop_level(pm: PlaneMaxima, p: float, s_from: float, s_to: float, start_uv):
+def stop_level(
+    pm: PlaneMaxima, p: float, s_from: float, s_to: float, start_uv, *, region: bool = True
+):
     """Where ``m(s)`` first drops below ``p`` going from ``s_from`` towards ``s_to``.
 
     ``m(s_from) >= p`` is expected. Returns (s_star, centre_uv, found); ``found`` is False
     when ``m`` stays at or above ``p`` all the way (then ``s_to`` is returned) or is below
     ``p`` already at ``s_from``.
     """
-    c0, v0 = pm(s_from, start_uv)
+    c0, v0 = pm(s_from, start_uv, region=region)
     if v0[0] < p:
         return s_from, c0[0], False
     n = max(int(math.ceil(abs(s_to - s_from) / _SAMPLE_A)), 1)
-    levels = s_from + (s_to - s_from) * np.arange(1, n + 1) / n
-    uv = c0[0]
-    prev_s, prev_c = s_from, c0[0]
-    for s in levels:  # short walk (a few spacings), each plane warm-started
-        c, v = pm(s, uv)
-        if v[0] < p:
-            lo, hi, c_lo = prev_s, float(s), prev_c
-            while abs(hi - lo) > _BISECT_TOL_A:
-                mid = 0.5 * (lo + hi)
-                cm, vm = pm(mid, c_lo)
-                if vm[0] >= p:
-                    lo, c_lo = mid, cm[0]
-                else:
-                    hi = mid
-            return lo, c_lo, True
-        uv, prev_s, prev_c = c[0], float(s), c[0]
-    return float(s_to), uv, False
+    levels = s_from + (s_to - s_from) * np.arange(0, n + 1) / n
+    c, v = pm(levels, c0[0], region=region)
+    below = np.flatnonzero(v < p)
+    if below.size == 0:
+        return float(s_to), c[-1], False
+    j = int(below[0])
+    lo, hi, c_lo = float(levels[j - 1]), float(levels[j]), c[j - 1]
+    # bracket refinement: 10 levels per round, each round one vectorised call
+    while abs(hi - lo) > _BISECT_TOL_A:
+        mids = lo + (hi - lo) * np.arange(1, 10) / 10
+        cm, vm = pm(mids, c_lo, region=False)
+        ok = vm >= p
+        last = int(np.flatnonzero(~ok)[0]) if (~ok).any() else len(mids)
+        if last > 0:
+            lo, c_lo = float(mids[last - 1]), cm[last - 1]
+        if last < len(mids):
+            hi = float(mids[last])
+    return lo, c_lo, True

@@ -238,7 +238,7 @@ def _deepen_tip(ctx: ScanContext, p: float, tip: np.ndarray) -> np.ndarray:
     """Follow ``m(s) >= p`` beyond the refined tip (up to two spacings), by bisection."""
     f = ctx.field
     s_to = float(tip[2]) + f.depth_sign * 2 * ctx.h
-    s_star, uv, found = stop_level(ctx.plane_max, p, float(tip[2]), s_to, tip[:2])
+    s_star, uv, found = stop_level(ctx.plane_max, p, float(tip[2]), s_to, tip[:2], region=False)
     if not found or f.depth_sign * (s_star - tip[2]) <= 0:
         return tip
     centre = np.array([uv[0], uv[1], s_star])
