@@ -157,3 +157,87 @@ def _region_best(clear, c, pts, g, ij, plane, r0, start, neck_fraction, spacing,
         if v > best:
             best, best_c = v, x
     return best, best_c
+
+
+def flood_capture(clear: Clearance, point, direction, p, *, box_radius, s_range, spacing=0.1,
+                  section_spacing=0.04):
+    """Capture radius of a probe of radius p entering at low s (brute force, 3-D raster).
+
+    The probe-centre region is the 6-connected part of ``{clearance >= p}`` on a 3-D raster
+    (``spacing``) joined to the lowest raster layer (the entry bulk); its deepest point is
+    refined against the atoms (SLSQP: maximise s subject to clearance >= p); the swept
+    section there is the union of the discs cut from the balls ``B(y, min(c(y), p + 0.5))``
+    of the region's raster points and of the refined tip, on a 2-D raster
+    (``section_spacing``), taking the part holding the tip. Returns
+    (capture_radius, stop_s, passes); the section must be enclosed (not reach the box).
+    """
+    e1, e2, d = frame_basis(direction)
+    point = np.asarray(point, dtype=float)
+    g = np.arange(-box_radius, box_radius + spacing / 2, spacing)
+    s_lo, s_hi = s_range
+    ss = np.arange(s_lo, s_hi + spacing / 2, spacing)
+    uu, vv = np.meshgrid(g, g, indexing="ij")
+    disk = uu**2 + vv**2 <= box_radius**2
+    c = np.full((len(g), len(g), len(ss)), -np.inf)
+    for k, s in enumerate(ss):
+        pts = point + uu[disk][:, None] * e1 + vv[disk][:, None] * e2 + s * d
+        layer = np.full(uu.shape, -np.inf)
+        layer[disk] = clear(pts)
+        c[:, :, k] = layer
+    free = c >= p
+    lab, _ = ndimage.label(free)
+    entry = np.unique(lab[:, :, 0])
+    entry = entry[entry > 0]
+    region = np.isin(lab, entry)
+    if not region.any():
+        return 0.0, np.nan, False
+    passes = bool(region[:, :, -1].any())
+    ks = np.flatnonzero(region.any(axis=(0, 1)))
+    k_tip = int(ks[-1])
+    iu, iv = np.nonzero(region[:, :, k_tip])
+    best = int(np.argmax(c[iu, iv, k_tip]))
+    x0 = point + g[iu[best]] * e1 + g[iv[best]] * e2 + ss[k_tip] * d
+    near = clear.tree.query_ball_point(x0, p + clear.rmax + 2.0)
+    a, r = clear.coords[near], clear.radii[near] + p
+    res = optimize.minimize(
+        lambda x: -(x - point) @ d,
+        x0,
+        method="SLSQP",
+        constraints=[{"type": "ineq", "fun": lambda x: np.linalg.norm(x - a, axis=1) - r}],
+        bounds=[(v - 3 * spacing, v + 3 * spacing) for v in x0],
+        options={"ftol": 1e-12, "maxiter": 500},
+    )
+    tip = res.x if float(clear(res.x)[0]) >= p - 1e-6 else x0
+    s_star = float((tip - point) @ d)
+    # swept section at s_star
+    cap = p + 0.5
+    sel = region & (np.abs(ss[None, None, :] - s_star) < cap)
+    ci, cj, ck = np.nonzero(sel)
+    cu, cv, cs = g[ci], g[cj], ss[ck]
+    cr = np.minimum(c[ci, cj, ck], cap)
+    tu, tv = (tip - point) @ e1, (tip - point) @ e2
+    cu, cv, cs = np.append(cu, tu), np.append(cv, tv), np.append(cs, s_star)
+    cr = np.append(cr, min(float(clear(tip)[0]), cap))
+    disc2 = cr**2 - (s_star - cs) ** 2
+    keep = disc2 > 0
+    cu, cv, rad = cu[keep], cv[keep], np.sqrt(disc2[keep])
+    f = np.arange(-box_radius, box_radius + section_spacing / 2, section_spacing)
+    fu, fv = np.meshgrid(f, f, indexing="ij")
+    covered = np.zeros(fu.shape, dtype=bool)
+    n_f = len(f)
+    for bu, bv, br in zip(cu, cv, rad, strict=True):  # mark each disc in its window
+        i0 = max(int(np.floor((bu - br + box_radius) / section_spacing)), 0)
+        i1 = min(int(np.ceil((bu + br + box_radius) / section_spacing)) + 1, n_f)
+        j0 = max(int(np.floor((bv - br + box_radius) / section_spacing)), 0)
+        j1 = min(int(np.ceil((bv + br + box_radius) / section_spacing)) + 1, n_f)
+        win = (fu[i0:i1, j0:j1] - bu) ** 2 + (fv[i0:i1, j0:j1] - bv) ** 2 <= br * br
+        covered[i0:i1, j0:j1] |= win
+    sec_lab, _ = ndimage.label(covered)
+    it = int(np.clip(np.rint(tu / section_spacing) + len(f) // 2, 0, len(f) - 1))
+    jt = int(np.clip(np.rint(tv / section_spacing) + len(f) // 2, 0, len(f) - 1))
+    own = sec_lab[it, jt]
+    part = sec_lab == own
+    if part[0].any() or part[-1].any() or part[:, 0].any() or part[:, -1].any():
+        return 0.0, s_star, passes  # open bulk: the probe never got in
+    area = part.sum() * section_spacing**2
+    return float(np.sqrt(area / np.pi) - p), s_star, passes

@@ -41,6 +41,7 @@ class ScanContext:
         self.tree = cKDTree(frame_A)
         self.spheres = AtomSpheres(frame_A, radii_A)
         self._half: dict[int, np.ndarray] = {}
+        self._dil = None
         self.max_r = float(radii_A.max())
         self.refine = refine_factor
         self.u = field_.u_A
@@ -54,6 +55,12 @@ class ScanContext:
         inner = np.flatnonzero((s >= lo) & (s <= hi))
         self.k_protein = (int(inner[0]), int(inner[-1])) if inner.size else (0, len(s) - 1)
         self.plane_max = PlaneMaxima(self.spheres, field_, field_.pore_radius_A)
+
+    def dilated(self, region: np.ndarray) -> np.ndarray:
+        """The region dilated by one voxel (26 neighbours), cached for the last region."""
+        if self._dil is None or self._dil[0] is not region:
+            self._dil = (region, ndimage.binary_dilation(region, np.ones((3, 3, 3), bool)))
+        return self._dil[1]
 
     def clip(self, p: float) -> float:
         return p + self.margin
@@ -199,7 +206,9 @@ def scan_one(ctx: ScanContext, p: float, passes: bool | None = None, bneck=None)
         tip = _refine_tip(ctx, region, p, deepest)
         tip = _deepen_tip(ctx, p, tip)
     stop_s = float(tip[2])
-    fine = _fine_section(ctx, region, p, stop_s, tip=tip, balls=_path_balls(ctx, p, tip))
+    fine = _fine_section(
+        ctx, region, p, stop_s, tip=tip, balls=_path_balls(ctx, p, tip), dense_tip=True
+    )
     if fine is None or not fine[2]:
         # the section where the probe stops is open bulk: it never got into the pore
         return _OneProbe(False, False, stop_s, 0.0, 0.0, 0.0, 0.0, profile, profile_in)
@@ -379,6 +388,7 @@ def _fine_section(
     tip=None,
     near_uv=None,
     balls=None,
+    dense_tip: bool = False,
 ):
     """Swept cross-section of probe p in the plane at ``s_star`` on a fine raster.
 
@@ -397,7 +407,7 @@ def _fine_section(
     for k in ks:
         c = np.minimum(np.asarray(f.clearance_A[:, :, k]), clip)
         np.minimum(g, np.where(region[:, :, k], (s_star - s[k]) ** 2 - c * c, np.inf), out=g)
-    lattices.append((ctx.u, g))
+    lattices.append((ctx.u, ctx.u, g))
     g2 = np.full((f.shape[0] - 1, f.shape[1] - 1), np.inf)
     for k in range(
         max(int(ks.min()) - 1, 0) if ks.size else 0,
@@ -414,18 +424,18 @@ def _fine_section(
         member = near & (c2 >= p)
         c2 = np.minimum(c2, clip)
         np.minimum(g2, np.where(member, (s_star - s_half) ** 2 - c2 * c2, np.inf), out=g2)
-    lattices.append((ctx.u[:-1] + 0.5 * h, g2))
+    lattices.append((ctx.u[:-1] + 0.5 * h, ctx.u[:-1] + 0.5 * h, g2))
     if tip is not None:
         near_uv = (float(tip[0]), float(tip[1]))
-    cols = [np.nonzero(np.isfinite(gl)) for _, gl in lattices]
+        if dense_tip:
+            lattices.append(_dense_tip_lattice(ctx, region, p, s_star, tip))
+    cols = [np.nonzero(np.isfinite(gl)) for _, _, gl in lattices]
     if not any(c[0].size for c in cols) and tip is None:
         return None
     reach_A = clip + 2 * h
     lo, hi = -f.pore_radius_A - h, f.pore_radius_A + h
     found = [
-        (coords[c[0]], coords[c[1]])
-        for (coords, _), c in zip(lattices, cols, strict=True)
-        if c[0].size
+        (cu[c[0]], cv[c[1]]) for (cu, cv, _), c in zip(lattices, cols, strict=True) if c[0].size
     ]
     if found:
         u_lo = max(min(x[0].min() for x in found) - reach_A, lo)
@@ -438,8 +448,8 @@ def _fine_section(
     uf = np.arange(np.floor(u_lo / hf), np.ceil(u_hi / hf) + 1) * hf
     vf = np.arange(np.floor(v_lo / hf), np.ceil(v_hi / hf) + 1) * hf
     gfine = np.full((len(uf), len(vf)), np.inf)
-    for coords, gl in lattices:
-        np.minimum(gfine, _to_raster(coords, gl, uf, vf, reach_A), out=gfine)
+    for cu, cv, gl in lattices:
+        np.minimum(gfine, _to_raster(cu, cv, gl, uf, vf), out=gfine)
     extra = [] if balls is None else list(balls)
     if tip is not None:
         r_tip = float(ctx.spheres.clearance_A(np.asarray(tip, dtype=float)[None])[0])
@@ -458,15 +468,80 @@ def _fine_section(
     return float(sec.area[0]), float(sec.inscribed[0]), bool(sec.enclosed[0])
 
 
-def _to_raster(coords, g, uf, vf, reach_A) -> np.ndarray:
+def _dense_tip_lattice(ctx: ScanContext, region: np.ndarray, p: float, s_star: float, tip):
+    """Probe centres on a raster three times finer than the grid behind a stop level.
+
+    Near the tip the grid holds few centres of the probe, so its swept section there
+    comes out small. Points of a raster three times finer than the grid, next to the
+    probe's grid region (within one voxel) or within two spacings of the tip, from
+    ``s_star`` back towards the entry by ``p + 2 h``, with exact clearance >= p and
+    6-connected (on that raster) to the tip or to a point of the grid region, are centres
+    the probe can hold. Returns the lattice
+    ``(u, v, min_k ((s_star - s_k)^2 - c^2))`` for :func:`_to_raster`.
+    """
+    f = ctx.field
+    h = ctx.h
+    hc = h / 3.0
+    clip = ctx.clip(p)
+    depth = np.arange(0.0, clip + 1e-9, hc)
+    sc = s_star - f.depth_sign * depth
+    # candidates: next to the grid region (dilated by one voxel) or within 2 h of the tip
+    kk = np.flatnonzero((np.abs(f.s_A - s_star) <= clip + h) & region.any(axis=(0, 1)))
+    sub = region[:, :, kk] if kk.size else np.zeros(f.shape[:2] + (1,), dtype=bool)
+    iu, iv = np.nonzero(sub.any(axis=2))
+    u_lo, u_hi = float(tip[0]) - 2 * h, float(tip[0]) + 2 * h
+    v_lo, v_hi = float(tip[1]) - 2 * h, float(tip[1]) + 2 * h
+    if iu.size:
+        u_lo, u_hi = min(u_lo, f.u_A[iu.min()] - h), max(u_hi, f.u_A[iu.max()] + h)
+        v_lo, v_hi = min(v_lo, f.v_A[iv.min()] - h), max(v_hi, f.v_A[iv.max()] + h)
+    uc = np.arange(np.floor(u_lo / hc), np.ceil(u_hi / hc) + 1) * hc
+    vc = np.arange(np.floor(v_lo / hc), np.ceil(v_hi / hc) + 1) * hc
+    dil = ctx.dilated(region)
+
+    def index(coords, origin, n):
+        k = np.rint((coords - origin) / h).astype(np.int64)
+        return np.clip(k, 0, n - 1), (k >= 0) & (k < n)
+
+    gu, ou = index(uc, f.origin_A[0], f.shape[0])
+    gv, ov = index(vc, f.origin_A[1], f.shape[1])
+    gs, os_ = index(sc, f.origin_A[2], f.shape[2])
+    inside = ou[:, None, None] & ov[None, :, None] & os_[None, None, :]
+    # 1-Lipschitz bound from the nearest voxel (at most sqrt(3)/2 h away)
+    near_c = np.asarray(f.clearance_A)[np.ix_(gu, gv, gs)]
+    with np.errstate(invalid="ignore"):
+        may = ~(near_c + 0.87 * h < p)
+    cand = dil[np.ix_(gu, gv, gs)] & inside & may
+    uu, vv, ss = np.meshgrid(uc, vc, sc, indexing="ij")
+    cand |= (uu - tip[0]) ** 2 + (vv - tip[1]) ** 2 + (ss - tip[2]) ** 2 <= (2 * h) ** 2
+    c = np.full(uu.shape, -np.inf)
+    if cand.any():
+        pts = np.column_stack([uu[cand], vv[cand], ss[cand]])
+        c[cand] = ctx.spheres.clearance_A(pts, max_clearance_A=clip + 1.0)
+    mask = c >= p
+    lab, _ = ndimage.label(mask, structure=ndimage.generate_binary_structure(3, 1))
+    seeds = np.zeros(lab.max() + 1, dtype=bool)
+    it = np.clip(np.rint((tip[0] - uc[0]) / hc).astype(int), 0, len(uc) - 1)
+    jt = np.clip(np.rint((tip[1] - vc[0]) / hc).astype(int), 0, len(vc) - 1)
+    seeds[lab[it, jt, 0]] = True
+    # raster points whose nearest grid voxel belongs to the probe's region
+    on_region = region[np.ix_(gu, gv, gs)] & cand & mask
+    seeds[np.unique(lab[on_region])] = True
+    seeds[0] = False
+    keep = seeds[lab]
+    cc = np.minimum(c, clip)
+    g = np.where(keep, (s_star - ss) ** 2 - cc * cc, np.inf).min(axis=2)
+    return uc, vc, g
+
+
+def _to_raster(u_coords, v_coords, g, uf, vf) -> np.ndarray:
     """``min over lattice columns (|x - y|^2 + g(y))`` at raster points, two separable passes."""
     rows = np.flatnonzero(np.isfinite(g).any(axis=1))
     colv = np.flatnonzero(np.isfinite(g).any(axis=0))
     out = np.full((len(uf), len(vf)), np.inf)
     if rows.size == 0:
         return out
-    uc = coords[rows[0] : rows[-1] + 1]
-    vc = coords[colv[0] : colv[-1] + 1]
+    uc = u_coords[rows[0] : rows[-1] + 1]
+    vc = v_coords[colv[0] : colv[-1] + 1]
     gsub = g[rows[0] : rows[-1] + 1, colv[0] : colv[-1] + 1]
     dv2 = (vf[None, :] - vc[:, None]) ** 2  # (n_vc, n_vf)
     a_pass = np.empty((len(uc), len(vf)))
