@@ -159,8 +159,9 @@ def _region_best(clear, c, pts, g, ij, plane, r0, start, neck_fraction, spacing,
     return best, best_c
 
 
-def flood_capture(clear: Clearance, point, direction, p, *, box_radius, s_range, spacing=0.1,
-                  section_spacing=0.04):
+def flood_capture(
+    clear: Clearance, point, direction, p, *, box_radius, s_range, spacing=0.1, section_spacing=0.04
+):
     """Capture radius of a probe of radius p entering at low s (brute force, 3-D raster).
 
     The probe-centre region is the 6-connected part of ``{clearance >= p}`` on a 3-D raster
