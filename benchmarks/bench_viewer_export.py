@@ -4,8 +4,8 @@ For invented channels of 10k and 40k atoms (poreprobe.geometry.synthetic.shell_c
 at protein density around a 60 Å pore with a constriction), prints the time to build the
 clearance grid around the pore at 1.0, 0.5 and 0.25 Å spacing, to triangulate the pore
 surface for a 1 Å probe, and to write the map, the PLY mesh and the centre line, with
-the grid and file sizes. Timings on a shared machine are noisy; the best of --repeat
-runs is shown.
+the grid and file sizes; then the time to build the pore tube and write it as PLY and
+glTF. Timings on a shared machine are noisy; the best of --repeat runs is shown.
 
 Run: python benchmarks/bench_viewer_export.py [--repeat N]
 """
@@ -73,6 +73,17 @@ def main() -> None:
                     f"{os.path.getsize(map_path) / 1e6:>7.1f} {t_write:>8.2f} "
                     f"{os.path.getsize(ply_path) / 1e6:>7.1f} {t_line:>8.3f}"
                 )
+            t_tube, tube = best_of(args.repeat, lambda w=line: pp.pore_tube(w))
+            sizes = []
+            t0 = time.perf_counter()
+            for suffix in (".ply", ".glb"):
+                path = os.path.join(tmp, "tube" + suffix)
+                pp.write_mesh(tube, path)
+                sizes.append(f"{suffix[1:]} {os.path.getsize(path) / 1e3:.0f} kB")
+            print(
+                f"{n_atoms:>7} tube: {len(tube.vertices_A):,} vertices in {t_tube:.3f} s, "
+                f"PLY + GLB written in {time.perf_counter() - t0:.2f} s ({', '.join(sizes)})"
+            )
 
 
 if __name__ == "__main__":

@@ -95,7 +95,7 @@ def test_batch_capture_column(folder, tmp_path, capsys):
             str(folder / "model_0.pdb"),
             "--step-A",
             "0.5",
-            "--capture-probe-radii-A",
+            "--probe-radii-A",
             "1.0",
             "--csv",
             str(out),
@@ -110,8 +110,8 @@ def test_batch_capture_column(folder, tmp_path, capsys):
 
 
 def test_batch_bad_capture_probes(folder, capsys):
-    code = main(["batch", str(folder / "model_0.pdb"), "--capture-probe-radii-A", "2", "1"])
-    assert code == 2 and "capture_probe_radii_A" in capsys.readouterr().err
+    code = main(["batch", str(folder / "model_0.pdb"), "--probe-radii-A", "2,1"])
+    assert code == 2 and "--probe-radii-A must be increasing" in capsys.readouterr().err
 
 
 def test_batch_check_columns(folder, tmp_path, capsys):

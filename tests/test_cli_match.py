@@ -101,9 +101,9 @@ def test_explicit_diffusion_outside_table(tmp_path):
         "100",
         "--temperature-C",
         "37",
-        "--diffusion-m2-s",
+        "--diffusion-m2-per-s",
         "2.5e-9",
-        "--diffusion-sd-m2-s",
+        "--diffusion-sd-m2-per-s",
         "1e-10",
     )
     assert d["diffusion_m2_s"] == 2.5e-9
@@ -136,7 +136,10 @@ def test_summary_printed(capsys):
             ["--current-pA", "1", "--conc-mM", "100", "--temperature-C", "45"],
             "outside the water-viscosity table",
         ),
-        (["--current-pA", "1", "--conc-mM", "100", "--diffusion-m2-s=-1e-9"], "diffusion_m2_per_s"),
+        (
+            ["--current-pA", "1", "--conc-mM", "100", "--diffusion-m2-per-s=-1e-9"],
+            "diffusion_m2_per_s",
+        ),
         (
             [
                 "--current-pA",
@@ -170,7 +173,7 @@ def test_bad_input_exit_2_one_line_no_file(tmp_path, capsys, args, message):
 
 # --- with a structure: the probe-size scan's capture curve ----------------------------
 
-STRUCT = ["--probes", "1:3:0.5", "--pore-radius-A", "10", "--entry", "resid 1"]
+STRUCT = ["--probe-radii-A", "1:3:0.5", "--search-radius-A", "10", "--entry", "resid 1"]
 
 
 def test_structure_match_cylinder(c4_cylinder_pdb, tmp_path):
@@ -236,7 +239,10 @@ def test_structure_match_equals_api(c4_cylinder_pdb, tmp_path):
     "extra, message",
     [
         (["--current-pA", "0", "--conc-mM", "100"], "current_pA"),
-        (["--current-pA", "5", "--conc-mM", "100", "--probes", "3:1:0.5"], "--probes"),
+        (
+            ["--current-pA", "5", "--conc-mM", "100", "--probe-radii-A", "3:1:0.5"],
+            "--probe-radii-A",
+        ),
         (["--current-pA", "5", "--conc-mM", "100", "--entry", "resid 999"], "matches no atoms"),
     ],
 )

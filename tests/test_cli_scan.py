@@ -5,8 +5,8 @@ import json
 import numpy as np
 import pytest
 
+from poreprobe.cli.common import parse_probe_radii
 from poreprobe.cli.main import main
-from poreprobe.cli.scan import parse_probe_range
 from poreprobe.errors import InputError
 from poreprobe.geometry.synthetic import ring_stack
 from poreprobe.io.writer import write_structure
@@ -32,7 +32,7 @@ def test_scan_writes_json_csv_and_table(tetramer_pdb, tmp_path, capsys):
             tetramer_pdb,
             "--entry",
             "resid 1:2",
-            "--probes",
+            "--probe-radii-A",
             "1:3:1",
             "--json",
             str(out_json),
@@ -70,9 +70,9 @@ def test_from_high_end_reverses_entry(tetramer_pdb, tmp_path):
                 tetramer_pdb,
                 "--entry",
                 "resid 1:2",
-                "--from",
+                "--entry-end",
                 "high",
-                "--probes",
+                "--probe-radii-A",
                 "3:3:1",
                 "--json",
                 str(out),
@@ -88,17 +88,17 @@ def test_from_high_end_reverses_entry(tetramer_pdb, tmp_path):
 @pytest.mark.parametrize(
     "args, message",
     [
-        (["--probes=-1:3:1"], "START must be > 0"),
-        (["--probes", "3:1:0.5"], "STOP must be >= START"),
-        (["--probes", "1:3:0"], "STEP must be > 0"),
-        (["--probes", "a:b"], "must be numbers"),
+        (["--probe-radii-A=-1:3:1"], "START must be > 0"),
+        (["--probe-radii-A", "3:1:0.5"], "STOP must be >= START"),
+        (["--probe-radii-A", "1:3:0"], "STEP must be > 0"),
+        (["--probe-radii-A", "a:b"], "must be numbers"),
         (["--entry", "resid 999"], "matches no atoms"),
         (["--entry", "resid 12:14"], "middle of the pore"),
     ],
 )
 def test_bad_input_exit_2_one_line_no_file(tetramer_pdb, tmp_path, capsys, args, message):
     out = tmp_path / "never.json"
-    argv = ["scan", tetramer_pdb, "--json", str(out), "--probes", "1:2:1"]
+    argv = ["scan", tetramer_pdb, "--json", str(out), "--probe-radii-A", "1:2:1"]
     if "--entry" not in args:
         argv += ["--entry", "resid 1:2"]
     code = main(argv + args)
@@ -114,9 +114,17 @@ def test_missing_output_folder_is_caught_before_work(tetramer_pdb, tmp_path, cap
     assert code == 2 and "does not exist" in capsys.readouterr().err
 
 
-def test_parse_probe_range():
-    probes = parse_probe_range("0.5:6:0.25")
+def test_parse_probe_radii():
+    probes = parse_probe_radii("0.5:6:0.25")
     assert len(probes) == 23 and probes[0] == 0.5 and probes[-1] == 6.0
-    np.testing.assert_allclose(parse_probe_range("1:2"), [1.0, 1.25, 1.5, 1.75, 2.0])
+    np.testing.assert_allclose(parse_probe_radii("1:2"), [1.0, 1.25, 1.5, 1.75, 2.0])
+    np.testing.assert_allclose(parse_probe_radii("1.5, 2,2.5"), [1.5, 2.0, 2.5])
+    np.testing.assert_allclose(parse_probe_radii("1"), [1.0])
     with pytest.raises(InputError, match="START:STOP:STEP"):
-        parse_probe_range("1")
+        parse_probe_radii("1:2:3:4")
+    with pytest.raises(InputError, match="comma-separated"):
+        parse_probe_radii("one,two")
+    with pytest.raises(InputError, match="increasing"):
+        parse_probe_radii("2,1")
+    with pytest.raises(InputError, match="> 0"):
+        parse_probe_radii("0,1")

@@ -23,7 +23,9 @@ def test_traj_writes_json_and_csv(breathing, tmp_path, capsys):
     code = main(
         [
             "traj",
-            *breathing,
+            breathing[0],
+            "--trajectory",
+            breathing[1],
             "--step-A",
             "0.5",
             "--json",
@@ -54,10 +56,12 @@ def test_traj_multiprocessing_same_json(breathing, tmp_path):
     a, b = tmp_path / "a.json", tmp_path / "b.json"
     common = [
         "traj",
-        *breathing,
+        breathing[0],
+        "--trajectory",
+        breathing[1],
         "--step-A",
         "0.5",
-        "--step",
+        "--frame-step",
         "2",
         "--axis-mode",
         "per-frame",
@@ -97,12 +101,12 @@ def test_traj_multiprocessing_same_json(breathing, tmp_path):
         ),
         (["--workers", "0", "--backend", "multiprocessing"], "--workers must be >= 1"),
         (["--percentiles", "101"], "percentiles must be between 0"),
-        (["--start", "40"], "no frames selected"),
+        (["--frame-start", "40"], "no frames selected"),
     ],
 )
 def test_traj_bad_input_is_one_line(breathing, tmp_path, capsys, extra, message):
     out = tmp_path / "never.json"
-    code = main(["traj", *breathing, "--json", str(out), *extra])
+    code = main(["traj", breathing[0], "--trajectory", breathing[1], "--json", str(out), *extra])
     err = capsys.readouterr().err
     assert code == 2
     assert err.startswith("poreprobe: error: ") and message in err
@@ -113,3 +117,17 @@ def test_traj_bad_input_is_one_line(breathing, tmp_path, capsys, extra, message)
 def test_traj_missing_file(tmp_path, capsys):
     assert main(["traj", str(tmp_path / "none.pdb")]) == 2
     assert "no such file" in capsys.readouterr().err
+
+
+def test_traj_takes_the_shared_structure_options(breathing, tmp_path):
+    """traj reads its atoms with the same cleaning and selection options as every command."""
+    import MDAnalysis as mda
+
+    out = tmp_path / "sel.json"
+    selection = "resid 1:6"
+    expected = len(mda.Universe(*breathing).select_atoms(f"({selection}) and not name H*"))
+    argv = ["traj", breathing[0], "--trajectory", breathing[1], "--step-A", "0.5"]
+    argv += ["--frame-stop", "2", "--select", selection, "--no-hydrogens", "--altloc", "first"]
+    assert main([*argv, "--json", str(out), "--quiet"]) == 0
+    data = json.loads(out.read_text())
+    assert data["n_atoms"] == expected and data["n_frames"] == 2

@@ -247,7 +247,7 @@ def test_match_figure_shades_every_interval():
     import matplotlib
 
     matplotlib.use("Agg")
-    from poreprobe.figures import plots
+    from poreprobe.figures import capture_plot as plots
 
     p = np.array([0.0, 1.0, 1.5, 2.0, 3.0, 4.0, 4.5, 5.0])
     c = np.array([0.0, 1.0, 0.2, 0.2, 1.0, 1.8, 1.0, 0.2])

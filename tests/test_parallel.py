@@ -180,10 +180,12 @@ def test_cli_traj_with_scheduler(cluster, breathing, tmp_path, capsys):
     code = main(
         [
             "traj",
-            *breathing,
+            breathing[0],
+            "--trajectory",
+            breathing[1],
             "--step-A",
             "0.5",
-            "--stop",
+            "--frame-stop",
             "4",
             "--scheduler",
             cluster.scheduler_address,

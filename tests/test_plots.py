@@ -14,7 +14,29 @@ import poreprobe
 from poreprobe.bench.ions import get_ion
 from poreprobe.cli.main import main
 from poreprobe.errors import InputError
-from poreprobe.figures import plots
+from poreprobe.figures.capture_plot import plot_capture
+from poreprobe.figures.data import profile_arrays, residue_summary
+from poreprobe.figures.draw import draw_figure
+from poreprobe.figures.kinds import FIGURE_KINDS
+from poreprobe.figures.kymograph_plot import plot_kymograph
+from poreprobe.figures.overlay_plot import common_grid, plot_overlay
+from poreprobe.figures.probes_plot import plot_probes
+from poreprobe.figures.profile_plot import plot_profile
+from poreprobe.figures.references import ion_reference_radii
+from poreprobe.figures.resistance_plot import plot_resistance
+from poreprobe.figures.style import (
+    CAPTURE_HEIGHT_MM,
+    DEFAULT_HEIGHT_MM,
+    DEFAULT_WIDTH_MM,
+    FONT_PT,
+    LINE_COLORS,
+    OKABE_ITO,
+    OPEN_COLOR,
+    RADIUS_CMAP,
+    SMALL_FONT_PT,
+    new_figure,
+    radius_colors,
+)
 from poreprobe.geometry import synthetic
 from poreprobe.io.export import to_json
 
@@ -172,19 +194,19 @@ def _png_size(path):
 # --------------------------------------------------------------------------- every kind, files
 
 
-@pytest.mark.parametrize("kind", plots.FIGURE_KINDS)
+@pytest.mark.parametrize("kind", FIGURE_KINDS)
 def test_each_kind_renders_png_and_svg_from_saved_json(kind, saved, tmp_path):
     inputs = [str(saved[name]) for name in KIND_INPUTS[kind]]
     png, svg = tmp_path / f"{kind}.png", tmp_path / f"{kind}.svg"
-    assert main(["plot", kind, *inputs, "-o", str(png), "--dpi", "100", "--quiet"]) == 0
-    assert main(["plot", kind, *inputs, "-o", str(svg), "--quiet"]) == 0
+    assert main(["plot", kind, *inputs, "--figure", str(png), "--dpi", "100", "--quiet"]) == 0
+    assert main(["plot", kind, *inputs, "--figure", str(svg), "--quiet"]) == 0
     width, height = _png_size(png)
-    default_h = plots.CAPTURE_HEIGHT_MM if kind == "capture" else plots.DEFAULT_HEIGHT_MM
-    assert width == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 100, abs=1.5)
+    default_h = CAPTURE_HEIGHT_MM if kind == "capture" else DEFAULT_HEIGHT_MM
+    assert width == pytest.approx(DEFAULT_WIDTH_MM / 25.4 * 100, abs=1.5)
     assert height == pytest.approx(default_h / 25.4 * 100, abs=1.5)
     root = ET.parse(svg).getroot()  # well-formed XML
     assert root.tag.endswith("svg")
-    ax = plots.draw_figure(kind, [json.loads(saved[n].read_text()) for n in KIND_INPUTS[kind]])
+    ax = draw_figure(kind, [json.loads(saved[n].read_text()) for n in KIND_INPUTS[kind]])
     labels = [lab for lab in (ax.get_xlabel(), ax.get_ylabel()) if lab]
     assert labels and all(lab.endswith(("(Å)", "(%)", "(ps)", "(ns)", "(µs)")) for lab in labels)
     text = svg.read_text()
@@ -205,8 +227,8 @@ def test_size_in_mm_and_format_by_suffix(saved, tmp_path):
         "150",
         "--quiet",
     ]
-    assert main([*args, "-o", str(png)]) == 0
-    assert main([*args, "-o", str(pdf)]) == 0
+    assert main([*args, "--figure", str(png)]) == 0
+    assert main([*args, "--figure", str(pdf)]) == 0
     assert _png_size(png) == pytest.approx((174 / 25.4 * 150, 50 / 25.4 * 150), abs=1.5)
     assert pdf.read_bytes()[:5] == b"%PDF-"
 
@@ -214,16 +236,28 @@ def test_size_in_mm_and_format_by_suffix(saved, tmp_path):
 @pytest.mark.parametrize(
     "argv, message",
     [
-        (["profile", "{profile_a}", "-o", "{out}.jpg"], "must end in .png, .svg, .pdf"),
-        (["profile", "{missing}", "-o", "{out}.png"], "no such file"),
-        (["kymograph", "{resistance}", "-o", "{out}.png"], "needs exactly one trajectory"),
-        (["profile", "{profile_a}", "-o", "{out}.png", "--width-mm", "5"], "width_mm must be"),
-        (["profile", "{profile_a}", "-o", "{out}.png", "--ion", "Xx"], "unknown ion"),
+        (["profile", "{profile_a}", "--figure", "{out}.jpg"], "must end in .png, .svg, .pdf"),
+        (["profile", "{missing}", "--figure", "{out}.png"], "no such file"),
+        (["kymograph", "{resistance}", "--figure", "{out}.png"], "needs exactly one trajectory"),
         (
-            ["profile", "{profile_a}", "-o", "{out}.png", "--ion", "K", "--ion-radii", "wet"],
+            ["profile", "{profile_a}", "--figure", "{out}.png", "--width-mm", "5"],
+            "width_mm must be",
+        ),
+        (["profile", "{profile_a}", "--figure", "{out}.png", "--figure-ion", "Xx"], "unknown ion"),
+        (
+            [
+                "profile",
+                "{profile_a}",
+                "--figure",
+                "{out}.png",
+                "--figure-ion",
+                "K",
+                "--figure-ion-radii",
+                "wet",
+            ],
             "ion radius kind must be one of",
         ),
-        (["resistance", "{resistance}", "-o", "{out}.png", "--band"], "--band applies"),
+        (["resistance", "{resistance}", "--figure", "{out}.png", "--band"], "--band applies"),
     ],
 )
 def test_plot_bad_input_is_one_line_exit_2_and_no_file(argv, message, saved, tmp_path, capsys):
@@ -242,7 +276,7 @@ def test_plot_bad_input_is_one_line_exit_2_and_no_file(argv, message, saved, tmp
 def test_not_a_json_file_is_rejected(tmp_path, capsys):
     bad = tmp_path / "bad.json"
     bad.write_text("not json")
-    assert main(["plot", "profile", str(bad), "-o", str(tmp_path / "f.png")]) == 2
+    assert main(["plot", "profile", str(bad), "--figure", str(tmp_path / "f.png")]) == 2
     assert "is not a JSON file" in capsys.readouterr().err
 
 
@@ -255,8 +289,8 @@ def _finite(a):
 
 
 def test_profile_axes_carry_profile_and_ion_bands(profile_a):
-    refs = plots.ion_reference_radii("K", "crystal,hydrated")
-    ax = plots.draw_figure("profile", [profile_a], ion_radii=refs)
+    refs = ion_reference_radii("K", "crystal,hydrated")
+    ax = draw_figure("profile", [profile_a], ion_radii=refs)
     s = np.array(profile_a["profile"]["s_A"], dtype=float)
     r = np.array(profile_a["profile"]["radius_A"], dtype=float)
     line = next(ln for ln in ax.lines if ln.get_label().startswith("pore radius"))
@@ -299,13 +333,13 @@ def test_profile_constrictions_from_a_check_result(profile_a):
             {"s_A": 0.0, "radius_A": 2.3, "residues": ["A:THR75"]},
         ],
     }
-    ax = plots.draw_figure("profile", [profile_a, check])
+    ax = draw_figure("profile", [profile_a, check])
     texts = [t.get_text() for t in ax.texts]
     assert texts == ["2.30 Å\nTHR75", "3.10 Å\nLEU12 ×2"]  # narrowest first
 
 
 def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, trajectory):
-    ax = plots.plot_overlay([profile_a, profile_b], band=True)
+    ax = plot_overlay([profile_a, profile_b], band=True)
     named = {ln.get_label(): ln for ln in ax.lines}
     for d in (profile_a, profile_b):
         np.testing.assert_allclose(
@@ -313,9 +347,7 @@ def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, traj
             np.array(d["profile"]["radius_A"], dtype=float),
             equal_nan=True,
         )
-    grid, radii = plots.common_grid(
-        [plots.profile_arrays(profile_a), plots.profile_arrays(profile_b)]
-    )
+    grid, radii = common_grid([profile_arrays(profile_a), profile_arrays(profile_b)])
     mean_line = ax.lines[-1]
     np.testing.assert_allclose(mean_line.get_ydata(), np.mean(radii, axis=0), equal_nan=True)
     band = ax.collections[-1].get_paths()[0].vertices
@@ -325,7 +357,7 @@ def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, traj
     s = np.array(profile_a["profile"]["s_A"], dtype=float)
     assert ax.get_xlim() == pytest.approx((s[0], s[-1]))
 
-    ax = plots.plot_overlay([trajectory])
+    ax = plot_overlay([trajectory])
     radius = np.array(trajectory["per_frame"]["radius_A"], dtype=float)
     mean = ax.lines[0].get_ydata()
     np.testing.assert_allclose(mean[2:], radius[:, 2:].mean(0))
@@ -334,7 +366,7 @@ def test_overlay_axes_carry_each_profile_and_the_band(profile_a, profile_b, traj
 
 
 def test_probe_axes_carry_every_probe_and_colour_range(scan):
-    ax = plots.plot_probes(scan)
+    ax = plot_probes(scan)
     p = np.array(scan["capture"]["probe_radius_A"])
     acc = np.array(scan["profiles"]["accessible_radius_A"], dtype=float)
     s = scan["profiles"]["s_A"]
@@ -353,7 +385,7 @@ def test_probe_axes_carry_every_probe_and_colour_range(scan):
 
 
 def test_capture_axes_carry_curve_band_and_interval(scan, match):
-    ax = plots.plot_capture(scan, match=match)
+    ax = plot_capture(scan, match=match)
     p = np.array(scan["capture"]["probe_radius_A"])
     c = np.array(scan["capture"]["capture_radius_A"])
     curve = next(ln for ln in ax.lines if len(ln.get_xdata()) == len(p))
@@ -377,7 +409,7 @@ def test_capture_axes_carry_curve_band_and_interval(scan, match):
 
 
 def test_resistance_axes_carry_segments(resistance):
-    ax = plots.plot_resistance(resistance)
+    ax = plot_resistance(resistance)
     shares = [b.get_width() for b in ax.patches]
     assert shares == [s["share_percent"] for s in resistance["segments"]]
     assert [t.get_text() for t in ax.get_yticklabels()] == [
@@ -389,7 +421,7 @@ def test_resistance_axes_carry_segments(resistance):
 
 
 def test_kymograph_axes_carry_frames_levels_and_radius_range(trajectory):
-    ax = plots.plot_kymograph(trajectory)
+    ax = plot_kymograph(trajectory)
     mesh = ax.collections[0]
     radius = np.array(trajectory["per_frame"]["radius_A"], dtype=float)
     np.testing.assert_allclose(
@@ -408,40 +440,36 @@ def test_kymograph_axes_carry_frames_levels_and_radius_range(trajectory):
 
 
 def test_figures_use_the_house_style_and_a_given_axes(profile_a):
-    fig, ax = plots.new_figure(width_mm=114, height_mm=70)
+    fig, ax = new_figure(width_mm=114, height_mm=70)
     assert tuple(fig.get_size_inches() * 25.4) == pytest.approx((114, 70))
-    assert plots.plot_profile(profile_a, ax=ax) is ax
+    assert plot_profile(profile_a, ax=ax) is ax
     sizes = {t.get_fontsize() for t in [ax.xaxis.label, ax.yaxis.label]}
-    assert sizes == {plots.FONT_PT}
-    assert min(t.get_fontsize() for t in ax.texts) >= plots.SMALL_FONT_PT >= 6
-    assert all(
-        ln.get_color() in plots.LINE_COLORS + tuple(plots.OKABE_ITO.values()) for ln in ax.lines
-    )
+    assert sizes == {FONT_PT}
+    assert min(t.get_fontsize() for t in ax.texts) >= SMALL_FONT_PT >= 6
+    assert all(ln.get_color() in LINE_COLORS + tuple(OKABE_ITO.values()) for ln in ax.lines)
     with pytest.raises(InputError, match="ax must be a matplotlib Axes"):
-        plots.plot_profile(profile_a, ax="axes")
+        plot_profile(profile_a, ax="axes")
 
 
 def test_radius_colours_follow_the_perceptual_map():
-    cmap = mpl.colormaps[plots.RADIUS_CMAP]
-    rgb = plots.radius_colors([1.0, 3.0, np.nan, 9.0], vmin_A=1.0, vmax_A=3.0)
+    cmap = mpl.colormaps[RADIUS_CMAP]
+    rgb = radius_colors([1.0, 3.0, np.nan, 9.0], vmin_A=1.0, vmax_A=3.0)
     assert rgb.dtype == np.uint8 and rgb.shape == (4, 3)
     np.testing.assert_array_equal(rgb[0], np.round(np.array(cmap(0.0)[:3]) * 255))
     np.testing.assert_array_equal(rgb[1], np.round(np.array(cmap(1.0)[:3]) * 255))
     np.testing.assert_array_equal(rgb[3], rgb[1])  # clipped
-    np.testing.assert_array_equal(
-        rgb[2], np.round(np.array(mpl.colors.to_rgb(plots.OPEN_COLOR)) * 255)
-    )
+    np.testing.assert_array_equal(rgb[2], np.round(np.array(mpl.colors.to_rgb(OPEN_COLOR)) * 255))
     # perceptual ordering (common practice for sequential maps): lightness rises with radius
-    lum = plots.radius_colors(np.linspace(1, 3, 20), vmin_A=1, vmax_A=3) @ [0.2126, 0.7152, 0.0722]
+    lum = radius_colors(np.linspace(1, 3, 20), vmin_A=1, vmax_A=3) @ [0.2126, 0.7152, 0.0722]
     assert np.all(np.diff(lum) > 0)
     with pytest.raises(InputError, match="vmax_A > vmin_A"):
-        plots.radius_colors([1.0], vmin_A=2.0, vmax_A=2.0)
+        radius_colors([1.0], vmin_A=2.0, vmax_A=2.0)
 
 
 def test_residue_summary_and_ion_radii():
-    assert plots.residue_summary(["A:LEU12", "B:LEU12", "A:THR75", "C:LEU12"]) == "LEU12 ×3, THR75"
-    assert plots.residue_summary([f"A:GLY{k}" for k in range(5)], limit=2) == "GLY0, GLY1, +3 more"
-    refs = plots.ion_reference_radii(["Na", "Cl-"], "crystal,stokes")
+    assert residue_summary(["A:LEU12", "B:LEU12", "A:THR75", "C:LEU12"]) == "LEU12 ×3, THR75"
+    assert residue_summary([f"A:GLY{k}" for k in range(5)], limit=2) == "GLY0, GLY1, +3 more"
+    refs = ion_reference_radii(["Na", "Cl-"], "crystal,stokes")
     assert [round(v, 6) for _, v in refs] == [
         round(v, 6)
         for v in (
@@ -452,7 +480,7 @@ def test_residue_summary_and_ion_radii():
         )
     ]
     assert refs[1][0].startswith("Na⁺ Stokes radius")
-    assert plots.ion_reference_radii(None) == []
+    assert ion_reference_radii(None) == []
 
 
 @pytest.mark.parametrize(
@@ -467,7 +495,7 @@ def test_residue_summary_and_ion_radii():
 )
 def test_profile_input_errors_name_the_problem(bad, message):
     with pytest.raises(InputError, match=message):
-        plots.plot_profile(bad)
+        plot_profile(bad)
 
 
 def test_profile_command_draws_its_figure(tmp_path, capsys):
@@ -489,7 +517,7 @@ def test_profile_command_draws_its_figure(tmp_path, capsys):
                 str(js),
                 "--figure",
                 str(fig),
-                "--ion",
+                "--figure-ion",
                 "K",
                 "--quiet",
             ]
@@ -528,9 +556,9 @@ def test_resistance_command_figure_matches_its_json(c4_cylinder_pdb, tmp_path):
         )
         == 0
     )
-    assert _png_size(fig)[0] == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
+    assert _png_size(fig)[0] == pytest.approx(DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
     data = json.loads(js.read_text())
-    ax = plots.draw_figure("resistance", [data])
+    ax = draw_figure("resistance", [data])
     assert [b.get_width() for b in ax.patches] == pytest.approx(
         [seg["share_percent"] for seg in data["segments"]]
     )
@@ -539,7 +567,7 @@ def test_resistance_command_figure_matches_its_json(c4_cylinder_pdb, tmp_path):
     ]
     assert len(access) == 2
     assert all(
-        mpl.colors.to_hex(b.get_facecolor()) == plots.OKABE_ITO["sky_blue"].lower() for b in access
+        mpl.colors.to_hex(b.get_facecolor()) == OKABE_ITO["sky_blue"].lower() for b in access
     )
     assert f"{data['conductance_pS']:.3g} pS" in ax.get_title(loc="left")
 
@@ -563,20 +591,20 @@ def test_capture_from_a_match_that_carries_its_curve():
             ],
         },
     }
-    ax = plots.draw_figure("capture", [match])
+    ax = draw_figure("capture", [match])
     curve = next(ln for ln in ax.lines if len(ln.get_xdata()) == 4 and ln.get_linestyle() == "-")
     np.testing.assert_allclose(curve.get_ydata(), [1.5, 1.0, 0.6, 0.0])
     refs = {ln.get_label(): ln.get_xdata()[0] for ln in ax.lines if "radius" in ln.get_label()}
     assert refs == {"K⁺ crystal radius 1.38 Å": 1.38, "K⁺ hydrated radius 3.31 Å": 3.31}
     assert ax.get_xlim()[0] <= 1.0 and ax.get_xlim()[1] >= 2.5
     with pytest.raises(InputError, match="needs exactly one scan"):
-        plots.draw_figure("capture", [{"capture_radius_A": 0.9, "capture_radius_sd_A": 0.1}])
+        draw_figure("capture", [{"capture_radius_A": 0.9, "capture_radius_sd_A": 0.1}])
 
 
 def test_capture_marks_probes_that_stop_pass_or_never_enter(scan):
     data = json.loads(json.dumps(scan))
     data["capture"]["enters"] = [True] * (len(data["capture"]["passes"]) - 1) + [False]
-    ax = plots.plot_capture(data)
+    ax = plot_capture(data)
     marks = {ln.get_label(): ln.get_xdata() for ln in ax.lines if ln.get_linestyle() == "None"}
     p = np.array(scan["capture"]["probe_radius_A"])
     passes = np.array(scan["capture"]["passes"])
@@ -596,7 +624,7 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
                 "scan",
                 c4_cylinder_pdb,
                 *axis,
-                "--probes",
+                "--probe-radii-A",
                 "1:5:1",
                 "--json",
                 str(js),
@@ -611,7 +639,7 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
     )
     assert fig.read_text().lstrip().startswith("<?xml")
     data = json.loads(js.read_text())
-    ax = plots.draw_figure(kind, [data])
+    ax = draw_figure(kind, [data])
     p = np.array(data["capture"]["probe_radius_A"])
     if kind == "probes":
         acc = np.array(data["profiles"]["accessible_radius_A"], dtype=float)
@@ -640,7 +668,7 @@ def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
     axis = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
     assert main(["check", str(model), *axis, "--json", str(js), "--quiet"]) == 0
     data = json.loads(js.read_text())
-    ax = plots.draw_figure("profile", [data])
+    ax = draw_figure("profile", [data])
     markers = [ln for ln in ax.lines if ln.get_marker() == "v"]
     assert len(markers) == len(data["constrictions"]) >= 2
     labels = [t.get_text() for t in ax.texts]
@@ -660,7 +688,7 @@ def test_match_command_figure_shows_the_measured_band(c4_cylinder_pdb, tmp_path)
                 "match",
                 c4_cylinder_pdb,
                 *axis,
-                "--probes",
+                "--probe-radii-A",
                 "1:4:0.5",
                 "--current-pA",
                 "20",
@@ -681,9 +709,9 @@ def test_match_command_figure_shows_the_measured_band(c4_cylinder_pdb, tmp_path)
         )
         == 0
     )
-    assert _png_size(fig)[1] == pytest.approx(plots.CAPTURE_HEIGHT_MM / 25.4 * 80, abs=1.5)
+    assert _png_size(fig)[1] == pytest.approx(CAPTURE_HEIGHT_MM / 25.4 * 80, abs=1.5)
     data = json.loads(js.read_text())
-    ax = plots.draw_figure("capture", [data])
+    ax = draw_figure("capture", [data])
     c, sd = data["capture_radius_A"], data["capture_radius_sd_A"]
     band = next(p for p in ax.patches if p.get_label().startswith("measured"))
     box = band.get_path().get_extents(band.get_transform()).transformed(ax.transData.inverted())
@@ -711,6 +739,7 @@ def test_traj_command_figures_match_its_json(kind, tmp_path):
             [
                 "traj",
                 pdb,
+                "--trajectory",
                 dcd,
                 "--json",
                 str(js),
@@ -725,11 +754,11 @@ def test_traj_command_figures_match_its_json(kind, tmp_path):
         )
         == 0
     )
-    assert _png_size(fig)[0] == pytest.approx(plots.DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
+    assert _png_size(fig)[0] == pytest.approx(DEFAULT_WIDTH_MM / 25.4 * 80, abs=1.5)
     data = json.loads(js.read_text())
     radius = np.array(data["per_frame"]["radius_A"], dtype=float)
     assert radius.shape[0] == N_FRAMES
-    ax = plots.draw_figure(kind, [data])
+    ax = draw_figure(kind, [data])
     if kind == "kymograph":
         mesh = ax.collections[0]
         np.testing.assert_allclose(

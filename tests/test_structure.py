@@ -5,7 +5,8 @@ import numpy as np
 import pytest
 
 from poreprobe import InputError, read_structure, select
-from poreprobe.io.structure import atoms_from_atomgroup, open_universe, resolve_altlocs
+from poreprobe.io.cleaning import resolve_altlocs
+from poreprobe.io.structure import atoms_from_atomgroup, open_universe
 
 PDB_TEXT = """\
 ATOM      1  N   ALA A   1       0.000   0.000   0.000  1.00 10.00           N

@@ -21,13 +21,8 @@ from _trajectory_data import (
 from poreprobe import atom_radii_A, atoms_from_atomgroup, find_pore_axis, radius_profile
 from poreprobe.errors import InputError
 from poreprobe.geometry.synthetic import expected_radius_A
-from poreprobe.scale.trajectory import (
-    PoreProfileAnalysis,
-    TrajectoryProfiles,
-    frames_csv,
-    planes_csv,
-    profile_trajectory,
-)
+from poreprobe.scale.trajectory import PoreProfileAnalysis, profile_trajectory
+from poreprobe.scale.trajectory_profiles import TrajectoryProfiles, frames_csv, planes_csv
 
 pytestmark = pytest.mark.filterwarnings("ignore:.*gives no time step")
 
@@ -240,7 +235,7 @@ def test_profile_trajectory_bad_input(breathing, tmp_path):
     with pytest.raises(InputError, match="no such file"):
         profile_trajectory(str(tmp_path / "missing.pdb"))
     with pytest.raises(InputError, match="matches no atoms"):
-        profile_trajectory(*breathing, select="resname HOH")
+        profile_trajectory(*breathing, selection="resname HOH")
     with pytest.raises(InputError, match="no frames selected"):
         profile_trajectory(*breathing, start=50)
     with pytest.raises(InputError, match="backend must be one of"):

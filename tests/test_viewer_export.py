@@ -5,11 +5,12 @@ from __future__ import annotations
 import gemmi
 import numpy as np
 import pytest
+import trimesh
 
 import poreprobe
 from poreprobe.cli.main import main
 from poreprobe.errors import InputError, PoreNotFoundError
-from poreprobe.figures import viewer_export as ve
+from poreprobe.figures import viewer_line, viewer_map, viewer_mesh
 from poreprobe.geometry import synthetic
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.io.radii import atom_radii_A
@@ -41,7 +42,7 @@ class Case:
         self.profile = poreprobe.radius_profile(
             self.atoms, self.axis, radii="bondi", step_A=0.5, margin_A=2.0, max_radius_A=8.0
         )
-        self.grid = ve.clearance_grid(
+        self.grid = viewer_map.clearance_grid(
             self.atoms, self.profile, radii_A=self.radii_A, spacing_A=SPACING_A
         )
 
@@ -86,7 +87,7 @@ def _read_map(path):
 
 def test_map_value_at_grid_point_equals_clearance_there(hourglass, tmp_path):
     path = tmp_path / "pore.map"
-    ve.write_map(hourglass.grid, path)
+    viewer_map.write_map(hourglass.grid, path)
     _, h = _read_map(path)
     assert h["axes"] == [1, 2, 3] and np.all(h["origin"] == 0)
     np.testing.assert_array_equal(h["n"], h["values"].shape)
@@ -101,7 +102,7 @@ def test_map_value_at_grid_point_equals_clearance_there(hourglass, tmp_path):
 
 def test_map_puts_pore_voxels_inside_the_pore(hourglass, tmp_path):
     path = tmp_path / "pore.mrc"
-    ve.write_map(hourglass.grid, path)
+    viewer_map.write_map(hourglass.grid, path)
     m, _ = _read_map(path)
     m.setup(float("nan"))  # gemmi's own placement of the box
     prof = hourglass.profile
@@ -129,18 +130,20 @@ def test_map_moves_with_the_model(steps):
         moved = atoms.with_coords(atoms.coords_A + offset)
         axis = poreprobe.PoreAxis(offset, [0.0, 0.0, 1.0], "user")
         prof = poreprobe.radius_profile(moved, axis, step_A=0.5, margin_A=1.0)
-        grids.append(ve.clearance_grid(moved, prof, spacing_A=SPACING_A))
+        grids.append(viewer_map.clearance_grid(moved, prof, spacing_A=SPACING_A))
     np.testing.assert_array_equal(grids[1].start - grids[0].start, steps)
     np.testing.assert_allclose(grids[1].values_A, grids[0].values_A, atol=1e-9)
 
 
 def test_map_file_name_and_grid_size_are_checked(hourglass, tmp_path):
     with pytest.raises(InputError, match="map file must end in"):
-        ve.write_map(hourglass.grid, tmp_path / "pore.txt")
+        viewer_map.write_map(hourglass.grid, tmp_path / "pore.txt")
     with pytest.raises(InputError, match="spacing_A must be between"):
-        ve.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.0)
+        viewer_map.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.0)
     with pytest.raises(InputError, match="use a larger spacing_A"):
-        ve.clearance_grid(hourglass.atoms, hourglass.profile, spacing_A=0.05, region_radius_A=60.0)
+        viewer_map.clearance_grid(
+            hourglass.atoms, hourglass.profile, spacing_A=0.05, region_radius_A=60.0
+        )
 
 
 def test_reach_map_equals_the_reach_field_where_the_grids_coincide(tmp_path):
@@ -150,7 +153,7 @@ def test_reach_map_equals_the_reach_field_where_the_grids_coincide(tmp_path):
     axis = poreprobe.PoreAxis([0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "user")
     field = poreprobe.reach_field(atoms, axis, spacing_A=SPACING_A, pore_radius_A=9.0)
     path = tmp_path / "reach.map"
-    ve.write_map(ve.reach_grid(field), path)
+    viewer_map.write_map(viewer_map.reach_grid(field), path)
     _, h = _read_map(path)
     step = h["cell"] / h["sampling"]
     voxels = np.argwhere(field.inside & np.isfinite(field.reach_A))[::11]
@@ -174,7 +177,7 @@ def test_reach_map_shows_how_far_each_probe_gets_from_the_entry(hourglass, tmp_p
         from_end="low",
     )
     path = tmp_path / "reach.ccp4"
-    ve.write_map(ve.reach_grid(field), path)
+    viewer_map.write_map(viewer_map.reach_grid(field), path)
     _, h = _read_map(path)
     step = h["cell"] / h["sampling"]
     waist = hourglass.profile.min_radius_A
@@ -205,14 +208,14 @@ def _components(faces):
 
 @pytest.mark.parametrize("probe_A", [0.0, 1.0, 2.0, 3.0])
 def test_mesh_vertices_lie_at_clearance_equal_to_probe(hourglass, probe_A):
-    surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=probe_A)
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=probe_A)
     c = hourglass.spheres.clearance_A(surface.vertices_A)
     assert np.max(np.abs(c - probe_A)) <= SPACING_A
     assert np.median(np.abs(c - probe_A)) < 0.1 * SPACING_A
 
 
 def test_mesh_is_open_only_at_the_mouths_when_the_probe_passes(hourglass):
-    surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.5)
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.5)
     edges = surface.boundary_edges()
     s_open = surface.s_A[edges.ravel()]
     s_lo, s_hi = hourglass.profile.s_A[0], hourglass.profile.s_A[-1]
@@ -225,7 +228,7 @@ def test_mesh_is_open_only_at_the_mouths_when_the_probe_passes(hourglass):
 def test_mesh_closes_where_the_pore_is_closed_to_the_probe(hourglass):
     probe = 3.0  # wider than the 2.3 Å waist
     assert hourglass.profile.min_radius_A < probe
-    surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=probe)
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=probe)
     s_open = surface.s_A[surface.boundary_edges().ravel()]
     s_lo, s_hi = hourglass.profile.s_A[0], hourglass.profile.s_A[-1]
     assert np.all((s_open < s_lo + 2 * SPACING_A) | (s_open > s_hi - 2 * SPACING_A))
@@ -240,7 +243,7 @@ def test_mesh_closes_where_the_pore_is_closed_to_the_probe(hourglass):
 def test_mesh_of_a_closed_cavity_is_watertight(cavity):
     probe = 2.5  # end rings admit 3.2 - 1.7 = 1.5 Å; the chamber 5.3 Å
     assert cavity.profile.min_radius_A < probe
-    surface = ve.pore_surface(cavity.grid, cavity.profile, probe_radius_A=probe)
+    surface = viewer_mesh.pore_surface(cavity.grid, cavity.profile, probe_radius_A=probe)
     assert len(surface.boundary_edges()) == 0
     n_v, n_f = len(surface.vertices_A), len(surface.faces)
     n_e = 3 * n_f // 2
@@ -251,9 +254,9 @@ def test_mesh_of_a_closed_cavity_is_watertight(cavity):
 
 def test_mesh_needs_a_probe_that_fits(hourglass):
     with pytest.raises(PoreNotFoundError, match="admits a probe of radius 9"):
-        ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=9.0)
+        viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=9.0)
     with pytest.raises(InputError, match="probe_radius_A must be >= 0"):
-        ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=-1.0)
+        viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=-1.0)
 
 
 def _read_ply(path):
@@ -269,12 +272,12 @@ def _read_ply(path):
 
 
 def test_mesh_files_read_back(hourglass, tmp_path):
-    from poreprobe.figures.plots import radius_colors
+    from poreprobe.figures.style import radius_colors
 
-    surface = ve.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
     ply, obj = tmp_path / "pore.ply", tmp_path / "pore.obj"
-    ve.write_mesh(surface, ply, radius_range_A=(2.0, 6.0))
-    ve.write_mesh(surface, obj, radius_range_A=(2.0, 6.0))
+    viewer_mesh.write_mesh(surface, ply, radius_range_A=(2.0, 6.0))
+    viewer_mesh.write_mesh(surface, obj, radius_range_A=(2.0, 6.0))
     props, v, f = _read_ply(ply)
     assert props == [
         "x",
@@ -305,48 +308,74 @@ def test_mesh_files_read_back(hourglass, tmp_path):
     np.testing.assert_allclose(vs[:, :3], surface.vertices_A, atol=1e-4)
     np.testing.assert_allclose(vs[:, 3:], colours / 255.0, atol=1e-4)
     np.testing.assert_array_equal(fs - 1, surface.faces)
-    ve.write_mesh(surface, ply, color_by_radius=False)
+    viewer_mesh.write_mesh(surface, ply, color_by_radius=False)
     assert _read_ply(ply)[0] == ["x", "y", "z", "nx", "ny", "nz", "s_A", "local_radius_A"]
+
+
+def test_mesh_as_glb_holds_the_same_triangles(hourglass, tmp_path):
+    surface = viewer_mesh.pore_surface(hourglass.grid, hourglass.profile, probe_radius_A=1.0)
+    path = tmp_path / "pore.glb"
+    viewer_mesh.write_mesh(surface, path)
+    mesh = trimesh.load(path, force="mesh", process=False)
+    np.testing.assert_allclose(mesh.vertices, surface.vertices_A, atol=1e-4)  # float32
+    np.testing.assert_array_equal(mesh.faces, surface.faces)
 
 
 # --------------------------------------------------------------------------- centre line
 
 
-def test_center_line_mmcif_reads_back(hourglass, tmp_path):
+def test_center_line_mmcif_is_a_table_of_points_equal_to_the_profile(hourglass, tmp_path):
     prof = hourglass.profile
-    line = ve.center_line(hourglass.atoms, prof, radii_A=hourglass.radii_A)
+    line = viewer_line.center_line(hourglass.atoms, prof, radii_A=hourglass.radii_A)
     path = tmp_path / "centre.cif"
-    ve.write_center_line(line, path)
+    viewer_line.write_center_line(line, path)
     ok = np.isfinite(prof.radius_A)
-    block = gemmi.cif.read(str(path)).sole_block()
+    doc = gemmi.cif.read(str(path))
+    block = doc.sole_block()
     table = block.find(
         "_poreprobe_center_line_point.",
-        ["id", "s", "cartn_x", "cartn_y", "cartn_z", "radius", "lining_residues"],
+        ["id", "s", "center_x", "center_y", "center_z", "radius", "lining"],
     )
     assert len(table) == ok.sum()
     s = np.array([float(v) for v in table.column(1)])
     radius = np.array([float(v) for v in table.column(5)])
     xyz = np.array([[float(table.column(k)[i]) for k in (2, 3, 4)] for i in range(len(table))])
-    np.testing.assert_allclose(s, prof.s_A[ok], atol=1e-3)
+    np.testing.assert_allclose(s, prof.s_A[ok], atol=1e-4)
     np.testing.assert_allclose(radius, prof.radius_A[ok], atol=1e-4)
-    np.testing.assert_allclose(xyz, prof.center_A[ok], atol=1e-3)
+    np.testing.assert_allclose(xyz, prof.center_A[ok], atol=1e-4)
+    assert [int(v) for v in table.column(0)] == list(range(1, ok.sum() + 1))
     assert block.find_value("_poreprobe_center_line.length_unit") == "angstrom"
     assert gemmi.cif.as_string(block.find_value("_poreprobe_center_line.radius_set")) == "bondi"
     assert int(block.find_value("_poreprobe_center_line.number_of_points")) == ok.sum()
+    axis_dir = [
+        float(block.find_value(f"_poreprobe_center_line.axis_direction_{c}")) for c in "xyz"
+    ]
+    np.testing.assert_allclose(axis_dir, prof.axis.direction, atol=1e-6)
     # the narrowest point is lined by the residues the profile reports there
     k = int(np.argmin(radius))
     lining = gemmi.cif.as_string(table.column(6)[k]).split()
     assert set(lining) == set(prof.min_residues)
-    # viewers see the points as atoms with the radius in the B-factor column
-    st = gemmi.read_structure(str(path))
-    atoms = [a for r in st[0]["PORE"] for a in r]
-    assert len(atoms) == ok.sum()
-    np.testing.assert_allclose([a.b_iso for a in atoms], prof.radius_A[ok], atol=1e-3)
-    np.testing.assert_allclose([a.pos.tolist() for a in atoms], prof.center_A[ok], atol=1e-3)
+    # poreprobe's own data only: no atoms, no other category
+    assert len(doc) == 1
+    assert not block.find_mmcif_category("_atom_site.")
+    prefixes = {
+        item.pair[0].split(".")[0] if item.pair else item.loop.tags[0].split(".")[0]
+        for item in block
+    }
+    assert prefixes == {"_poreprobe_center_line", "_poreprobe_center_line_point"}
+
+
+def test_center_line_needs_a_line_and_a_cif_name(hourglass, tmp_path):
+    line = viewer_line.center_line(hourglass.atoms, hourglass.profile, radii_A=hourglass.radii_A)
+    with pytest.raises(InputError, match="must end in"):
+        viewer_line.write_center_line(line, tmp_path / "centre.pdb")
+    with pytest.raises(InputError, match="CenterLine"):
+        viewer_line.write_center_line({"s_A": []}, tmp_path / "centre.cif")
+    assert list(tmp_path.iterdir()) == []
 
 
 def test_center_line_lining_matches_a_direct_search(hourglass):
-    line = ve.center_line(
+    line = viewer_line.center_line(
         hourglass.atoms, hourglass.profile, radii_A=hourglass.radii_A, contact_tol_A=0.5
     )
     labels = hourglass.atoms.residue_labels()
@@ -431,3 +460,23 @@ def test_export_bad_input_is_one_line_exit_2_and_no_file(
     assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
     assert message in err
     assert list(tmp_path.iterdir()) == []  # not even the map before the mesh
+
+
+@pytest.mark.parametrize("name", ["pore.ply", "pore.obj", "pore.glb"])
+def test_export_command_writes_the_tube(model_file, tmp_path, capsys, name):
+    path = tmp_path / name
+    assert main(["export", str(model_file), *AXIS, "--tube", str(path)]) == 0
+    assert f"{name}: tube of" in capsys.readouterr().out
+    mesh = trimesh.load(path, force="mesh", process=False)
+    # ring radius 4 Å less carbon 1.7 Å (Bondi 1964) at the waist, on the z axis here
+    r = np.hypot(mesh.vertices[:, 0], mesh.vertices[:, 1])
+    assert r.min() == pytest.approx(2.3, abs=0.05)
+
+
+def test_export_tube_bad_suffix_is_one_line_and_no_file(model_file, tmp_path, capsys):
+    argv = ["export", str(model_file), *AXIS, "--quiet", "--tube", str(tmp_path / "t.stl")]
+    assert main(argv) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("poreprobe: error: ") and err.count("\n") == 1
+    assert "--tube file must end in .ply, .obj, .glb" in err
+    assert list(tmp_path.iterdir()) == []

@@ -77,7 +77,9 @@ def run(argv: list[str]) -> None:
 
 
 def figure(kind: str, inputs: list[str], *extra: str) -> None:
-    run(["plot", kind, *inputs, "-o", os.path.join(HERE, f"{kind}.png"), "--dpi", DPI, *extra])
+    run(
+        ["plot", kind, *inputs, "--figure", os.path.join(HERE, f"{kind}.png"), "--dpi", DPI, *extra]
+    )
 
 
 def main_script() -> None:
@@ -104,14 +106,14 @@ def main_script() -> None:
                 js["resistance"],
             ]
         )
-        run(["scan", channel, *AXIS, "--probes", "0.5:4:0.25", "--json", js["scan"]])
+        run(["scan", channel, *AXIS, "--probe-radii-A", "0.5:4:0.25", "--json", js["scan"]])
         # invented bench numbers: 6 pA at 150 mM K+ in plain water
         run(
             [
                 "match",
                 channel,
                 *AXIS,
-                "--probes",
+                "--probe-radii-A",
                 "0.5:4:0.25",
                 "--current-pA",
                 "6",
@@ -125,7 +127,9 @@ def main_script() -> None:
                 js["match"],
             ]
         )
-        figure("profile", [js["check"]], "--ion", "K", "--ion-radii", "crystal,hydrated")
+        figure(
+            "profile", [js["check"]], "--figure-ion", "K", "--figure-ion-radii", "crystal,hydrated"
+        )
         figure(
             "overlay", [js["channel"], js["widened"]], "--labels", "invented channel,widened gate"
         )
@@ -134,7 +138,7 @@ def main_script() -> None:
         figure("resistance", [js["resistance"]])
         pdb, dcd = build_breathing(tmp)
         traj = os.path.join(tmp, "traj.json")
-        run(["traj", pdb, dcd, *AXIS, "--step-A", "0.25", "--json", traj])
+        run(["traj", pdb, "--trajectory", dcd, *AXIS, "--step-A", "0.25", "--json", traj])
         figure("kymograph", [traj])
         mesh = os.path.join(tmp, "pore.ply")
         run(
@@ -171,7 +175,7 @@ def render_mesh(ply: str, png: str) -> None:
     from matplotlib.figure import Figure
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
-    from poreprobe.figures import plots
+    from poreprobe.figures.style import FONT_PT
 
     xyz, rgb, faces = read_ply(ply)
     back = xyz[faces].mean(axis=1)[:, 1] > 0
@@ -197,7 +201,7 @@ def render_mesh(ply: str, png: str) -> None:
     ax.view_init(elev=8, azim=-90)
     ax.set_box_aspect(None, zoom=1.9)
     ax.set_axis_off()
-    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)", fontsize=plots.FONT_PT)
+    ax.set_title("pore surface, probe 1.0 Å\n(front half cut away)", fontsize=FONT_PT)
     fig.savefig(png, dpi=int(DPI))
 
 

@@ -47,9 +47,10 @@ from poreprobe.geometry.lining import (
 )
 from poreprobe.geometry.profile import RadiusProfile, radius_profile
 from poreprobe.geometry.superpose import RigidTransform, superpose
+from poreprobe.io.cleaning import select_indices
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import RadiusSet, atom_radii_A, get_radius_set
-from poreprobe.io.structure import Atoms, select_indices
+from poreprobe.io.structure import Atoms
 
 MATCH_WINDOW_A = 3.0
 AXIS_ANGLE_WARN_DEG = 10.0

@@ -166,28 +166,24 @@ def screened_potential_mV(
         return out
     # e / (4 π ε0 ε · 1 Å) in volts
     scale_V = constants.e / (4 * np.pi * constants.epsilon_0 * eps * 1e-10)
-    # pairwise distances through one matrix product, about a common origin for precision;
-    # blocks of points keep the work arrays small, and every step runs in place
-    origin = pos.mean(axis=0)
-    good, src = pts[ok] - origin, pos - origin
-    src_sq = np.einsum("ij,ij->i", src, src)
-    floor = dmin * dmin if dmin > 0 else 0.0
+    # pairwise distances in blocks of points, so the work arrays stay small; cdist and
+    # einsum, not BLAS: these products are too small for threads, which only cost time
+    # on a busy machine (a tenfold slowdown was measured with two threads under load)
+    from scipy.spatial.distance import cdist
+
+    good = pts[ok]
     total = np.empty(len(good))
     block = max(1, 4_000_000 // max(len(q), 1))
     for start in range(0, len(good), block):
-        g = good[start : start + block]
-        d = g @ src.T
-        d *= -2.0
-        d += np.einsum("ij,ij->i", g, g)[:, None]
-        d += src_sq[None, :]
-        np.maximum(d, floor, out=d)
-        np.sqrt(d, out=d)
+        d = cdist(good[start : start + block], pos)
+        if dmin > 0:
+            np.maximum(d, dmin, out=d)
         if lam is not None:
             w = np.exp(d * (-1.0 / lam))
             w /= d
         else:
             w = np.reciprocal(d, out=d)
-        total[start : start + block] = w @ q
+        total[start : start + block] = np.einsum("ij,j->i", w, q)
     out[ok] = total * scale_V * 1e3
     return out
 

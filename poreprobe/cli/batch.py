@@ -2,15 +2,16 @@
 
 from __future__ import annotations
 
-from poreprobe.bench.ions import IONS
 from poreprobe.cli.common import (
     add_axis_args,
     add_backend_args,
-    add_capture_args,
+    add_ion_arg,
     add_output_args,
+    add_probe_args,
     add_profile_args,
     add_structure_args,
     backend_from_args,
+    parse_probe_radii,
     say,
 )
 from poreprobe.errors import InputError
@@ -37,7 +38,9 @@ def register(sub) -> None:
     add_structure_args(p, positional=False)
     add_axis_args(p)
     add_profile_args(p)
-    add_capture_args(p, several=True)
+    add_probe_args(
+        p.add_argument_group("capture radius (probe-size scan per file)"), probe_radii=None
+    )
     g = p.add_argument_group("readiness check")
     g.add_argument(
         "--check",
@@ -46,11 +49,10 @@ def register(sub) -> None:
         "about three more profiles per file) and give its findings per "
         "severity and the permeation verdict",
     )
-    g.add_argument(
-        "--ion",
-        default="K",
-        help=f"ion for the verdict with --check: {', '.join(IONS)} (crystal and "
-        "hydrated radii in Å from Shannon 1976 and Nightingale 1959; default K)",
+    add_ion_arg(
+        g,
+        purpose="the permeation verdict of --check (crystal and hydrated radii in Å from "
+        "Shannon 1976 and Nightingale 1959)",
     )
     add_backend_args(p)
     add_output_args(p)
@@ -86,10 +88,12 @@ def run(args) -> int:
         axis_direction=args.axis_direction,
         axis_selections=args.axis_selections,
         entry=args.entry,
-        capture_probe_radii_A=args.capture_probe_radii_A,
-        capture_from_end=args.capture_from_end,
-        capture_spacing_A=args.capture_spacing_A,
-        capture_pore_radius_A=args.capture_pore_radius_A,
+        capture_probe_radii_A=(
+            None if args.probe_radii_A is None else parse_probe_radii(args.probe_radii_A)
+        ),
+        capture_from_end=args.entry_end,
+        capture_spacing_A=args.spacing_A,
+        capture_pore_radius_A=args.search_radius_A,
         check=args.check,
         ion=args.ion,
     )

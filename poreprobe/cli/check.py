@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from poreprobe.bench.ions import IONS
 from poreprobe.checks.quality import (
     B_FACTOR_SIGMAS,
     NEAR_DISTANCE_A,
@@ -12,9 +11,12 @@ from poreprobe.checks.quality import (
     check_model,
 )
 from poreprobe.cli import chemistry_options as chem_opts
+from poreprobe.cli import map_options as map_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
+    add_ion_arg,
+    add_lining_distance_arg,
     add_output_args,
     add_profile_args,
     add_structure_args,
@@ -25,7 +27,7 @@ from poreprobe.cli.common import (
     say,
 )
 from poreprobe.geometry.clashes import CLASH_FRACTION
-from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A, LINING_DISTANCE_A
+from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A
 from poreprobe.io.export import to_csv, to_json
 from poreprobe.io.radii import atom_radii_A
 from poreprobe.io.structure import read_structure
@@ -58,19 +60,12 @@ def register(sub) -> None:
     add_axis_args(p)
     add_lining_profile_args(p)
     g = p.add_argument_group("checks")
-    g.add_argument(
-        "--ion",
-        default="K",
-        help=f"ion for the permeation verdict: {', '.join(IONS)} (crystal and "
-        "hydrated radii in Å from Shannon 1976 and Nightingale 1959; default K)",
+    add_ion_arg(
+        g,
+        purpose="its crystal and hydrated radii (Å; Shannon 1976, Nightingale 1959) set the "
+        "permeation verdict, its charge the potential energy",
     )
-    g.add_argument(
-        "--lining-distance-A",
-        type=float,
-        default=LINING_DISTANCE_A,
-        help="atoms whose surface is within this distance (Å) of a profile sphere "
-        f"line the pore (default {LINING_DISTANCE_A:g})",
-    )
+    add_lining_distance_arg(g)
     g.add_argument(
         "--near-distance-A",
         type=float,
@@ -102,6 +97,7 @@ def register(sub) -> None:
     add_output_args(p)
     add_figure_args(p, ion_bands=False)
     chem_opts.add_chemistry_args(p)
+    map_opts.add_map_args(p, with_file=True)
     p.set_defaults(func=run)
 
 
@@ -160,6 +156,14 @@ def lining_csv(report, path=None) -> str:
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
+    if args.density_map:
+        from poreprobe.io.density_map import _check_map_path
+
+        if args.resolution_A is None:
+            from poreprobe.errors import InputError
+
+            raise InputError("--density-map needs --resolution-A (the map's resolution, Å)")
+        _check_map_path(args.density_map)
     atoms = read_structure(
         args.structure,
         trajectory=args.trajectory,
@@ -198,16 +202,32 @@ def run(args) -> int:
         warn=False,
     )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
+    density = None
+    if args.density_map:
+        from dataclasses import replace
+
+        from poreprobe.checks.model_checks import sorted_findings
+
+        density = map_opts.map_check_from_args(
+            args, args.density_map, wall_atoms, report.profile, report.lining
+        )
+        report = replace(report, findings=sorted_findings(report.findings + density.findings))
+    result = chem_opts.with_chemistry(report, chem)
+    if density is not None:
+        result["density_map"] = density.to_dict()
     if args.json:
-        to_json(chem_opts.with_chemistry(report, chem), args.json)
+        to_json(result, args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in report.report_lines() + ([""] + chem.report_lines() if chem else []):
+    lines = report.report_lines() + ([""] + chem.report_lines() if chem else [])
+    for line in lines + ([""] + density.report_lines() if density else []):
         say(args, line)
     if args.figure:
-        if chem is None:
+        if density is not None:
+            map_opts.save_map_figure(args, density)
+        elif chem is None:
             save_figure(args, "profile", report)
         else:
             chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(report, chem))

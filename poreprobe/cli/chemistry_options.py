@@ -99,11 +99,8 @@ def add_chemistry_args(parser: argparse.ArgumentParser) -> None:
 
 
 def potential_ion(args: argparse.Namespace) -> str:
-    """The ion whose energy is reported: ``check``'s --ion, the first figure --ion, or K."""
-    ion = getattr(args, "ion", None)
-    if isinstance(ion, list):
-        return ion[0] if ion else "K"
-    return ion or "K"
+    """The ion whose energy is reported: the command's --ion (default K)."""
+    return args.ion
 
 
 def check_chemistry_args(args: argparse.Namespace) -> None:

@@ -3,15 +3,25 @@
 from __future__ import annotations
 
 import argparse
+import math
 import sys
+
+import numpy as np
 
 from poreprobe.geometry.axis import AXIS_METHODS, PoreAxis, find_pore_axis
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RADIUS_SETS, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms, read_structure
 
 
-def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = True) -> None:
-    """STRUCTURE and the options that control reading and cleaning it."""
+def add_structure_args(
+    parser: argparse.ArgumentParser, *, positional: bool = True, single_frame: bool = True
+) -> None:
+    """STRUCTURE and the options that control reading and cleaning it.
+
+    One definition for every command that reads a structure. ``single_frame``
+    False (``traj``) leaves out --model and --frame: that command reads every
+    frame, chosen with --frame-start, --frame-stop and --frame-step.
+    """
     if positional:
         parser.add_argument(
             "structure",
@@ -23,22 +33,23 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
     g.add_argument(
         "--trajectory",
         metavar="FILE",
-        help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD)",
+        help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD, XTC, TRR)",
     )
-    g.add_argument(
-        "--model",
-        type=int,
-        default=0,
-        metavar="N",
-        help="0-based model index of a multi-model PDB/mmCIF (default 0)",
-    )
-    g.add_argument(
-        "--frame",
-        type=int,
-        default=0,
-        metavar="N",
-        help="0-based frame of a trajectory (default 0)",
-    )
+    if single_frame:
+        g.add_argument(
+            "--model",
+            type=int,
+            default=0,
+            metavar="N",
+            help="0-based model index of a multi-model PDB/mmCIF (default 0)",
+        )
+        g.add_argument(
+            "--frame",
+            type=int,
+            default=0,
+            metavar="N",
+            help="0-based frame of --trajectory (default 0)",
+        )
     g.add_argument(
         "--altloc",
         default="occupancy",
@@ -56,9 +67,23 @@ def add_structure_args(parser: argparse.ArgumentParser, *, positional: bool = Tr
         "--keep-hetero", action="store_true", help="keep ligands, lipids and other hetero groups"
     )
     g.add_argument(
-        "--select", metavar="SEL", help="MDAnalysis selection limiting the atoms that count"
+        "--select",
+        metavar="SEL",
+        help="MDAnalysis selection limiting the atoms that count (default: all polymer atoms)",
     )
     add_radii_args(g)
+
+
+def cleaning_from_args(args: argparse.Namespace) -> dict:
+    """Keyword options of the structure readers for the shared cleaning options."""
+    return {
+        "altloc": args.altloc,
+        "hydrogens": not args.no_hydrogens,
+        "waters": args.keep_waters,
+        "ions": args.keep_ions,
+        "hetero": args.keep_hetero,
+        "selection": args.select,
+    }
 
 
 def add_radii_args(group) -> None:
@@ -72,7 +97,7 @@ def add_radii_args(group) -> None:
     group.add_argument(
         "--radii-file",
         metavar="TOML",
-        help="TOML file overriding radii ([elements] / [atoms] tables, Å)",
+        help="TOML file overriding radii ([elements] / [residues.RESNAME] tables, Å)",
     )
 
 
@@ -152,12 +177,7 @@ def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
         trajectory=args.trajectory,
         model=args.model,
         frame=args.frame,
-        altloc=args.altloc,
-        hydrogens=not args.no_hydrogens,
-        waters=args.keep_waters,
-        ions=args.keep_ions,
-        hetero=args.keep_hetero,
-        selection=args.select,
+        **cleaning_from_args(args),
     )
 
 
@@ -239,46 +259,139 @@ def backend_from_args(args: argparse.Namespace) -> tuple[str, int | None]:
     return backend, workers
 
 
-def add_capture_args(parser: argparse.ArgumentParser, *, several: bool) -> None:
-    """Capture-radius options of traj (one probe) and batch (several probes)."""
-    g = parser.add_argument_group("capture radius (probe-size scan)")
-    if several:
-        g.add_argument(
-            "--capture-probe-radii-A",
-            type=float,
-            nargs="+",
-            metavar="P",
-            help="also give the capture radius for these probe radii (Å, increasing)",
-        )
-    else:
-        g.add_argument(
-            "--capture-probe-radius-A",
-            type=float,
-            metavar="P",
-            help="also give, per frame, the capture radius for a probe of this "
-            "radius (Å); costs about one more profile per frame",
-        )
-    g.add_argument(
-        "--capture-from-end",
-        "--from",
-        dest="capture_from_end",
+DEFAULT_PROBE_RADII = "0.5:6:0.25"
+MAX_PROBES = 1000
+
+
+def add_probe_args(group, *, probe_radii: str | None = DEFAULT_PROBE_RADII) -> None:
+    """--probe-radii-A, --entry-end, --spacing-A and --search-radius-A.
+
+    The probe-size scan's options, the same in ``scan``, ``match`` and ``batch``.
+    ``probe_radii`` None (``batch``): no scan unless --probe-radii-A is given.
+    """
+    shown = probe_radii or "none: no scan"
+    group.add_argument(
+        "--probe-radii-A",
+        default=probe_radii,
+        metavar="RADII",
+        help="probe radii in Å: START:STOP:STEP (STOP included) or a comma-separated "
+        f"list (default {shown})",
+    )
+    add_entry_end_arg(group)
+    add_grid_args(group)
+
+
+def add_entry_end_arg(group) -> None:
+    """--entry-end: the end of the axis where probes enter."""
+    group.add_argument(
+        "--entry-end",
         choices=("low", "high"),
         default="low",
         help="end of the axis (in s) where probes enter; default low, which is "
         "the --entry end when --entry is given",
     )
-    g.add_argument(
-        "--capture-spacing-A",
+
+
+def add_grid_args(group) -> None:
+    """--spacing-A and --search-radius-A: the grid of the probe scan and the reach map."""
+    group.add_argument(
+        "--spacing-A",
         type=float,
         default=0.5,
-        help="grid spacing of the scan in Å (default 0.5)",
+        help="grid spacing of the probe scan and maps in Å (default 0.5)",
     )
-    g.add_argument(
-        "--capture-pore-radius-A",
+    group.add_argument(
+        "--search-radius-A",
         type=float,
         default=15.0,
-        help="radius in Å around the axis the scan searches (default 15)",
+        help="radius in Å of the cylinder around the axis that the grid covers; "
+        "free space reaching it counts as open bulk (default 15)",
     )
+
+
+def add_probe_radius_arg(group, *, purpose: str) -> None:
+    """--probe-radius-A: one probe radius (``export``'s mesh, ``traj``'s capture radius)."""
+    group.add_argument(
+        "--probe-radius-A",
+        type=float,
+        metavar="P",
+        help=f"probe radius in Å {purpose}",
+    )
+
+
+def add_ion_arg(group, *, purpose: str) -> None:
+    """--ion: the permeant ion (``match``, ``check``, ``batch``, and ``profile``'s potential)."""
+    from poreprobe.bench.ions import IONS
+
+    group.add_argument(
+        "--ion",
+        default="K",
+        metavar="ION",
+        help=f"permeant ion: {', '.join(IONS)} (default K); {purpose}",
+    )
+
+
+def add_lining_distance_arg(group) -> None:
+    """--lining-distance-A: how close an atom's surface comes to a profile sphere to line it."""
+    from poreprobe.geometry.lining import LINING_DISTANCE_A
+
+    group.add_argument(
+        "--lining-distance-A",
+        type=float,
+        default=LINING_DISTANCE_A,
+        help="atoms whose surface is within this distance (Å) of a profile sphere "
+        f"line the pore (default {LINING_DISTANCE_A:g})",
+    )
+
+
+def parse_probe_radii(text: str) -> np.ndarray:
+    """Probe radii (Å) from ``START:STOP:STEP`` (STOP included), ``START:STOP`` (step 0.25)
+    or a comma-separated list.
+
+    Raises
+    ------
+    InputError
+        Not numbers, a radius <= 0, STOP < START, STEP <= 0, a list not
+        increasing, or too many probes.
+    """
+    from poreprobe.errors import InputError
+
+    name = "--probe-radii-A"
+    text = str(text).strip()
+    if ":" not in text:
+        try:
+            radii = np.array([float(v) for v in text.split(",")], dtype=float)
+        except ValueError as exc:
+            raise InputError(
+                f"{name} must be START:STOP:STEP or a comma-separated list in Å, got {text!r}"
+            ) from exc
+        if not np.isfinite(radii).all() or (radii <= 0).any():
+            raise InputError(f"{name} must be finite radii > 0 Å, got {text!r}")
+        if (np.diff(radii) <= 0).any():
+            raise InputError(f"{name} must be increasing, got {text!r}")
+        if len(radii) > MAX_PROBES:
+            raise InputError(f"{name} gives {len(radii)} probes (limit {MAX_PROBES})")
+        return radii
+    parts = text.split(":")
+    if len(parts) not in (2, 3):
+        raise InputError(f"{name} must be START:STOP:STEP in Å, got {text!r}")
+    try:
+        start, stop = float(parts[0]), float(parts[1])
+        step = float(parts[2]) if len(parts) == 3 else 0.25
+    except ValueError as exc:
+        raise InputError(f"{name} must be numbers START:STOP:STEP in Å, got {text!r}") from exc
+    if not all(math.isfinite(v) for v in (start, stop, step)):
+        raise InputError(f"{name} must be finite, got {text!r}")
+    if start <= 0:
+        raise InputError(f"{name} START must be > 0 Å, got {start:g}")
+    if stop < start:
+        raise InputError(f"{name} STOP must be >= START, got {start:g}:{stop:g}")
+    if step <= 0:
+        raise InputError(f"{name} STEP must be > 0 Å, got {step:g}")
+    count = int(math.floor((stop - start) / step + 1e-9)) + 1
+    if count > MAX_PROBES:
+        raise InputError(f"{name} gives {count} probes (limit {MAX_PROBES}); use a larger STEP")
+    return np.round(start + step * np.arange(count), 10)
 
 
 def add_figure_size_args(group) -> None:
@@ -305,18 +418,21 @@ def add_figure_size_args(group) -> None:
 
 
 def add_ion_band_args(group) -> None:
-    """--ion and --ion-radii: reference ion radii drawn on profile and capture figures."""
+    """--figure-ion and --figure-ion-radii: reference ion radii drawn on figures.
+
+    Not --ion, which names the permeant ion of ``match``, ``check`` and ``batch``.
+    """
     group.add_argument(
-        "--ion",
+        "--figure-ion",
         action="append",
         metavar="ION",
         help="draw this ion's reference radii (K, Na, Li, Rb, Cs, Cl); repeat for several ions",
     )
     group.add_argument(
-        "--ion-radii",
+        "--figure-ion-radii",
         default="crystal,hydrated",
         metavar="KINDS",
-        help="which radii of --ion, comma-separated: crystal (Shannon 1976), "
+        help="which radii of --figure-ion, comma-separated: crystal (Shannon 1976), "
         "hydrated (Nightingale 1959), stokes (from D); "
         "default crystal,hydrated (Å)",
     )
@@ -350,7 +466,7 @@ def add_figure_args(
 def check_figure_path(args: argparse.Namespace) -> None:
     """Reject a bad --figure suffix, size or ion before any long computation."""
     if getattr(args, "figure", None):
-        from poreprobe.figures.plots import check_figure_options
+        from poreprobe.figures.style import check_figure_options
 
         check_figure_options(
             args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
@@ -359,16 +475,12 @@ def check_figure_path(args: argparse.Namespace) -> None:
 
 
 def figure_ion_radii(args: argparse.Namespace) -> list[tuple[str, float]]:
-    """Labelled reference radii named by --ion / --ion-radii (empty without them).
-
-    Only for parsers that took :func:`add_ion_band_args`; a command whose own --ion
-    means something else (``match``) has no --ion-radii and gets no bands here.
-    """
-    if not getattr(args, "ion", None) or not hasattr(args, "ion_radii"):
+    """Labelled reference radii named by --figure-ion / --figure-ion-radii (empty without them)."""
+    if not getattr(args, "figure_ion", None):
         return []
-    from poreprobe.figures.plots import ion_reference_radii
+    from poreprobe.figures.references import ion_reference_radii
 
-    return ion_reference_radii(args.ion, args.ion_radii)
+    return ion_reference_radii(args.figure_ion, args.figure_ion_radii)
 
 
 def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> None:
@@ -380,12 +492,11 @@ def save_figure(args: argparse.Namespace, kind: str, *results, **options) -> Non
     path = getattr(args, "figure", None)
     if not path:
         return
-    from poreprobe.figures import plots
+    from poreprobe.figures import style
+    from poreprobe.figures.draw import draw_figure
 
     if "ion_radii" not in options:
         options["ion_radii"] = figure_ion_radii(args)
-    ax = plots.draw_figure(
-        kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options
-    )
-    plots.save_figure(ax, path, dpi=args.dpi)
+    ax = draw_figure(kind, results, width_mm=args.width_mm, height_mm=args.height_mm, **options)
+    style.save_figure(ax, path, dpi=args.dpi)
     say(args, f"figure: {path}")

@@ -1,4 +1,4 @@
-"""``poreprobe export``: the pore as a map, a surface and a centre line for molecular viewers."""
+"""``poreprobe export``: the pore as a map, a surface, a centre line and a tube for viewers."""
 
 from __future__ import annotations
 
@@ -7,6 +7,10 @@ from dataclasses import replace
 from poreprobe._validate import check_positive, check_range
 from poreprobe.cli.common import (
     add_axis_args,
+    add_entry_end_arg,
+    add_grid_args,
+    add_lining_distance_arg,
+    add_probe_radius_arg,
     add_profile_args,
     add_structure_args,
     radius_set_from_args,
@@ -20,12 +24,15 @@ from poreprobe.io.radii import atom_radii_A
 def register(sub) -> None:
     p = sub.add_parser(
         "export",
-        help="pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) for molecular viewers",
+        help="pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
+        "for molecular viewers",
         description="Write the pore in the model's own coordinates for any molecular viewer: "
         "the reach (or clearance) field as a CCP4/MRC map (its isosurface at "
         "level p bounds where the centre of a probe of radius p gets from the "
         "entry, or fits), the probe-centre surface for one probe radius as a PLY "
-        "or OBJ mesh, and the profile's centre line as mmCIF. Model-based "
+        "or OBJ mesh, the profile's centre line as an mmCIF table of points, and "
+        "the pore as a tube whose rings are the profile's circles (PLY or glTF "
+        "binary). Model-based "
         "estimates: they depend on the radius set.",
     )
     add_structure_args(p)
@@ -38,12 +45,18 @@ def register(sub) -> None:
     g.add_argument(
         "--mesh",
         metavar="FILE",
-        help="pore surface for --probe-radius-A, .ply or .obj (coordinates in Å)",
+        help="pore surface for --probe-radius-A, .ply, .obj or .glb (coordinates in Å)",
     )
     g.add_argument(
         "--centerline",
         metavar="FILE",
-        help="centre line with radius and lining residues per point, .cif",
+        help="centre line: a table of points (s, centre, radius, lining residues), .cif",
+    )
+    g.add_argument(
+        "--tube",
+        metavar="FILE",
+        help="the pore as a tube mesh along the centre line, each ring at the pore "
+        "radius, .ply, .obj or .glb (coordinates in Å)",
     )
     o = p.add_argument_group("export options")
     o.add_argument(
@@ -54,55 +67,25 @@ def register(sub) -> None:
         "there from the entry end (default), or clearance, the radius of the "
         "largest empty sphere centred there",
     )
-    o.add_argument(
-        "--from",
-        dest="from_end",
-        choices=("low", "high"),
-        default="low",
-        help="end of the axis where probes enter, for the reach map (default low: the --entry end)",
+    add_entry_end_arg(o)
+    add_probe_radius_arg(
+        o, purpose="for --mesh (required with --mesh; 0 gives the atoms' van der Waals surface)"
     )
-    o.add_argument(
-        "--probe-radius-A",
-        "--probe-radius",
-        dest="probe_radius_A",
-        type=float,
-        metavar="P",
-        help="probe radius for --mesh in Å (required with --mesh; "
-        "0 gives the atoms' van der Waals surface)",
-    )
-    o.add_argument(
-        "--spacing-A",
-        type=float,
-        default=0.5,
-        help="grid spacing of the map and mesh in Å (default 0.5)",
-    )
-    o.add_argument(
-        "--region-radius-A",
-        type=float,
-        default=None,
-        help="radius in Å of the cylinder around the pore axis that the map and "
-        "mesh cover (default: the widest enclosed profile sphere plus 2 Å)",
-    )
+    add_grid_args(o)
     o.add_argument(
         "--no-mesh-colors",
         dest="mesh_colors",
         action="store_false",
-        help="do not colour the mesh by the local pore radius",
+        help="do not colour the mesh and tube by the local pore radius",
     )
     o.add_argument(
         "--radius-range-A",
         type=float,
         nargs=2,
         metavar=("LOW", "HIGH"),
-        help="radii (Å) at the two ends of the mesh colour map (default: the mesh's own range)",
+        help="radii (Å) at the two ends of the mesh and tube colour map (default: their own range)",
     )
-    o.add_argument(
-        "--contact-tol-A",
-        type=float,
-        default=0.3,
-        help="atoms within this distance (Å) of a profile sphere line it "
-        "(centre line; default 0.3)",
-    )
+    add_lining_distance_arg(o)
     o.add_argument(
         "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
     )
@@ -110,18 +93,15 @@ def register(sub) -> None:
 
 
 def _check_request(args) -> None:
-    from poreprobe.figures.viewer_export import (
-        CENTERLINE_SUFFIXES,
-        MAP_SUFFIXES,
-        MESH_SUFFIXES,
-        check_suffix,
-    )
+    from poreprobe.figures.mesh_files import MESH_SUFFIXES
+    from poreprobe.figures.viewer_line import CENTERLINE_SUFFIXES
+    from poreprobe.figures.viewer_map import MAP_SUFFIXES
+    from poreprobe.io.export import check_suffix
 
-    if not (args.map or args.mesh or args.centerline):
-        raise InputError("nothing to export: give --map, --mesh and/or --centerline")
+    if not (args.map or args.mesh or args.centerline or args.tube):
+        raise InputError("nothing to export: give --map, --mesh, --centerline and/or --tube")
     check_range(args.spacing_A, "spacing_A", 0.05, 5.0)
-    if args.region_radius_A is not None:
-        check_positive(args.region_radius_A, "region_radius_A")
+    check_positive(args.search_radius_A, "search_radius_A")
     if args.map:
         check_suffix(args.map, MAP_SUFFIXES, "--map")
     if args.mesh:
@@ -130,31 +110,31 @@ def _check_request(args) -> None:
             raise InputError("--mesh needs --probe-radius-A (the probe radius in Å)")
     if args.centerline:
         check_suffix(args.centerline, CENTERLINE_SUFFIXES, "--centerline")
+    if args.tube:
+        check_suffix(args.tube, MESH_SUFFIXES, "--tube")
 
 
 def _reach_map(atoms, prof, radii_A, args):
     """The reach field around the pore, resampled onto a Cartesian grid."""
-    from poreprobe.figures import viewer_export as ve
+    from poreprobe.figures import viewer_map
     from poreprobe.geometry.reach import reach_field
 
-    region = (
-        ve.default_region_radius_A(prof) if args.region_radius_A is None else args.region_radius_A
-    )
+    region = args.search_radius_A
     field = reach_field(
         atoms,
         prof.axis,
         radii_A=radii_A,
         spacing_A=args.spacing_A,
-        from_end=args.from_end,
+        from_end=args.entry_end,
         pore_radius_A=region,
         max_probe_A=max(6.0, args.probe_radius_A or 0.0),
     )
     field = replace(field, radius_set=prof.radius_set, source=atoms.source)
-    return ve.reach_grid(field, quiet=args.quiet)
+    return viewer_map.reach_grid(field, quiet=args.quiet)
 
 
 def run(args) -> int:
-    from poreprobe.figures import viewer_export as ve
+    from poreprobe.figures import viewer_line, viewer_map, viewer_mesh, viewer_tube
 
     _check_request(args)
     atoms, _, prof = compute_profile(args)
@@ -165,28 +145,34 @@ def run(args) -> int:
         f"radius set {prof.radius_set}, narrowest: {prof.narrowest_text()} "
         "- a model-based estimate",
     )
-    grid = map_grid = surface = line = None
+    grid = map_grid = surface = line = tube = None
     if args.mesh or (args.map and args.map_field == "clearance"):
-        grid = ve.clearance_grid(
+        grid = viewer_map.clearance_grid(
             atoms,
             prof,
             radii_A=radii_A,
             spacing_A=args.spacing_A,
-            region_radius_A=args.region_radius_A,
+            region_radius_A=args.search_radius_A,
             quiet=args.quiet,
         )
         map_grid = grid
     if args.map and args.map_field == "reach":
         map_grid = _reach_map(atoms, prof, radii_A, args)
     if args.mesh:
-        surface = ve.pore_surface(grid, prof, probe_radius_A=args.probe_radius_A)
-    if args.centerline:
-        line = ve.center_line(atoms, prof, radii_A=radii_A, contact_tol_A=args.contact_tol_A)
+        surface = viewer_mesh.pore_surface(grid, prof, probe_radius_A=args.probe_radius_A)
+    if args.centerline or args.tube:
+        line = viewer_line.center_line(
+            atoms, prof, radii_A=radii_A, contact_tol_A=args.lining_distance_A
+        )
+    if args.tube:
+        tube = viewer_tube.pore_tube(line)
     # everything is computed before the first file is written
     if args.map:
-        ve.write_map(map_grid, args.map)
+        viewer_map.write_map(map_grid, args.map)
         what = (
-            "reach from the " + args.from_end + " end" if map_grid.field == "reach" else "clearance"
+            "reach from the " + args.entry_end + " end"
+            if map_grid.field == "reach"
+            else "clearance"
         )
         say(
             args,
@@ -196,7 +182,7 @@ def run(args) -> int:
             + ("gets from the entry" if map_grid.field == "reach" else "fits"),
         )
     if surface is not None:
-        ve.write_mesh(
+        viewer_mesh.write_mesh(
             surface, args.mesh, color_by_radius=args.mesh_colors, radius_range_A=args.radius_range_A
         )
         n_open = len(surface.boundary_edges())
@@ -210,7 +196,16 @@ def run(args) -> int:
                 else " (closed)"
             ),
         )
-    if line is not None:
-        ve.write_center_line(line, args.centerline)
+    if args.centerline:
+        viewer_line.write_center_line(line, args.centerline)
         say(args, f"{args.centerline}: {len(line.s_A)} centre-line points")
+    if tube is not None:
+        viewer_mesh.write_mesh(
+            tube, args.tube, color_by_radius=args.mesh_colors, radius_range_A=args.radius_range_A
+        )
+        say(
+            args,
+            f"{args.tube}: tube of {len(tube.vertices_A)} vertices, {len(tube.faces)} "
+            f"triangles, {tube.n_sides} per ring at the pore radius",
+        )
     return 0

@@ -1,6 +1,6 @@
 """Command-line interface: a thin layer over the Python API.
 
-Each command lives in its own ``cli_<name>.py`` module exposing ``register(subparsers)``,
+Each command lives in its own module ``poreprobe/cli/<name>.py`` exposing ``register(subparsers)``,
 which adds a sub-parser whose ``func`` default takes the parsed arguments and returns
 an exit code. Errors a user can cause become one line ``poreprobe: error: ...`` on
 stderr and exit code 2.
@@ -41,6 +41,11 @@ COMMANDS = {
         "poreprobe.cli.check",
         "is this model ready? lining residues, model checks, permeation verdict",
     ),
+    "mapcheck": (
+        "poreprobe.cli.mapcheck",
+        "the model against its density map at the pore: unmodelled density, side-chain "
+        "support, the pore radius in the map",
+    ),
     "compare": (
         "poreprobe.cli.compare",
         "compare the pores of two or more models on one axial frame",
@@ -48,7 +53,8 @@ COMMANDS = {
     "plot": ("poreprobe.cli.plot", "draw a figure (PNG, SVG or PDF) from saved JSON results"),
     "export": (
         "poreprobe.cli.export",
-        "pore map (CCP4/MRC), surface (PLY/OBJ) and centre line (mmCIF) for molecular viewers",
+        "pore map (CCP4/MRC), surface and tube (PLY/OBJ/glTF), centre line (mmCIF) "
+        "for molecular viewers",
     ),
     "traj": (
         "poreprobe.cli.traj",
@@ -59,7 +65,16 @@ COMMANDS = {
 
 
 class OneLineParser(argparse.ArgumentParser):
-    """An ArgumentParser whose errors are one line and exit code 2."""
+    """An ArgumentParser whose errors are one line and exit code 2.
+
+    Options are never abbreviated: an option is the whole name the README's
+    vocabulary table gives, and what the user typed can be read off the line
+    (:func:`poreprobe.cli.dependencies.given_options`).
+    """
+
+    def __init__(self, *args, **kwargs):
+        kwargs.setdefault("allow_abbrev", False)
+        super().__init__(*args, **kwargs)
 
     def error(self, message):  # noqa: D102
         sys.stderr.write(f"poreprobe: error: {message}\n")
@@ -95,6 +110,11 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     return parser
 
 
+def _subparsers(parser: argparse.ArgumentParser) -> argparse._SubParsersAction:
+    """The sub-parsers action of the top-level parser (argparse keeps it private)."""
+    return next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))
+
+
 def _command_in(argv: list[str]) -> str:
     """The command named on the command line ('' when none is: top-level help or usage)."""
     for word in argv:
@@ -114,6 +134,10 @@ def main(argv=None) -> int:
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
+    from poreprobe.cli.dependencies import check_dependent_options, given_options
+
+    command_parser = _subparsers(parser).choices[args.command]
+    args.given = given_options(command_parser, argv[argv.index(args.command) + 1 :])
     logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
     # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
     logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
@@ -122,6 +146,7 @@ def main(argv=None) -> int:
         if getattr(args, "quiet", False):
             warnings.simplefilter("ignore")
         try:
+            check_dependent_options(args.command, args, args.given)
             return int(args.func(args) or 0)
         except PoreprobeError as exc:
             sys.stderr.write(f"poreprobe: error: {exc}\n")

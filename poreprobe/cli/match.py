@@ -17,20 +17,21 @@ from poreprobe.bench.capture import (
     GEOMETRY_FACTORS,
     estimate_capture_radius,
 )
-from poreprobe.bench.ions import IONS, get_ion
+from poreprobe.bench.ions import get_ion
 from poreprobe.bench.match import match_scan
 from poreprobe.bench.match_intervals import MatchInterval
 from poreprobe.bench.viscosity import VISCOGENS, diffusion_coefficient
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
+    add_ion_arg,
     add_output_args,
+    add_probe_args,
     add_structure_args,
     check_figure_path,
     save_figure,
     say,
 )
-from poreprobe.cli.scan import add_scan_args
 from poreprobe.cli.scan import compute as scan_compute
 from poreprobe.errors import InputError
 from poreprobe.io.export import to_json
@@ -55,7 +56,7 @@ def register(sub) -> None:
     )
     add_structure_args(p, positional=False)
     add_axis_args(p)
-    add_scan_args(p.add_argument_group("probe-size scan (with STRUCTURE)"))
+    add_probe_args(p.add_argument_group("probe-size scan (with STRUCTURE)"))
 
     b = p.add_argument_group("bench measurement")
     b.add_argument(
@@ -94,12 +95,9 @@ def register(sub) -> None:
         metavar="SD",
         help="uncertainty of the concentration, mM (default 0)",
     )
-    b.add_argument(
-        "--ion",
-        default="K",
-        metavar="ION",
-        help=f"permeant ion: {', '.join(IONS)} (default K); sets the valence, D at "
-        "25 °C and the radii compared",
+    add_ion_arg(
+        b,
+        purpose="sets the valence, D at 25 °C and the radii compared",
     )
     b.add_argument(
         "--charge",
@@ -153,7 +151,6 @@ def register(sub) -> None:
     )
     d.add_argument(
         "--diffusion-m2-per-s",
-        "--diffusion-m2-s",
         dest="diffusion_m2_per_s",
         type=float,
         default=None,
@@ -164,7 +161,6 @@ def register(sub) -> None:
     )
     d.add_argument(
         "--diffusion-sd-m2-per-s",
-        "--diffusion-sd-m2-s",
         dest="diffusion_sd_m2_per_s",
         type=float,
         default=0.0,

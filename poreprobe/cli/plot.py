@@ -36,7 +36,10 @@ def register(sub) -> None:
     )
     p.add_argument("inputs", metavar="INPUT", nargs="+", help="JSON files written by poreprobe")
     p.add_argument(
-        "-o", "--output", metavar="FIG", required=True, help="figure file: .png, .svg or .pdf"
+        "--figure",
+        metavar="FILE",
+        required=True,
+        help="figure file: PNG, SVG or PDF by the suffix",
     )
     g = p.add_argument_group("figure")
     add_figure_size_args(g)
@@ -70,10 +73,11 @@ def read_json(path: str) -> dict:
 
 
 def run(args) -> int:
-    from poreprobe.figures import plots
+    from poreprobe.figures.draw import draw_figure
+    from poreprobe.figures.style import check_figure_options, save_figure
 
-    plots.check_figure_options(
-        args.output, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
+    check_figure_options(
+        args.figure, width_mm=args.width_mm, height_mm=args.height_mm, dpi=args.dpi
     )
     labels = None
     if args.labels:
@@ -82,10 +86,10 @@ def run(args) -> int:
             raise InputError("--labels applies to the overlay figure only")
     if args.band and args.kind != "overlay":
         raise InputError("--band applies to the overlay figure only")
-    if args.ion and args.kind in ("resistance", "kymograph"):
-        raise InputError(f"--ion does not apply to the {args.kind} figure")
+    if args.figure_ion and args.kind in ("resistance", "kymograph"):
+        raise InputError(f"--figure-ion does not apply to the {args.kind} figure")
     results = [read_json(path) for path in args.inputs]
-    ax = plots.draw_figure(
+    ax = draw_figure(
         args.kind,
         results,
         width_mm=args.width_mm,
@@ -94,6 +98,6 @@ def run(args) -> int:
         labels=labels,
         band=args.band,
     )
-    plots.save_figure(ax, args.output, dpi=args.dpi)
-    say(args, f"{args.kind} figure: {args.output}")
+    save_figure(ax, args.figure, dpi=args.dpi)
+    say(args, f"{args.kind} figure: {args.figure}")
     return 0

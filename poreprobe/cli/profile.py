@@ -6,6 +6,7 @@ from poreprobe.cli import chemistry_options as chem_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
+    add_ion_arg,
     add_output_args,
     add_profile_args,
     add_structure_args,
@@ -28,7 +29,8 @@ def register(sub) -> None:
     )
     add_structure_args(p)
     add_axis_args(p)
-    add_profile_args(p)
+    g = add_profile_args(p)
+    add_ion_arg(g, purpose="its charge gives the potential energy of the pore chemistry")
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
     chem_opts.add_chemistry_args(p)

@@ -2,7 +2,7 @@
 
 Forward: ``poreprobe resistance STRUCTURE [--segments ...] [--electrolyte KCl --conc-mM 150]``.
 Inverse: ``poreprobe resistance --from-conductances g0:sd,g_entry:sd,g_far:sd
---factor-entry F --factor-far F`` (with STRUCTURE too, the forward prediction is
+--raised-entry-factor F --raised-far-factor F`` (with STRUCTURE too, the forward prediction is
 reported beside it).
 """
 
@@ -119,12 +119,14 @@ def register(sub) -> None:
     bath.add_argument(
         "--electrolyte",
         choices=sorted(CONDUCTIVITY_TABLES),
-        help=f"electrolyte at 25 °C, interpolated in published tables (default "
-        f"{DEFAULT_ELECTROLYTE} {DEFAULT_CONC_MM:g} mM)",
+        default=DEFAULT_ELECTROLYTE,
+        help="electrolyte at 25 °C, interpolated in published tables (default "
+        f"{DEFAULT_ELECTROLYTE})",
     )
     g.add_argument(
         "--conc-mM",
         type=float,
+        default=DEFAULT_CONC_MM,
         metavar="C",
         help=f"electrolyte concentration in mmol/L (default {DEFAULT_CONC_MM:g})",
     )
@@ -150,16 +152,18 @@ def register(sub) -> None:
         "raised, far side's raised",
     )
     g.add_argument(
-        "--factor-entry",
+        "--raised-entry-factor",
         type=float,
         metavar="F",
-        help="resistivity factor applied on the entry side (dimensionless)",
+        help="factor by which the entry side's resistivity was raised in the GE "
+        "measurement (dimensionless)",
     )
     g.add_argument(
-        "--factor-far",
+        "--raised-far-factor",
         type=float,
         metavar="F",
-        help="resistivity factor applied on the far side (dimensionless)",
+        help="factor by which the far side's resistivity was raised in the GF "
+        "measurement (dimensionless)",
     )
     add_output_args(p, csv=False)
     add_figure_args(p)
@@ -230,18 +234,12 @@ def _mobility(items):
 
 
 def _bath_kwargs(args) -> dict:
+    # --conc-mM with a conductivity or resistivity is refused by poreprobe.cli.dependencies
     if args.conductivity_S_m is not None:
-        if args.conc_mM is not None:
-            raise InputError("--conc-mM goes with --electrolyte, not with --conductivity-S-m")
         return {"conductivity_S_per_m": args.conductivity_S_m}
     if args.resistivity_ohm_m is not None:
-        if args.conc_mM is not None:
-            raise InputError("--conc-mM goes with --electrolyte, not with --resistivity-ohm-m")
         return {"resistivity_ohm_m": args.resistivity_ohm_m}
-    return {
-        "electrolyte": args.electrolyte or DEFAULT_ELECTROLYTE,
-        "conc_mM": DEFAULT_CONC_MM if args.conc_mM is None else args.conc_mM,
-    }
+    return {"electrolyte": args.electrolyte, "conc_mM": args.conc_mM}
 
 
 # --------------------------------------------------------------------------- running
@@ -278,11 +276,11 @@ def forward(args: argparse.Namespace):
 
 
 def run(args) -> int:
-    inverse_opts = (args.factor_entry, args.factor_far)
+    inverse_opts = (args.raised_entry_factor, args.raised_far_factor)
     if args.from_conductances is None and any(v is not None for v in inverse_opts):
-        raise InputError("--factor-entry/--factor-far go with --from-conductances")
+        raise InputError("--raised-entry-factor/--raised-far-factor go with --from-conductances")
     if args.from_conductances is not None and any(v is None for v in inverse_opts):
-        raise InputError("--from-conductances needs --factor-entry and --factor-far")
+        raise InputError("--from-conductances needs --raised-entry-factor and --raised-far-factor")
     if args.structure is None and args.from_conductances is None:
         raise InputError(
             "give a STRUCTURE (forward model) and/or --from-conductances (inverse analysis)"
@@ -298,7 +296,7 @@ def run(args) -> int:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", QualityWarning)
             split_side_resistances(
-                *measured, factor_entry=args.factor_entry, factor_far=args.factor_far
+                *measured, factor_entry=args.raised_entry_factor, factor_far=args.raised_far_factor
             )
     est = prof = None
     if args.structure is not None:
@@ -306,7 +304,10 @@ def run(args) -> int:
     split = None
     if measured is not None:
         split = split_side_resistances(
-            *measured, factor_entry=args.factor_entry, factor_far=args.factor_far, estimate=est
+            *measured,
+            factor_entry=args.raised_entry_factor,
+            factor_far=args.raised_far_factor,
+            estimate=est,
         )
     if est is not None:
         out = est.to_dict()

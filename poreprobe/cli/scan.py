@@ -5,54 +5,21 @@ from __future__ import annotations
 import math
 import os
 
-import numpy as np
-
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
     add_output_args,
+    add_probe_args,
     add_structure_args,
     check_figure_path,
     load_model,
+    parse_probe_radii,
     save_figure,
     say,
 )
 from poreprobe.errors import InputError
 from poreprobe.geometry.probes import probe_scan, profiles_csv, scan_csv
 from poreprobe.io.export import to_json, write_atomic
-
-DEFAULT_PROBES = "0.5:6:0.25"
-MAX_PROBES = 1000
-
-
-def parse_probe_range(text: str) -> np.ndarray:
-    """Probe radii (Å) from ``START:STOP:STEP`` (STOP included) or ``START:STOP`` (step 0.25).
-
-    Raises
-    ------
-    InputError
-        Not numbers, START <= 0, STOP < START, STEP <= 0, or too many probes.
-    """
-    parts = str(text).split(":")
-    if len(parts) not in (2, 3):
-        raise InputError(f"--probes must be START:STOP:STEP in Å, got {text!r}")
-    try:
-        start, stop = float(parts[0]), float(parts[1])
-        step = float(parts[2]) if len(parts) == 3 else 0.25
-    except ValueError as exc:
-        raise InputError(f"--probes must be numbers START:STOP:STEP in Å, got {text!r}") from exc
-    if not all(math.isfinite(v) for v in (start, stop, step)):
-        raise InputError(f"--probes must be finite, got {text!r}")
-    if start <= 0:
-        raise InputError(f"--probes START must be > 0 Å, got {start:g}")
-    if stop < start:
-        raise InputError(f"--probes STOP must be >= START, got {start:g}:{stop:g}")
-    if step <= 0:
-        raise InputError(f"--probes STEP must be > 0 Å, got {step:g}")
-    count = int(math.floor((stop - start) / step + 1e-9)) + 1
-    if count > MAX_PROBES:
-        raise InputError(f"--probes gives {count} probes (limit {MAX_PROBES}); use a larger STEP")
-    return np.round(start + step * np.arange(count), 10)
 
 
 def register(sub) -> None:
@@ -65,7 +32,7 @@ def register(sub) -> None:
     )
     add_structure_args(p)
     add_axis_args(p)
-    add_scan_args(p.add_argument_group("scan"))
+    add_probe_args(p.add_argument_group("scan"))
     add_output_args(p)
     p.add_argument(
         "--profiles-csv",
@@ -74,33 +41,6 @@ def register(sub) -> None:
     )
     add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
     p.set_defaults(func=run)
-
-
-def add_scan_args(g) -> None:
-    """--probes, --from, --spacing-A and --pore-radius-A (shared with ``match``)."""
-    g.add_argument(
-        "--probes",
-        default=DEFAULT_PROBES,
-        metavar="START:STOP:STEP",
-        help=f"probe radii in Å, STOP included (default {DEFAULT_PROBES})",
-    )
-    g.add_argument(
-        "--from",
-        "--from-end",
-        dest="from_end",
-        choices=("low", "high"),
-        default="low",
-        help="end of the axis (in s) where probes enter; default low, which is "
-        "the --entry end when --entry is given",
-    )
-    g.add_argument("--spacing-A", type=float, default=0.5, help="grid spacing in Å (default 0.5)")
-    g.add_argument(
-        "--pore-radius-A",
-        type=float,
-        default=15.0,
-        help="radius in Å of the region around the axis searched; sections "
-        "reaching it count as open bulk (default 15)",
-    )
 
 
 def _check_outputs(*paths) -> None:
@@ -164,7 +104,7 @@ def _num(value: float, width: int) -> str:
 
 def compute(args):
     """Atoms and probe-size scan as the options ask (shared with ``match``)."""
-    probes = parse_probe_range(args.probes)
+    probes = parse_probe_radii(args.probe_radii_A)
     atoms, rset, radii_A, axis = load_model(args)
     scan = probe_scan(
         atoms,
@@ -173,15 +113,15 @@ def compute(args):
         radii=rset,
         radii_A=radii_A,
         spacing_A=args.spacing_A,
-        from_end=args.from_end,
-        pore_radius_A=args.pore_radius_A,
+        from_end=args.entry_end,
+        pore_radius_A=args.search_radius_A,
         quiet=args.quiet,
     )
     return atoms, scan
 
 
 def run(args) -> int:
-    parse_probe_range(args.probes)
+    parse_probe_radii(args.probe_radii_A)
     _check_outputs(args.json, args.csv, args.profiles_csv)
     check_figure_path(args)
     atoms, scan = compute(args)

@@ -7,12 +7,16 @@ import numpy as np
 from poreprobe.cli.common import (
     add_axis_args,
     add_backend_args,
-    add_capture_args,
+    add_entry_end_arg,
     add_figure_args,
+    add_grid_args,
     add_output_args,
-    add_radii_args,
+    add_probe_radius_arg,
+    add_profile_args,
+    add_structure_args,
     backend_from_args,
     check_figure_path,
+    cleaning_from_args,
     radius_set_from_args,
     save_figure,
     say,
@@ -31,41 +35,34 @@ def register(sub) -> None:
         "cluster. Model-based estimates: they depend on the radius set.",
     )
     p.add_argument(
-        "topology",
-        metavar="TOPOLOGY",
-        help="topology or multi-model file (anything MDAnalysis reads: PDB, PSF, GRO, TPR, ...)",
+        "structure",
+        metavar="STRUCTURE",
+        help="topology or multi-model file (anything MDAnalysis reads: PDB, PSF, GRO, "
+        "TPR, ...); its frames, or those of --trajectory, are profiled",
     )
-    p.add_argument(
-        "trajectory",
-        metavar="TRAJECTORY",
-        nargs="?",
-        help="trajectory (DCD, XTC, TRR, multi-model PDB, ...); omit for a multi-model TOPOLOGY",
-    )
-    g = p.add_argument_group("frames and atoms")
+    add_structure_args(p, positional=False, single_frame=False)
+    g = p.add_argument_group("frames")
     g.add_argument(
-        "--select",
-        default="protein",
-        metavar="SEL",
-        help="MDAnalysis selection of the atoms around the pore (default protein)",
-    )
-    g.add_argument(
-        "--start", type=int, default=None, metavar="N", help="first frame, 0-based (default 0)"
-    )
-    g.add_argument(
-        "--stop",
+        "--frame-start",
         type=int,
         default=None,
         metavar="N",
-        help="stop before this frame (default: the last frame)",
+        help="first frame, 0-based (default 0)",
     )
     g.add_argument(
-        "--step",
+        "--frame-stop",
+        type=int,
+        default=None,
+        metavar="N",
+        help="stop before this frame (default: after the last frame)",
+    )
+    g.add_argument(
+        "--frame-step",
         type=int,
         default=None,
         metavar="N",
         help="use every N-th frame (frames; default 1)",
     )
-    add_radii_args(g)
     add_axis_args(p)
     g = p.add_argument_group("axis over frames")
     g.add_argument(
@@ -87,26 +84,13 @@ def register(sub) -> None:
         metavar="SEL",
         help="selection the frames are fitted on in fixed mode (default: the --select atoms)",
     )
-    g = p.add_argument_group("profile")
-    g.add_argument("--step-A", type=float, default=0.25, help="plane spacing in Å (default 0.25)")
-    g.add_argument(
-        "--margin-A",
-        type=float,
-        default=2.0,
-        help="grid extension beyond the reference frame's atoms, Å (default 2)",
-    )
+    g = add_profile_args(p)
     g.add_argument(
         "--s-range-A",
         type=float,
         nargs=2,
         metavar=("LOW", "HIGH"),
         help="explicit grid range along the axis, Å",
-    )
-    g.add_argument(
-        "--max-radius-A",
-        type=float,
-        default=20.0,
-        help="planes wider than this (Å) count as open bulk (default 20)",
     )
     g = p.add_argument_group("statistics")
     g.add_argument(
@@ -125,7 +109,14 @@ def register(sub) -> None:
         metavar="Q",
         help="percentile levels, %% (default 5 25 50 75 95)",
     )
-    add_capture_args(p, several=False)
+    g = p.add_argument_group("capture radius (probe-size scan per frame)")
+    add_probe_radius_arg(
+        g,
+        purpose="whose capture radius is also given per frame (default: none; costs "
+        "about one more profile per frame)",
+    )
+    add_entry_end_arg(g)
+    add_grid_args(g)
     g = add_backend_args(p)
     g.add_argument(
         "--parts",
@@ -146,17 +137,18 @@ def register(sub) -> None:
 
 
 def run(args) -> int:
-    from poreprobe.scale.trajectory import frames_csv, planes_csv, profile_trajectory
+    from poreprobe.scale.trajectory import profile_trajectory
+    from poreprobe.scale.trajectory_profiles import frames_csv, planes_csv
 
     backend, workers = backend_from_args(args)
     check_figure_path(args)
     result = profile_trajectory(
-        args.topology,
+        args.structure,
         args.trajectory,
-        select=args.select,
-        start=args.start,
-        stop=args.stop,
-        step=args.step,
+        start=args.frame_start,
+        stop=args.frame_stop,
+        step=args.frame_step,
+        **cleaning_from_args(args),
         backend=backend,
         n_workers=workers,
         scheduler=args.scheduler,
@@ -177,10 +169,10 @@ def run(args) -> int:
         entry=args.entry,
         closed_below_A=args.closed_below_A,
         percentiles=args.percentiles,
-        capture_probe_radius_A=args.capture_probe_radius_A,
-        capture_from_end=args.capture_from_end,
-        capture_spacing_A=args.capture_spacing_A,
-        capture_pore_radius_A=args.capture_pore_radius_A,
+        capture_probe_radius_A=args.probe_radius_A,
+        capture_from_end=args.entry_end,
+        capture_spacing_A=args.spacing_A,
+        capture_pore_radius_A=args.search_radius_A,
     )
     if args.json:
         to_json(result, args.json)

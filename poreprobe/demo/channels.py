@@ -443,10 +443,10 @@ def demo_universe(n_frames: int = N_FRAMES):
     """The breathing trajectory as an in-memory MDAnalysis ``Universe``."""
     from MDAnalysis.coordinates.memory import MemoryReader
 
-    from poreprobe.io.structure import _as_universe
+    from poreprobe.io.cleaning import as_universe
 
     topology, frames = demo_trajectory(n_frames)
-    universe = _as_universe(topology)
+    universe = as_universe(topology)
     universe.load_new(frames.astype(np.float32), format=MemoryReader, dt=FRAME_TIME_PS)
     return universe
 

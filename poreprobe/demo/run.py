@@ -78,7 +78,14 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     from poreprobe.bench.viscosity import diffusion_coefficient
     from poreprobe.checks.compare import compare_models
     from poreprobe.checks.quality import check_model
-    from poreprobe.figures import plots
+    from poreprobe.figures.capture_plot import plot_capture
+    from poreprobe.figures.kymograph_plot import plot_kymograph
+    from poreprobe.figures.overlay_plot import plot_overlay
+    from poreprobe.figures.probes_plot import plot_probes
+    from poreprobe.figures.profile_plot import plot_profile
+    from poreprobe.figures.references import ion_reference_radii
+    from poreprobe.figures.resistance_plot import plot_resistance
+    from poreprobe.figures.style import save_figure
     from poreprobe.geometry.probes import capture_radius_at, probe_scan
     from poreprobe.geometry.profile import radius_profile
     from poreprobe.io.export import profile_csv, to_json
@@ -95,7 +102,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     def figure(ax, name):
         import matplotlib.pyplot as plt
 
-        plots.save_figure(ax, out(name))
+        save_figure(ax, out(name))
         plt.close(ax.figure)
 
     summary: dict = {
@@ -114,11 +121,9 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         report = check_model(atoms, axis=axis, ion="K")
     to_json(report, out("check.json"))
     summary["verdict"] = report.verdict.verdict
-    bands = plots.ion_reference_radii("K", ("crystal", "hydrated"))
+    bands = ion_reference_radii("K", ("crystal", "hydrated"))
     figure(
-        plots.plot_profile(
-            prof, ion_radii=bands, constrictions=report.to_dict().get("constrictions")
-        ),
+        plot_profile(prof, ion_radii=bands, constrictions=report.to_dict().get("constrictions")),
         "profile.png",
     )
 
@@ -127,7 +132,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         model, model_axis = (atoms, axis) if name == "demo_channel" else _load(name)
         scans[name] = probe_scan(model, model_axis, quiet=quiet)
         to_json(scans[name], out(f"scan_{name.removeprefix('demo_')}.json"))
-    figure(plots.plot_probes(scans["demo_channel"]), "probes.png")
+    figure(plot_probes(scans["demo_channel"]), "probes.png")
     summary["capture_radius_at_middle_probe_A"] = {
         name.removeprefix("demo_"): float(capture_radius_at(scan, MIDDLE_PROBE_A))
         for name, scan in scans.items()
@@ -164,13 +169,13 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         "match": match.to_dict(),
     }
     to_json(match_json, out("match.json"))
-    figure(plots.plot_capture(scans["demo_channel"], match=match_json), "capture.png")
+    figure(plot_capture(scans["demo_channel"], match=match_json), "capture.png")
     summary["measured_capture_radius_A"] = bench.capture_radius_A
     summary["best_probe_radius_A"] = match.best_probe_radius_A
 
     resistance = series_resistance(prof, atoms=atoms, electrolyte="KCl", conc_mM=150.0)
     to_json(resistance, out("resistance.json"))
-    figure(plots.plot_resistance(resistance), "resistance.png")
+    figure(plot_resistance(resistance), "resistance.png")
     summary["conductance_pS"] = resistance.conductance_pS
 
     closed, closed_axis = _load("demo_closed")
@@ -186,7 +191,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     comparison = compare_models([atoms, widened, closed], labels=labels)
     to_json(comparison, out("compare.json"))
     overlay = [{"profile": {"s_A": comparison.s_A, "radius_A": row}} for row in comparison.radius_A]
-    figure(plots.plot_overlay(overlay, labels=labels, ion_radii=bands), "overlay.png")
+    figure(plot_overlay(overlay, labels=labels, ion_radii=bands), "overlay.png")
 
     if trajectory:
         from poreprobe.scale.trajectory import profile_trajectory
@@ -201,7 +206,7 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
                 entry=ENTRY,
             )
         to_json(traj, out("trajectory.json"))
-        figure(plots.plot_kymograph(traj), "kymograph.png")
+        figure(plot_kymograph(traj), "kymograph.png")
         summary["trajectory_min_radius_mean_A"] = traj.min_radius_mean_A
     summary["files"] = sorted(written)
     to_json(summary, out("summary.json"))

@@ -34,7 +34,8 @@ import numpy as np
 from poreprobe._validate import as_unit_vector, as_vector3, check_choice
 from poreprobe.errors import InputError
 from poreprobe.geometry.superpose import kabsch_rotation, rotate_about, rotation_axis_angle
-from poreprobe.io.structure import Atoms, select_indices
+from poreprobe.io.cleaning import select_indices
+from poreprobe.io.structure import Atoms
 
 AXIS_METHODS = ("auto", "symmetry", "principal", "user", "selections")
 BACKBONE = ("N", "CA", "C")

@@ -54,8 +54,8 @@ from poreprobe._validate import check_int, check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.axis import PoreAxis
+from poreprobe.geometry.probe_sections import ScanContext, path_bottleneck, scan_one
 from poreprobe.geometry.reach import check_levels, reach_field, resolve_radii
-from poreprobe.geometry.sections import ScanContext, path_bottleneck, scan_one
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet
 from poreprobe.io.structure import Atoms

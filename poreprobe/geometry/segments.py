@@ -40,7 +40,8 @@ import numpy as np
 from poreprobe._validate import check_finite, check_positive
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.profile import RadiusProfile
-from poreprobe.io.structure import Atoms, select_indices
+from poreprobe.io.cleaning import select_indices
+from poreprobe.io.structure import Atoms
 
 MOUTH_RULE = (
     "pore = enclosed run of planes around the narrowest plane, clipped to the axial "

@@ -27,6 +27,12 @@ def _jsonable(obj):
     if isinstance(obj, list | tuple):
         return [_jsonable(v) for v in obj]
     if isinstance(obj, np.ndarray):
+        if obj.dtype.kind == "f":  # whole array at once: non-finite values become None
+            out = obj.astype(object)
+            out[~np.isfinite(obj)] = None
+            return out.tolist()
+        if obj.dtype.kind in "biu":
+            return obj.tolist()
         return _jsonable(obj.tolist())
     if isinstance(obj, np.generic):
         return _jsonable(obj.item())
@@ -139,3 +145,12 @@ def profile_csv(profile, path=None) -> str:
         path,
         comments,
     )
+
+
+def check_suffix(path, suffixes, what: str) -> str:
+    """The lower-case suffix of ``path`` if it is one of ``suffixes`` (InputError otherwise)."""
+    path = os.fspath(path)
+    suffix = os.path.splitext(path)[1].lower()
+    if suffix not in suffixes:
+        raise InputError(f"{what} file must end in {', '.join(suffixes)}; got {path!r}")
+    return suffix

@@ -15,11 +15,13 @@ User overrides come from a TOML file::
 
     [elements]          # element symbol -> radius in Å
     C = 1.75
-    [atoms]             # "RESNAME:ATOMNAME" (or "*:ATOMNAME") -> radius in Å
-    "LYS:NZ" = 1.60
-    "*:OXT" = 1.52
+    [residues.LYS]      # atom name -> radius in Å, for this residue name
+    NZ = 1.60
+    [residues."*"]      # atom name -> radius in Å, in any residue
+    OXT = 1.52
 
-Precedence: ``atoms`` exact residue match, then ``atoms`` wildcard, then
+Every radius is a TOML number (a boolean or a string is an error) in (0, 5] Å.
+Precedence: a ``[residues.NAME]`` entry, then ``[residues."*"]``, then
 ``elements``, then the named set, then the fallback. Fallback for an element
 the set does not list: the Bondi value, else gemmi's tabulated radius for that
 element, else 1.80 Å; every fallback raises a :class:`QualityWarning`. A radius
@@ -115,18 +117,40 @@ class RadiusSet:
     source: str = ""
 
 
-def _checked_radius(value, what: str) -> float:
-    try:
-        val = float(value)
-    except (TypeError, ValueError) as exc:
-        raise InputError(f"radius for {what} must be a number, got {value!r}") from exc
-    if not np.isfinite(val) or val <= 0 or val > 5:
-        raise InputError(f"radius for {what} must be between 0 and 5 Å, got {value!r}")
+#: Radii a user file may give (Å): above 0, at most 5 (the largest van der Waals radius
+#: of any element in the tables above is below 3 Å; 5 catches unit slips such as nm x 10).
+MAX_USER_RADIUS_A = 5.0
+
+
+def _checked_radius(value, key: str, path: str) -> float:
+    """A user radius: a real TOML number (int or float, not bool) in (0, 5] Å."""
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        raise InputError(
+            f"radius file {path}: {key} must be a number in Å, got {type(value).__name__} {value!r}"
+        )
+    val = float(value)
+    if not np.isfinite(val) or not 0 < val <= MAX_USER_RADIUS_A:
+        raise InputError(
+            f"radius file {path}: {key} = {value!r} is outside (0, {MAX_USER_RADIUS_A:g}] Å"
+        )
     return val
 
 
+def _table(data: Mapping, name: str, path: str) -> Mapping:
+    table = data.get(name, {})
+    if not isinstance(table, Mapping):
+        raise InputError(f"radius file {path}: {name} must be a table ([{name}])")
+    return table
+
+
 def load_radius_overrides(path) -> tuple[dict[str, float], dict[str, float]]:
-    """Read a TOML radius file into (by_element, by_atom) dictionaries."""
+    """Read a TOML radius file into (by_element, by_atom) dictionaries.
+
+    The file holds an ``[elements]`` table (symbol = radius in Å) and/or
+    ``[residues.RESNAME]`` tables (atom name = radius in Å; ``[residues."*"]`` for
+    any residue). Every radius must be a TOML number (not a boolean or a string)
+    in (0, 5] Å. ``by_atom`` is keyed ``"RESNAME:ATOMNAME"`` (``"*:ATOMNAME"``).
+    """
     path = os.fspath(path)
     try:
         with open(path, "rb") as fh:
@@ -135,21 +159,32 @@ def load_radius_overrides(path) -> tuple[dict[str, float], dict[str, float]]:
         raise InputError(f"no such radius file: {path}") from exc
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise InputError(f"radius file {path} is not valid TOML: {exc}") from exc
-    unknown = set(data) - {"elements", "atoms"}
+    if "atoms" in data:
+        raise InputError(
+            f"radius file {path}: the [atoms] table with 'RESNAME:ATOMNAME' keys is no "
+            "longer read; write per-atom radii as [residues.LYS] NZ = 1.6 "
+            '(any residue: [residues."*"])'
+        )
+    unknown = set(data) - {"elements", "residues"}
     if unknown:
         raise InputError(
-            f"radius file {path}: unknown table(s) {sorted(unknown)}; use [elements] and [atoms]"
+            f"radius file {path}: unknown key(s) {sorted(unknown)}; "
+            "use [elements] and [residues.RESNAME] tables"
         )
     by_element = {
-        k.strip().upper(): _checked_radius(v, f"element {k}")
-        for k, v in data.get("elements", {}).items()
+        k.strip().upper(): _checked_radius(v, f"elements.{k}", path)
+        for k, v in _table(data, "elements", path).items()
     }
     by_atom = {}
-    for key, val in data.get("atoms", {}).items():
-        if key.count(":") != 1:
-            raise InputError(f"radius file {path}: atom key {key!r} must be 'RESNAME:ATOMNAME'")
-        res, atom = (part.strip().upper() for part in key.split(":"))
-        by_atom[f"{res}:{atom}"] = _checked_radius(val, f"atom {key}")
+    for res, atoms in _table(data, "residues", path).items():
+        if not isinstance(atoms, Mapping):
+            raise InputError(
+                f"radius file {path}: residues.{res} must be a table of atom names, "
+                f"e.g. [residues.{res}] NZ = 1.6"
+            )
+        for atom, val in atoms.items():
+            key = f"{res.strip().upper()}:{atom.strip().upper()}"
+            by_atom[key] = _checked_radius(val, f"residues.{res}.{atom}", path)
     return by_element, by_atom
 
 
@@ -161,7 +196,7 @@ def get_radius_set(radii: str | RadiusSet = DEFAULT_RADIUS_SET, overrides=None) 
     radii : str or RadiusSet
         ``"bondi"`` or ``"alvarez"``, or an existing :class:`RadiusSet`.
     overrides : path-like, optional
-        TOML file with ``[elements]`` and/or ``[atoms]`` tables.
+        TOML file with ``[elements]`` and/or ``[residues.RESNAME]`` tables.
 
     Returns
     -------

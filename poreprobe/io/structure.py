@@ -18,7 +18,7 @@ from dataclasses import dataclass, field, fields, replace
 
 import numpy as np
 
-from poreprobe._validate import as_coords_A, check_choice, check_int
+from poreprobe._validate import as_coords_A, check_int
 from poreprobe.errors import InputError
 
 log = logging.getLogger("poreprobe")
@@ -54,7 +54,6 @@ ION_ELEMENTS = frozenset(
         "AG",
     }
 )
-ALTLOC_POLICIES = ("occupancy", "first")
 KINDS = ("polymer", "water", "ion", "hetero")
 
 _ARRAY_FIELDS = (
@@ -410,166 +409,6 @@ def open_universe(path: str, trajectory: str | None = None):
         raise InputError(f"cannot read {path}: {msg}") from exc
 
 
-def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
-    """Keep one copy of each atom that has alternate locations.
-
-    Parameters
-    ----------
-    atoms : Atoms
-    policy : {"occupancy", "first"} or a single altloc letter
-        ``"occupancy"`` keeps the copy with the highest occupancy (ties: first
-        listed); ``"first"`` the first listed; a letter keeps that altloc (and the
-        first listed copy where that letter is absent).
-
-    Returns
-    -------
-    Atoms
-        With ``altloc_policy`` recorded.
-    """
-    if not isinstance(policy, str) or not (policy in ALTLOC_POLICIES or len(policy) == 1):
-        raise InputError(
-            f"altloc must be 'occupancy', 'first' or one altloc letter, got {policy!r}"
-        )
-    has_alt = atoms.altloc != ""
-    if not has_alt.any():
-        return replace(atoms, altloc_policy=policy)
-    idx = np.flatnonzero(has_alt)
-    key = np.char.add(
-        np.char.add(atoms.chain[idx], "|"),
-        np.char.add(
-            np.char.add(atoms.resid[idx].astype(str), atoms.icode[idx]),
-            np.char.add("|", atoms.name[idx]),
-        ),
-    )
-    if policy == "occupancy":
-        primary = -atoms.occupancy[idx]
-    elif policy == "first":
-        primary = np.zeros(len(idx))
-    else:
-        primary = (atoms.altloc[idx] != policy).astype(float)
-    order = np.lexsort((idx, primary, key))
-    _, first = np.unique(key[order], return_index=True)
-    chosen = idx[order[first]]
-    keep = ~has_alt
-    keep[chosen] = True
-    dropped = int(len(idx) - len(chosen))
-    note = f"altlocs: kept one of each ({policy}), dropped {dropped} alternate atoms"
-    return replace(atoms.subset(keep, note), altloc_policy=policy)
-
-
-def select(atoms: Atoms, selection: str) -> Atoms:
-    """Keep the atoms matched by an MDAnalysis selection string.
-
-    Parameters
-    ----------
-    atoms : Atoms
-    selection : str
-        MDAnalysis selection language, e.g. ``"segid A B and not name H*"`` or
-        ``"resid 100:120"``. Chains are exposed as both ``segid`` and ``chainID``.
-
-    Returns
-    -------
-    Atoms
-
-    Raises
-    ------
-    InputError
-        If the selection is malformed or matches nothing.
-    """
-    idx = select_indices(atoms, selection)
-    return atoms.subset(idx, f"selection {selection!r}: {len(idx)} atoms")
-
-
-def select_indices(atoms: Atoms, selection: str) -> np.ndarray:
-    """Indices of the atoms matched by an MDAnalysis selection string."""
-    return np.asarray(select_in_universe(_as_universe(atoms), selection).indices)
-
-
-def select_in_universe(universe, selection: str):
-    """``universe.select_atoms(selection)``, with one clear error for bad or empty selections."""
-    if not isinstance(selection, str) or not selection.strip():
-        raise InputError(f"selection must be a non-empty string, got {selection!r}")
-    try:
-        group = universe.select_atoms(selection)
-    except Exception as exc:  # MDAnalysis raises SelectionError, ValueError, ...
-        raise InputError(f"bad selection {selection!r}: {exc}") from exc
-    if len(group) == 0:
-        raise InputError(f"selection {selection!r} matches no atoms")
-    return group
-
-
-def _as_universe(atoms: Atoms):
-    import MDAnalysis as mda
-
-    res_key = np.char.add(
-        np.char.add(atoms.chain, "|"), np.char.add(atoms.resid.astype(str), atoms.icode)
-    )
-    change = np.r_[True, res_key[1:] != res_key[:-1]]
-    atom_resindex = np.cumsum(change) - 1
-    n_res = int(atom_resindex[-1]) + 1
-    res_first = np.flatnonzero(change)
-    seg_names, res_segindex = np.unique(atoms.chain[res_first], return_inverse=True)
-    u = mda.Universe.empty(
-        len(atoms),
-        n_residues=n_res,
-        n_segments=len(seg_names),
-        atom_resindex=atom_resindex,
-        residue_segindex=res_segindex,
-        trajectory=True,
-    )
-    u.add_TopologyAttr("names", atoms.name)
-    u.add_TopologyAttr("types", atoms.element)
-    u.add_TopologyAttr("elements", [e.capitalize() for e in atoms.element])
-    u.add_TopologyAttr("chainIDs", atoms.chain)
-    u.add_TopologyAttr("altLocs", atoms.altloc)
-    u.add_TopologyAttr("occupancies", atoms.occupancy)
-    u.add_TopologyAttr("tempfactors", atoms.b_factor)
-    u.add_TopologyAttr("resnames", atoms.resname[res_first])
-    u.add_TopologyAttr("resids", atoms.resid[res_first])
-    u.add_TopologyAttr("icodes", atoms.icode[res_first])
-    u.add_TopologyAttr("segids", seg_names)
-    u.atoms.positions = atoms.coords_A
-    return u
-
-
-def clean(
-    atoms: Atoms,
-    *,
-    hydrogens: bool = True,
-    waters: bool = False,
-    ions: bool = False,
-    hetero: bool = False,
-) -> Atoms:
-    """Drop atom kinds the pore calculation should not see, recording counts in ``notes``.
-
-    Parameters
-    ----------
-    atoms : Atoms
-    hydrogens, waters, ions, hetero : bool
-        Keep hydrogens (default yes), waters, ions and other hetero groups
-        (ligands, lipids, detergents; default no).
-    """
-    keep = np.ones(len(atoms), dtype=bool)
-    notes = []
-    for kind, wanted in (("water", waters), ("ion", ions), ("hetero", hetero)):
-        mask = atoms.kind == kind
-        if mask.any() and not wanted:
-            keep &= ~mask
-            notes.append(f"dropped {int(mask.sum())} {kind} atoms")
-    if not hydrogens:
-        mask = atoms.is_hydrogen & keep
-        if mask.any():
-            keep &= ~mask
-            notes.append(f"dropped {int(mask.sum())} hydrogen atoms")
-    if keep.all():
-        return atoms
-    out = atoms.subset(keep)
-    out = replace(out, notes=out.notes + tuple(notes))
-    for note in notes:
-        log.info("%s: %s", atoms.source, note)
-    return out
-
-
 def read_structure(
     path,
     *,
@@ -621,6 +460,9 @@ def read_structure(
     >>> len(atoms), atoms.source
     (2220, 'demo_channel.pdb')
     """
+    # cleaning works on Atoms, so it imports this module; import it here, not at the top
+    from poreprobe.io.cleaning import check_altloc, clean, resolve_altlocs, select
+
     path = os.fspath(path)
     if not os.path.isfile(path):
         raise InputError(f"no such file: {path}")
@@ -628,8 +470,7 @@ def read_structure(
         raise InputError(f"{path} is empty")
     model = check_int(model, "model", minimum=0)
     frame = check_int(frame, "frame", minimum=0)
-    if altloc not in ALTLOC_POLICIES and not (isinstance(altloc, str) and len(altloc) == 1):
-        check_choice(altloc, "altloc", (*ALTLOC_POLICIES, "<letter>"))
+    check_altloc(altloc)
     if _is_gemmi_file(path) and trajectory is None:
         atoms, _ = _read_gemmi(path, model)
     else:
