@@ -41,7 +41,6 @@ class ScanContext:
         self.tree = cKDTree(frame_A)
         self.spheres = AtomSpheres(frame_A, radii_A)
         self._half: dict[int, np.ndarray] = {}
-        self._dil = None
         self.max_r = float(radii_A.max())
         self.refine = refine_factor
         self.u = field_.u_A
@@ -55,12 +54,6 @@ class ScanContext:
         inner = np.flatnonzero((s >= lo) & (s <= hi))
         self.k_protein = (int(inner[0]), int(inner[-1])) if inner.size else (0, len(s) - 1)
         self.plane_max = PlaneMaxima(self.spheres, field_, field_.pore_radius_A)
-
-    def dilated(self, region: np.ndarray) -> np.ndarray:
-        """The region dilated by one voxel (26 neighbours), cached for the last region."""
-        if self._dil is None or self._dil[0] is not region:
-            self._dil = (region, ndimage.binary_dilation(region, np.ones((3, 3, 3), bool)))
-        return self._dil[1]
 
     def clip(self, p: float) -> float:
         return p + self.margin
@@ -224,7 +217,7 @@ def _path_balls(ctx: ScanContext, p: float, tip, both_sides: bool = False):
     """Probe centres on the continuous path near ``tip``: plane maxima behind it.
 
     From the tip's level back towards the entry (and, with ``both_sides``, on towards the
-    exit) every 0.1 Å within reach of the tip's plane, the local in-plane maximum of the
+    exit) every 0.2 Å within reach of the tip's plane, the local in-plane maximum of the
     clearance climbed from the tip's (u, v); those with clearance >= p are centres a probe
     can hold, and their balls (radius = clearance) are part of its swept region.
     """
@@ -232,7 +225,7 @@ def _path_balls(ctx: ScanContext, p: float, tip, both_sides: bool = False):
 
     f = ctx.field
     reach = ctx.clip(p)
-    steps = np.arange(0.1, reach + 1e-9, 0.1)
+    steps = np.arange(0.2, reach + 1e-9, 0.2)
     offs = -f.depth_sign * steps
     if both_sides:
         offs = np.concatenate([offs, -offs])
@@ -496,7 +489,6 @@ def _dense_tip_lattice(ctx: ScanContext, region: np.ndarray, p: float, s_star: f
         v_lo, v_hi = min(v_lo, f.v_A[iv.min()] - h), max(v_hi, f.v_A[iv.max()] + h)
     uc = np.arange(np.floor(u_lo / hc), np.ceil(u_hi / hc) + 1) * hc
     vc = np.arange(np.floor(v_lo / hc), np.ceil(v_hi / hc) + 1) * hc
-    dil = ctx.dilated(region)
 
     def index(coords, origin, n):
         k = np.rint((coords - origin) / h).astype(np.int64)
@@ -505,15 +497,26 @@ def _dense_tip_lattice(ctx: ScanContext, region: np.ndarray, p: float, s_star: f
     gu, ou = index(uc, f.origin_A[0], f.shape[0])
     gv, ov = index(vc, f.origin_A[1], f.shape[1])
     gs, os_ = index(sc, f.origin_A[2], f.shape[2])
+    # the region dilated by one voxel, on the layers this box touches only
+    k_lo, k_hi = max(int(gs.min()) - 1, 0), min(int(gs.max()) + 2, f.shape[2])
+    dil = np.zeros(region.shape, dtype=bool)
+    dil[:, :, k_lo:k_hi] = ndimage.binary_dilation(
+        region[:, :, k_lo:k_hi], np.ones((3, 3, 3), dtype=bool)
+    )
     inside = ou[:, None, None] & ov[None, :, None] & os_[None, None, :]
     # 1-Lipschitz bound from the nearest voxel (at most sqrt(3)/2 h away)
     near_c = np.asarray(f.clearance_A)[np.ix_(gu, gv, gs)]
     with np.errstate(invalid="ignore"):
         may = ~(near_c + 0.87 * h < p)
-    cand = dil[np.ix_(gu, gv, gs)] & inside & may
+        # surely wider than the clip (lower bound c(X) - |x - X|): inside the region's
+        # interior, its ball is the clipped one whatever the exact value, so no query
+        sure = near_c - 0.87 * h > clip + 1e-9
+    near_region = dil[np.ix_(gu, gv, gs)] & inside
+    cand = near_region & may & ~sure
     uu, vv, ss = np.meshgrid(uc, vc, sc, indexing="ij")
     cand |= (uu - tip[0]) ** 2 + (vv - tip[1]) ** 2 + (ss - tip[2]) ** 2 <= (2 * h) ** 2
     c = np.full(uu.shape, -np.inf)
+    c[near_region & sure & ~cand] = clip
     if cand.any():
         pts = np.column_stack([uu[cand], vv[cand], ss[cand]])
         c[cand] = ctx.spheres.clearance_A(pts, max_clearance_A=clip + 1.0)
