@@ -13,6 +13,8 @@ import numpy as np
 import pytest
 from brute_force import Clearance, plane_radius
 from conftest import mdanalysis_test_file
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import poreprobe as pp
 from poreprobe import InputError, PoreAxis, make_atoms, radius_profile
@@ -217,3 +219,35 @@ def test_bad_neck_fraction(value):
     atoms, _, _ = syn.cylinder()
     with pytest.raises(InputError, match="neck_fraction"):
         radius_profile(atoms, PoreAxis([0, 0, 0], [0, 0, 1], "user"), neck_fraction=value)
+
+
+@settings(max_examples=4, deadline=None)
+@given(
+    seed=st.integers(0, 2**31 - 1),
+    shift=st.lists(st.floats(-30.0, 30.0), min_size=3, max_size=3),
+)
+def test_real_profile_unchanged_by_rigid_motion_and_atom_order(seed, shift):
+    # K+ channel fragment (MDAnalysisTests 2r9r-1b): the region rasters are oriented by the
+    # atoms, so rotating, shifting and shuffling the input changes no radius (0.02 Å)
+    from _real_channels import symmetry_axis
+    from scipy.spatial.transform import Rotation
+
+    atoms = _k_channel_fragment()
+    point, direction = symmetry_axis(atoms)
+    ref = radius_profile(atoms, PoreAxis(point, direction, "user"), step_A=0.5)
+    rng = np.random.default_rng(seed)
+    rot = Rotation.random(random_state=seed)
+    order = rng.permutation(len(atoms))
+    moved = make_atoms(
+        rot.apply(np.array(atoms.coords_A)[order]) + shift,
+        element=atoms.element[order],
+        name=atoms.name[order],
+        resname=atoms.resname[order],
+        resid=atoms.resid[order],
+        chain=atoms.chain[order],
+    )
+    axis = PoreAxis(rot.apply(point) + shift, rot.apply(direction), "user")
+    prof = radius_profile(moved, axis, step_A=0.5, s_range_A=(ref.s_A[0], ref.s_A[-1]))
+    np.testing.assert_array_equal(np.isfinite(prof.radius_A), np.isfinite(ref.radius_A))
+    ok = np.isfinite(ref.radius_A)
+    np.testing.assert_allclose(prof.radius_A[ok], ref.radius_A[ok], atol=0.02)

@@ -43,11 +43,15 @@ from poreprobe._validate import check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError
 from poreprobe.geometry.axis import PoreAxis
+from poreprobe.geometry.inplane import inplane_angle_rad, rotate_uv, unrotate_uv
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.geometry.planemax import maximise_in_planes
 from poreprobe.geometry.planeregion import NECK_FRACTION, check_neck_fraction, region_maximum
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms
+
+#: Atoms within this lateral distance of the axis orient the in-plane rasters (Å).
+INPLANE_RADIUS_A = 15.0
 
 
 @dataclass(frozen=True)
@@ -307,7 +311,11 @@ def radius_profile(
         radii_A = np.asarray(radii_A, dtype=np.float64)
         if radii_A.shape != (len(atoms),):
             raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
+    # in-plane axes turned by an angle fixed by the atoms (geometry.inplane), so the
+    # region rasters move with the structure, not with the lab frame
     frame = axis.to_frame(atoms.coords_A)
+    theta = inplane_angle_rad(frame, INPLANE_RADIUS_A)
+    frame = rotate_uv(frame, theta)
     if s_range_A is None:
         s_planes = plane_positions_A(frame[:, 2], step_A, margin_A)
     else:
@@ -333,7 +341,7 @@ def radius_profile(
     uvs = np.column_stack([centres, s_planes])
     nearest = spheres_frame.clearance_A(uvs, return_index=True)[1]
     nearest = np.where(open_plane, -1, nearest)
-    centre_xyz = axis.from_frame(uvs)
+    centre_xyz = axis.from_frame(unrotate_uv(uvs, theta))
     centre_xyz[open_plane] = np.nan
     if np.all(open_plane):
         raise PoreNotFoundError(
