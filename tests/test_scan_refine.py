@@ -141,3 +141,29 @@ def test_scan_json_and_text_report_the_discretisation(tmp_path, capsys):
     assert d["compared_spacing_A"] == pytest.approx(0.75)
     assert d["max_capture_change_A"] is not None and d["max_capture_change_A"] >= 0
     assert "discretisation estimate" in text
+
+
+def test_real_fragment_capture_radius_matches_brute_force():
+    # K+ channel fragment (MDAnalysisTests 2r9r-1b.psf + .xyz), a 4 Å probe entering from
+    # the cytoplasmic end (C-termini, high s here): capture radius within 0.03 Å and stop
+    # level within 0.02 Å of the 3-D brute-force flood fill (axis: CA polygons, helper)
+    from _real_channels import symmetry_axis
+
+    atoms = pp.read_structure(
+        mdanalysis_test_file("2r9r-1b.psf"), trajectory=mdanalysis_test_file("2r9r-1b.xyz")
+    )
+    point, direction = symmetry_axis(atoms)
+    axis = pp.PoreAxis(point, direction, "user")
+    frame = axis.to_frame(atoms.coords_A)
+    c_term = frame[atoms.resid == atoms.resid.max(), 2].mean()
+    assert c_term > 0  # the C-termini sit at high s on this axis
+    scan = pp.probe_scan(atoms, axis, probe_radii_A=[4.0], from_end="high", pore_radius_A=12)
+    clear = Clearance(atoms.coords_A, pp.atom_radii_A(atoms))
+    top = float(frame[:, 2].max())
+    # the brute force enters at low s: run it on the reversed axis
+    cap, stop, passes = flood_capture(
+        clear, point, -np.asarray(direction), 4.0, box_radius=9.0, s_range=(-top - 5.5, -10.5)
+    )
+    assert not passes and not scan.passes[0] and scan.enters[0]
+    assert scan.stop_s_A[0] == pytest.approx(-stop, abs=0.02)
+    assert scan.capture_radius_A[0] == pytest.approx(cap, abs=0.03)
