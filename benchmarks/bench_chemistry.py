@@ -29,7 +29,7 @@ from poreprobe.chemistry.potential import debye_length_nm, ionic_strength_M
 from poreprobe.cli.main import main as cli_main
 from poreprobe.geometry import synthetic
 from poreprobe.io.structure import make_atoms
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 CYCLE = ("ASP", "GLU", "LYS", "ARG", "HIS", "LEU", "ILE", "VAL", "ALA", "SER")
 SITE_NAMES = {"ASP": ("OD1", "NX"), "GLU": ("OE1", "NX"), "LYS": ("OX", "NZ")}

@@ -20,7 +20,7 @@ import numpy as np
 
 import poreprobe as pp
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 
 def best_of(repeat: int, func):

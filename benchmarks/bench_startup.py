@@ -26,7 +26,7 @@ import time
 
 from poreprobe.cli.main import COMMANDS
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 CLI = [sys.executable, "-m", "poreprobe"]
 HELP_TARGET = 1.3

@@ -40,7 +40,7 @@ def write_trajectory(folder: str, n_frames: int) -> tuple[str, str]:
     import MDAnalysis
 
     from poreprobe.geometry import synthetic
-    from poreprobe.io.writer import write_structure
+    from poreprobe.io.structure_writer import write_structure
 
     region = synthetic.shell_channel(N_ATOMS, length_A=LENGTH_A, seed=1)
     pdb, dcd = os.path.join(folder, "region.pdb"), os.path.join(folder, "region.dcd")

@@ -63,7 +63,7 @@ def write_trajectory(folder) -> tuple[str, str]:
 
     import MDAnalysis
 
-    from poreprobe.io.writer import write_structure
+    from poreprobe.io.structure_writer import write_structure
 
     stack = ring_stack(ring_radii(0), RING_Z_A, atoms_per_ring=32, chains=4)
     pdb = str(folder / "breathing.pdb")

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 
 def mdanalysis_test_file(name: str) -> str:
@@ -34,3 +34,11 @@ def c4_cylinder_pdb(tmp_path) -> str:
     path = tmp_path / "c4.pdb"
     write_structure(synthetic.ring_stack(radii, z, chains=4), path)
     return str(path)
+
+
+@pytest.fixture(scope="session")
+def hostile_inputs(tmp_path_factory):
+    """The input files of the hostile tests (invented structures, damaged copies), built once."""
+    from _hostile import build_inputs
+
+    return build_inputs(tmp_path_factory.mktemp("hostile_inputs"))

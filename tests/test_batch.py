@@ -9,7 +9,7 @@ from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 from poreprobe import atom_radii_A, find_pore_axis, radius_profile, read_structure
 from poreprobe.errors import InputError
 from poreprobe.geometry.synthetic import ring_stack
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 from poreprobe.scale.batch import BatchSummary, batch_csv, expand_paths, profile_files
 
 

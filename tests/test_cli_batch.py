@@ -9,7 +9,7 @@ from _trajectory_data import RING_Z_A, frame_coords, ring_radii
 
 from poreprobe.cli.main import main
 from poreprobe.geometry.synthetic import ring_stack
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 
 @pytest.fixture(scope="module")

@@ -8,7 +8,7 @@ from helix_channel import build_channel
 
 from poreprobe.cli.main import main
 from poreprobe.io.structure import make_atoms
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 
 @pytest.fixture(scope="module")

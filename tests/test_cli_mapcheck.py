@@ -108,7 +108,9 @@ def test_mapcheck_writes_json_csv_and_figure(pdb, maps, tmp_path, capsys):
         narrower = by_code["map-radius-differs"]["details"]
         assert narrower["difference_A"] < 0 and abs(narrower["s_A"] - blob["s_A"]) <= D_A
     csv = (tmp_path / "m.csv").read_text().splitlines()
-    assert csv[0].startswith("# poreprobe") and "s_A,model_radius_A,map_radius_A" in "\n".join(csv)
+    own = [ln for ln in csv if not ln.startswith(("# provenance:", "# warning:"))]
+    assert csv[0].startswith("# provenance: poreprobe mapcheck")
+    assert own[0].startswith("# poreprobe") and "s_A,model_radius_A,map_radius_A" in "\n".join(own)
     assert (tmp_path / "m.png").stat().st_size > 1000
 
 

@@ -10,7 +10,7 @@ from poreprobe.bench.conductance import series_resistance
 from poreprobe.cli.main import main
 from poreprobe.cli.resistance import parse_conductances
 from poreprobe.geometry import synthetic
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 AXIS = ["--axis-point", "0", "0", "0", "--axis-direction", "0", "0", "1"]
 

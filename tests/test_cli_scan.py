@@ -9,7 +9,7 @@ from poreprobe.cli.common import parse_probe_radii
 from poreprobe.cli.main import main
 from poreprobe.errors import InputError
 from poreprobe.geometry.synthetic import ring_stack
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 R_C = 1.70  # Bondi 1964, J. Phys. Chem. 68:441, Table I (carbon)
 
@@ -55,7 +55,10 @@ def test_scan_writes_json_csv_and_table(tetramer_pdb, tmp_path, capsys):
     for key in ("capture_radius_inscribed_A", "enters"):
         assert len(cap[key]) == 3
     assert len(data["profiles"]["accessible_radius_A"]) == 3
-    assert out_csv.read_text().count("\n") == 3 + 1 + 3
+    lines = out_csv.read_text().splitlines()
+    own = [ln for ln in lines if not ln.startswith("# provenance")]
+    assert len(own) == 3 + 1 + 3  # its comments, the header, one row per probe
+    assert sum(ln.startswith("# provenance") for ln in lines) >= 4
     table = capsys.readouterr().out
     assert "model-based estimate" in table and "capture_A" in table
     assert "largest probe that passes: 2.00" in table

@@ -160,7 +160,7 @@ def test_profile_trajectory_through_scheduler_address(cluster, breathing):
 
 def test_batch_same_on_every_backend(client, tmp_path):
     from poreprobe.geometry.synthetic import ring_stack
-    from poreprobe.io.writer import write_structure
+    from poreprobe.io.structure_writer import write_structure
 
     for t in range(3):
         stack = ring_stack(ring_radii(t), RING_Z_A, atoms_per_ring=32, chains=4)

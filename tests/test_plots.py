@@ -499,7 +499,7 @@ def test_profile_input_errors_name_the_problem(bad, message):
 
 
 def test_profile_command_draws_its_figure(tmp_path, capsys):
-    from poreprobe.io.writer import write_structure
+    from poreprobe.io.structure_writer import write_structure
 
     z = np.arange(-6, 6.1, 1.0)
     atoms = synthetic.ring_stack(4.0 + (z / 6) ** 2, z, atoms_per_ring=16)
@@ -658,7 +658,7 @@ def test_scan_command_figures_match_its_json(kind, c4_cylinder_pdb, tmp_path):
 
 def test_check_command_json_draws_the_profile_with_its_constrictions(tmp_path):
     """The real check JSON (issue 6 layout) carries a profile and its constrictions."""
-    from poreprobe.io.writer import write_structure
+    from poreprobe.io.structure_writer import write_structure
 
     z = np.arange(-12.0, 12.1, 1.0)
     rings = np.interp(z, [-12, -8, -6, -4, -2, 2, 4, 8, 12], [8, 6, 4.3, 4.3, 7, 7, 3.3, 3.3, 8])

@@ -17,7 +17,7 @@ from poreprobe.errors import InputError, QualityWarning
 from poreprobe.geometry.superpose import rotate_about
 from poreprobe.io.radii import RADIUS_SETS
 from poreprobe.io.structure import make_atoms
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 PLANTED_CODES = {
     "missing-side-chain-atoms",

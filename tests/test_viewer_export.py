@@ -14,7 +14,7 @@ from poreprobe.figures import viewer_line, viewer_map, viewer_mesh
 from poreprobe.geometry import synthetic
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.io.radii import atom_radii_A
-from poreprobe.io.writer import write_structure
+from poreprobe.io.structure_writer import write_structure
 
 SPACING_A = 0.5
 

@@ -20,7 +20,7 @@ sys.path.insert(0, os.path.abspath(os.path.join(os.path.dirname(__file__), "..",
 
 from poreprobe.cli.main import main  # noqa: E402
 from poreprobe.geometry import synthetic  # noqa: E402
-from poreprobe.io.writer import write_structure  # noqa: E402
+from poreprobe.io.structure_writer import write_structure  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DPI = "150"

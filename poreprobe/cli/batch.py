@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import glob
+import os
+
 from poreprobe.cli.common import (
     add_axis_args,
     add_backend_args,
@@ -14,6 +17,7 @@ from poreprobe.cli.common import (
     parse_probe_radii,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError
 from poreprobe.io.export import to_json
 from poreprobe.scale.batch import batch_csv, profile_files
@@ -32,6 +36,7 @@ def register(sub) -> None:
     p.add_argument(
         "files",
         metavar="FILES",
+        type=InputPath,
         nargs="+",
         help="structure files or quoted glob patterns, e.g. 'models/*.cif'",
     )
@@ -64,6 +69,10 @@ def run(args) -> int:
         raise InputError(
             "--trajectory and --frame do not apply to batch; use 'poreprobe traj' for a trajectory"
         )
+    for item in args.files:  # a pattern that matches nothing is a bad command line
+        is_pattern = set("*?[") & set(item) and not os.path.exists(item)
+        if is_pattern and not glob.glob(item, recursive=True):
+            raise InputError(f"pattern {item} matches no files")
     backend, workers = backend_from_args(args)
     summary = profile_files(
         args.files,

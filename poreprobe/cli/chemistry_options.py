@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 
 from poreprobe.bench.electrolyte import CONDUCTIVITY_TABLES
+from poreprobe.cli.outputs import OutputPath
 
 
 def add_chemistry_args(parser: argparse.ArgumentParser) -> None:
@@ -94,6 +95,7 @@ def add_chemistry_args(parser: argparse.ArgumentParser) -> None:
     g.add_argument(
         "--chemistry-csv",
         metavar="FILE",
+        type=OutputPath,
         help="write the per-level chemistry (charge, hydropathy, potential) as CSV",
     )
 

@@ -8,6 +8,7 @@ import sys
 
 import numpy as np
 
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.geometry.axis import AXIS_METHODS, PoreAxis, find_pore_axis
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RADIUS_SETS, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms, read_structure
@@ -26,6 +27,7 @@ def add_structure_args(
         parser.add_argument(
             "structure",
             metavar="STRUCTURE",
+            type=InputPath,
             help="channel model: PDB/mmCIF (optionally .gz) or any file "
             "MDAnalysis reads (GRO, PSF, XYZ, ...)",
         )
@@ -33,6 +35,7 @@ def add_structure_args(
     g.add_argument(
         "--trajectory",
         metavar="FILE",
+        type=InputPath,
         help="coordinates for a topology-only STRUCTURE (e.g. PSF + DCD, XTC, TRR)",
     )
     if single_frame:
@@ -97,6 +100,7 @@ def add_radii_args(group) -> None:
     group.add_argument(
         "--radii-file",
         metavar="TOML",
+        type=InputPath,
         help="TOML file overriding radii ([elements] / [residues.RESNAME] tables, Å)",
     )
 
@@ -162,9 +166,9 @@ def add_profile_args(parser: argparse.ArgumentParser, *, step_A: float = 0.2):
 def add_output_args(parser: argparse.ArgumentParser, *, csv: bool = True) -> None:
     """--json, --csv and --quiet."""
     g = parser.add_argument_group("output")
-    g.add_argument("--json", metavar="FILE", help="write the result as JSON")
+    g.add_argument("--json", metavar="FILE", type=OutputPath, help="write the result as JSON")
     if csv:
-        g.add_argument("--csv", metavar="FILE", help="write the table as CSV")
+        g.add_argument("--csv", metavar="FILE", type=OutputPath, help="write the table as CSV")
     g.add_argument(
         "--quiet", action="store_true", help="no summary, progress bars or warnings on the terminal"
     )
@@ -237,7 +241,8 @@ def add_backend_args(parser: argparse.ArgumentParser):
         "--scheduler",
         metavar="ADDRESS",
         help="address of a running dask scheduler, e.g. tcp://10.0.0.5:8786 "
-        "(implies --backend dask; files must be readable by every worker)",
+        "(implies --backend dask; files must be readable by every worker). Only a "
+        "cluster you control: dask exchanges pickled data, which can run code",
     )
     return g
 
@@ -449,6 +454,7 @@ def add_figure_args(
     g.add_argument(
         "--figure",
         metavar="FILE",
+        type=OutputPath,
         help="also draw this command's figure: PNG, SVG or PDF by the suffix",
     )
     if kinds:

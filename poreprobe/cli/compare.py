@@ -15,6 +15,7 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError
 from poreprobe.io.export import to_json
 from poreprobe.io.radii import atom_radii_A
@@ -33,6 +34,7 @@ def register(sub) -> None:
         "structures",
         nargs="+",
         metavar="STRUCTURE",
+        type=InputPath,
         help="two or more models (PDB/mmCIF or any file MDAnalysis reads); the "
         "first is the reference",
     )

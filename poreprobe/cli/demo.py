@@ -5,6 +5,7 @@ from __future__ import annotations
 import time
 
 from poreprobe.cli.common import say
+from poreprobe.cli.outputs import OutputFolder
 
 
 def register(sub) -> None:
@@ -20,6 +21,7 @@ def register(sub) -> None:
         "--out",
         default="poreprobe-demo-output",
         metavar="FOLDER",
+        type=OutputFolder,
         help="folder for the results (created; default poreprobe-demo-output)",
     )
     p.add_argument(

@@ -16,6 +16,7 @@ from poreprobe.cli.common import (
     radius_set_from_args,
     say,
 )
+from poreprobe.cli.outputs import OutputPath
 from poreprobe.cli.profile import compute as compute_profile
 from poreprobe.errors import InputError
 from poreprobe.io.radii import atom_radii_A
@@ -40,21 +41,27 @@ def register(sub) -> None:
     add_profile_args(p)
     g = p.add_argument_group("exports (at least one)")
     g.add_argument(
-        "--map", metavar="FILE", help="reach (or clearance) map, .map/.ccp4/.mrc (values in Å)"
+        "--map",
+        metavar="FILE",
+        type=OutputPath,
+        help="reach (or clearance) map, .map/.ccp4/.mrc (values in Å)",
     )
     g.add_argument(
         "--mesh",
         metavar="FILE",
+        type=OutputPath,
         help="pore surface for --probe-radius-A, .ply, .obj or .glb (coordinates in Å)",
     )
     g.add_argument(
         "--centerline",
         metavar="FILE",
+        type=OutputPath,
         help="centre line: a table of points (s, centre, radius, lining residues), .cif",
     )
     g.add_argument(
         "--tube",
         metavar="FILE",
+        type=OutputPath,
         help="the pore as a tube mesh along the centre line, each ring at the pore "
         "radius, .ply, .obj or .glb (coordinates in Å)",
     )

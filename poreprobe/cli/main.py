@@ -81,10 +81,6 @@ class OneLineParser(argparse.ArgumentParser):
         raise SystemExit(2)
 
 
-def _show_warning(message, category, filename, lineno, file=None, line=None):
-    sys.stderr.write(f"poreprobe: warning: {message}\n")
-
-
 def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     """The argument parser.
 
@@ -124,8 +120,14 @@ def _command_in(argv: list[str]) -> str:
 
 
 def main(argv=None) -> int:
-    """Run the command line; returns the exit code."""
-    argv = list(sys.argv[1:] if argv is None else argv)
+    """Run the command line; returns the exit code (130 after Ctrl-C)."""
+    try:
+        return _main(list(sys.argv[1:] if argv is None else argv))
+    except KeyboardInterrupt:
+        return _interrupted()
+
+
+def _main(argv: list[str]) -> int:
     parser = build_parser(_command_in(argv))
     try:
         args = parser.parse_args(argv)
@@ -134,26 +136,89 @@ def main(argv=None) -> int:
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
-    from poreprobe.cli.dependencies import check_dependent_options, given_options
+    from poreprobe.cli.dependencies import given_options
 
     command_parser = _subparsers(parser).choices[args.command]
     args.given = given_options(command_parser, argv[argv.index(args.command) + 1 :])
-    logging.basicConfig(level=logging.WARNING, format="poreprobe: %(message)s")
     # MDAnalysis logs optional-dependency notices on import; keep stderr to our own lines
     logging.getLogger("MDAnalysis").setLevel(logging.ERROR)
-    with warnings.catch_warnings():
-        warnings.showwarning = _show_warning
-        if getattr(args, "quiet", False):
-            warnings.simplefilter("ignore")
+    return _run(args, argv)
+
+
+def _run(args: argparse.Namespace, argv: list[str]) -> int:
+    """Run one parsed command inside its output plan; errors become one line."""
+    from poreprobe.cli.outputs import input_paths
+    from poreprobe.io.provenance import RunRecord
+
+    record = RunRecord(
+        argv, vars(args), input_paths(args), quiet=bool(getattr(args, "quiet", False))
+    )
+    # broken readers of damaged files complain from __del__; the error line says it all
+    old_hook, sys.unraisablehook = sys.unraisablehook, _ignore_unraisable
+    log_handler = record.log_handler()  # logged warnings join the same collector
+    logging.getLogger().addHandler(log_handler)
+    try:
+        with warnings.catch_warnings():
+            warnings.showwarning = record.show_warning
+            return _run_planned(args, record)
+    finally:
+        logging.getLogger().removeHandler(log_handler)
+        sys.unraisablehook = old_hook
+
+
+def _run_planned(args: argparse.Namespace, record) -> int:
+    from poreprobe.cli.dependencies import check_dependent_options
+    from poreprobe.cli.outputs import plan_outputs
+
+    try:
+        check_dependent_options(args.command, args, args.given)
+        with plan_outputs(args, annotate=record.annotate) as plan:
+            code = int(args.func(args) or 0)
+            plan.commit()
+        return code
+    except PoreprobeError as exc:
+        _error(str(exc))
+        return 2
+    except OSError as exc:
+        _error(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))
+        return 2
+    except KeyboardInterrupt:
+        return _interrupted()
+
+
+def _interrupted() -> int:
+    """Ctrl-C: one line, exit status 130 (128 + SIGINT), nothing written."""
+    _close_progress_bars()
+    sys.stderr.write("poreprobe: interrupted\n")
+    return 130
+
+
+def _close_progress_bars() -> None:
+    """Clear progress bars still on the terminal, so our line starts a clean line."""
+    tqdm_module = sys.modules.get("tqdm")
+    if tqdm_module is None:
+        return
+    for bar in list(getattr(tqdm_module.tqdm, "_instances", ())):
         try:
-            check_dependent_options(args.command, args, args.given)
-            return int(args.func(args) or 0)
-        except PoreprobeError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc}\n")
-            return 2
-        except OSError as exc:
-            sys.stderr.write(f"poreprobe: error: {exc.strerror or exc}: {exc.filename or ''}\n")
-            return 2
+            bar.close()
+        except Exception:  # noqa: BLE001 - a bar that cannot close is left as it is
+            pass
+    try:
+        if sys.stderr.isatty():  # a bar caught half-drawn: back to the line start, erase it
+            sys.stderr.write("\r\033[K")
+    except (OSError, ValueError):
+        pass
+
+
+def _ignore_unraisable(unraisable) -> None:
+    """Silence 'Exception ignored in ...' reports (garbage-collected broken readers)."""
+
+
+def _error(message: str) -> None:
+    """One line on stderr, whatever the message holds."""
+    text = " ".join(str(message).split()) or "unknown error"
+    _close_progress_bars()
+    sys.stderr.write(f"poreprobe: error: {text}\n")
 
 
 if __name__ == "__main__":  # pragma: no cover

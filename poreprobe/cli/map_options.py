@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError
 
 #: Defaults repeated here so that ``--help`` needs no computing module.
@@ -17,6 +18,7 @@ def add_map_args(parser, *, with_file: bool) -> None:
         g.add_argument(
             "--density-map",
             metavar="FILE",
+            type=InputPath,
             help="also check the model against its CCP4/MRC density map (.map, .mrc, .ccp4, "
             "optionally .gz; needs --resolution-A)",
         )

@@ -13,6 +13,7 @@ from poreprobe.cli.common import (
     load_model,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 
 SUMMARY = (
     "the model against its density map at the pore: unmodelled density, side-chain "
@@ -30,7 +31,12 @@ def register(sub) -> None:
         "model's. Model-based estimates, not measurements.",
     )
     add_structure_args(p)
-    p.add_argument("density_map", metavar="MAP", help="CCP4/MRC map (.map, .mrc, .ccp4, .gz)")
+    p.add_argument(
+        "density_map",
+        metavar="MAP",
+        type=InputPath,
+        help="CCP4/MRC map (.map, .mrc, .ccp4, .gz)",
+    )
     add_axis_args(p)
     add_profile_args(p)
     map_opts.add_map_args(p, with_file=False)

@@ -32,6 +32,7 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.cli.scan import compute as scan_compute
 from poreprobe.errors import InputError
 from poreprobe.io.export import to_json
@@ -51,6 +52,7 @@ def register(sub) -> None:
         "structure",
         nargs="?",
         metavar="STRUCTURE",
+        type=InputPath,
         help="channel model (optional): PDB/mmCIF or any file MDAnalysis reads; "
         "without it only the capture radius is computed",
     )

@@ -6,6 +6,7 @@ import json
 import os
 
 from poreprobe.cli.common import add_figure_size_args, add_ion_band_args, figure_ion_radii, say
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.errors import InputError
 
 KIND_HELP = {
@@ -34,10 +35,13 @@ def register(sub) -> None:
     p.add_argument(
         "kind", metavar="KIND", choices=FIGURE_KINDS, help="figure kind: " + ", ".join(FIGURE_KINDS)
     )
-    p.add_argument("inputs", metavar="INPUT", nargs="+", help="JSON files written by poreprobe")
+    p.add_argument(
+        "inputs", metavar="INPUT", nargs="+", type=InputPath, help="JSON files written by poreprobe"
+    )
     p.add_argument(
         "--figure",
         metavar="FILE",
+        type=OutputPath,
         required=True,
         help="figure file: PNG, SVG or PDF by the suffix",
     )
@@ -60,9 +64,15 @@ def read_json(path: str) -> dict:
     """Load one result JSON file (InputError naming the file if it is not one)."""
     if not os.path.isfile(path):
         raise InputError(f"no such file: {path}")
+
+    def no_constants(name):
+        raise InputError(
+            f"{path} holds {name}, which is not JSON (poreprobe writes null for missing values)"
+        )
+
     try:
         with open(path, encoding="utf-8") as fh:
-            data = json.load(fh)
+            data = json.load(fh, parse_constant=no_constants)
     except (UnicodeDecodeError, json.JSONDecodeError) as exc:
         raise InputError(f"{path} is not a JSON file ({exc})") from exc
     if not isinstance(data, dict):

@@ -25,6 +25,7 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
+from poreprobe.cli.outputs import InputPath
 from poreprobe.errors import InputError, QualityWarning
 from poreprobe.io.export import to_json
 
@@ -43,8 +44,9 @@ def register(sub) -> None:
     )
     p.add_argument(
         "structure",
-        metavar="STRUCTURE",
         nargs="?",
+        metavar="STRUCTURE",
+        type=InputPath,
         help="channel model (PDB/mmCIF or any file MDAnalysis reads); optional "
         "with --from-conductances",
     )

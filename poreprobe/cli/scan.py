@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-import os
 
 from poreprobe.cli.common import (
     add_axis_args,
@@ -17,9 +16,9 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
-from poreprobe.errors import InputError
+from poreprobe.cli.outputs import OutputPath
 from poreprobe.geometry.probes import probe_scan, profiles_csv, scan_csv
-from poreprobe.io.export import to_json, write_atomic
+from poreprobe.io.export import to_json
 
 
 def register(sub) -> None:
@@ -37,18 +36,11 @@ def register(sub) -> None:
     p.add_argument(
         "--profiles-csv",
         metavar="FILE",
+        type=OutputPath,
         help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
     )
     add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
     p.set_defaults(func=run)
-
-
-def _check_outputs(*paths) -> None:
-    for path in paths:
-        if path:
-            folder = os.path.dirname(os.path.abspath(path))
-            if not os.path.isdir(folder):
-                raise InputError(f"cannot write {path}: folder {folder} does not exist")
 
 
 def summary_lines(atoms, scan) -> list[str]:
@@ -122,18 +114,15 @@ def compute(args):
 
 def run(args) -> int:
     parse_probe_radii(args.probe_radii_A)
-    _check_outputs(args.json, args.csv, args.profiles_csv)
     check_figure_path(args)
     atoms, scan = compute(args)
-    texts = []
+    # the command's output plan writes these together, after the figure (all or nothing)
     if args.json:
-        texts.append((args.json, to_json(scan)))
+        to_json(scan, args.json)
     if args.csv:
-        texts.append((args.csv, scan_csv(scan)))
+        scan_csv(scan, args.csv)
     if args.profiles_csv:
-        texts.append((args.profiles_csv, profiles_csv(scan)))
-    for path, text in texts:
-        write_atomic(path, text)
+        profiles_csv(scan, args.profiles_csv)
     for line in summary_lines(atoms, scan):
         say(args, line)
     save_figure(args, args.figure_kind, scan)

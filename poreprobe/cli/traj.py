@@ -21,6 +21,7 @@ from poreprobe.cli.common import (
     save_figure,
     say,
 )
+from poreprobe.cli.outputs import InputPath, OutputPath
 from poreprobe.io.export import to_json
 from poreprobe.scale.defaults import AXIS_MODES, DEFAULT_PERCENTILES, default_closing_threshold
 
@@ -37,6 +38,7 @@ def register(sub) -> None:
     p.add_argument(
         "structure",
         metavar="STRUCTURE",
+        type=InputPath,
         help="topology or multi-model file (anything MDAnalysis reads: PDB, PSF, GRO, "
         "TPR, ...); its frames, or those of --trajectory, are profiled",
     )
@@ -129,6 +131,7 @@ def register(sub) -> None:
     p.add_argument_group("per-frame output").add_argument(
         "--frames-csv",
         metavar="FILE",
+        type=OutputPath,
         help="write one row per frame (narrowest radius, its position, capture radius, "
         "closed flag) as CSV",
     )

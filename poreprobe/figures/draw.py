@@ -26,7 +26,9 @@ def _classify(results: Sequence[dict]) -> dict[str, list[dict]]:
         "check": [],
     }
     for d in results:
-        if "segments" in d and "conductance_pS" in d:
+        if "per_frame" in d and is_trajectory(d):  # before scan: it may carry a capture block
+            kinds["trajectory"].append(d)
+        elif "segments" in d and "conductance_pS" in d:
             kinds["resistance"].append(d)
         elif isinstance(d.get("capture"), Mapping) and "probe_radius_A" in d["capture"]:
             kinds["scan"].append(d)

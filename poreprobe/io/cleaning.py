@@ -53,11 +53,15 @@ def resolve_altlocs(atoms: Atoms, policy: str = "occupancy") -> Atoms:
 def altloc_keep(atoms: Atoms, policy: str) -> tuple[np.ndarray, int]:
     """Which atoms :func:`resolve_altlocs` keeps (a boolean mask) and how many it drops."""
     has_alt = atoms.altloc != ""
+    present = set(atoms.altloc[has_alt].tolist())
+    if policy not in ALTLOC_POLICIES and policy not in present:  # a letter the file lacks
+        raise InputError(
+            f"--altloc {policy}: the file has altlocs {', '.join(sorted(present))} only"
+            if present
+            else f"--altloc {policy}: {atoms.source or 'the file'} has no alternate locations"
+        )
     if not has_alt.any():
         return np.ones(len(atoms), dtype=bool), 0
-    if len(policy) == 1 and policy not in ALTLOC_POLICIES and policy not in atoms.altloc:
-        letters = ", ".join(sorted(set(atoms.altloc[has_alt].tolist())))
-        raise InputError(f"--altloc {policy}: the file has altlocs {letters} only")
     idx = np.flatnonzero(has_alt)
     key = np.char.add(
         np.char.add(atoms.chain[idx], "|"),

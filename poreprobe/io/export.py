@@ -1,7 +1,8 @@
 """Writing results: JSON and CSV, atomically.
 
-Every file is written to a temporary file in the target folder and renamed into
-place, so a failed run never leaves a partial output file.
+Files are written through :mod:`poreprobe.io.writer`: a temporary file in the
+target folder renamed into place (devices and streams written through), all
+outputs of a command together, so a failed run never leaves a partial output.
 """
 
 from __future__ import annotations
@@ -11,7 +12,6 @@ import io
 import json
 import math
 import os
-import tempfile
 from collections.abc import Iterable, Sequence
 
 import numpy as np
@@ -41,31 +41,16 @@ def _jsonable(obj):
     return obj
 
 
-def _current_umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
-
-
 def write_atomic(path, text: str | bytes) -> None:
-    """Write ``text`` to ``path`` through a temporary file and a rename."""
-    path = os.fspath(path)
-    folder = os.path.dirname(os.path.abspath(path))
-    if not os.path.isdir(folder):
-        raise InputError(f"cannot write {path}: folder {folder} does not exist")
-    mode = "wb" if isinstance(text, bytes) else "w"
-    fd, tmp = tempfile.mkstemp(prefix=".poreprobe-", dir=folder)
-    os.chmod(tmp, 0o666 & ~_current_umask())  # mkstemp makes 0600; give the usual mode
-    try:
-        with os.fdopen(
-            fd, mode, **({} if mode == "wb" else {"encoding": "utf-8", "newline": ""})
-        ) as fh:
-            fh.write(text)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
+    """Write ``text`` to ``path`` safely: see :func:`poreprobe.io.writer.write_output`.
+
+    Regular files go through a temporary file and a rename; devices, FIFOs and
+    the standard streams are written through; inside a command's output plan the
+    data waits for the plan's all-or-nothing commit.
+    """
+    from poreprobe.io.writer import write_output
+
+    write_output(path, text)
 
 
 def to_json(result, path=None, *, indent: int = 2) -> str:
@@ -74,9 +59,12 @@ def to_json(result, path=None, *, indent: int = 2) -> str:
     NaN and infinity become ``null``. With ``path``, the JSON is also written
     atomically to that file.
     """
-    text = json.dumps(_jsonable(result), indent=indent, allow_nan=False) + "\n"
+    doc = _jsonable(result)
+    text = json.dumps(doc, indent=indent, allow_nan=False) + "\n"
     if path is not None:
-        write_atomic(path, text)
+        from poreprobe.io.writer import write_output
+
+        write_output(path, text, kind="json", payload=doc)
     return text
 
 
@@ -103,7 +91,9 @@ def to_csv(
         )
     text = buf.getvalue()
     if path is not None:
-        write_atomic(path, text)
+        from poreprobe.io.writer import write_output
+
+        write_output(path, text, kind="csv")
     return text
 
 

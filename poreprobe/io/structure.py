@@ -332,15 +332,16 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     n = len(ag)
     if n == 0:
         raise InputError("the atom group is empty")
-    names = np.asarray(ag.names).astype(str)
-    resnames = np.asarray(ag.resnames).astype(str)
 
     def attr(name, default):
         try:
             vals = np.asarray(getattr(ag, name))
-        except (AttributeError, ValueError):
+        except (AttributeError, ValueError):  # NoDataError is an AttributeError
             return np.full(n, default)
         return vals if len(vals) == n else np.full(n, default)
+
+    names = attr("names", "X").astype(str)
+    resnames = attr("resnames", "UNK").astype(str)  # bare XYZ files have no residues
 
     element = np.char.upper(attr("elements", "").astype(str))
     missing = element == ""
@@ -356,10 +357,18 @@ def atoms_from_atomgroup(ag, *, source: str = "AtomGroup") -> Atoms:
     protein_names = set(ProteinSelection.prot_res)
     kind = np.where(np.isin(resnames, list(protein_names)), "polymer", "hetero").astype(object)
     kind[np.isin(np.char.upper(resnames), list(WATER_NAMES))] = "water"
-    resids = np.asarray(ag.resids, dtype=np.int64)
+    resids = attr("resids", 1).astype(np.int64)
     kind = _adopt_caps(kind, chain, resids)
+    positions = np.array(ag.positions, dtype=np.float64)
+    if not np.isfinite(positions).all():  # one line naming the atom (and the frame)
+        i = int(np.flatnonzero(~np.isfinite(positions).all(axis=1))[0])
+        frame = getattr(getattr(ag.universe.trajectory, "ts", None), "frame", None)
+        raise InputError(
+            f"{source}{'' if frame is None else f', frame {frame}'}: atom {chain[i]}:"
+            f"{resnames[i]}{resids[i]} {names[i]} (atom {i + 1}) has a non-finite coordinate"
+        )
     atoms = Atoms(
-        coords_A=np.array(ag.positions, dtype=np.float64),
+        coords_A=positions,
         element=element,
         name=names,
         resname=resnames,
@@ -406,7 +415,11 @@ def open_universe(path: str, trajectory: str | None = None):
             return mda.Universe(*args)
     except Exception as exc:  # MDAnalysis raises many types for unreadable files
         msg = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
-        raise InputError(f"cannot read {path}: {msg}") from exc
+        from poreprobe.io.sanity import collect_quietly, opens_alone
+
+        collect_quietly()  # half-built readers complain from __del__ otherwise
+        culprit = path if trajectory is None or not opens_alone(path) else trajectory
+        raise InputError(f"cannot read {culprit}: {msg}") from exc
 
 
 def read_structure(
@@ -461,9 +474,12 @@ def read_structure(
     (2220, 'demo_channel.pdb')
     """
     # cleaning works on Atoms, so it imports this module; import it here, not at the top
+    from poreprobe.io import sanity
     from poreprobe.io.cleaning import check_altloc, clean, resolve_altlocs, select
 
     path = os.fspath(path)
+    if os.path.isdir(path):
+        raise InputError(f"cannot read {path}: it is a directory, not a file")
     if not os.path.isfile(path):
         raise InputError(f"no such file: {path}")
     if os.path.getsize(path) == 0:
@@ -482,13 +498,14 @@ def read_structure(
         if len(universe.atoms) == 0:
             raise InputError(f"{path} holds no atoms")
         atoms = atoms_from_atomgroup(universe.atoms, source=os.path.basename(path))
-    atoms = resolve_altlocs(atoms, altloc)
+    sanity.check_coordinates(atoms, path)
+    atoms = sanity.drop_duplicate_atoms(resolve_altlocs(atoms, altloc))
     atoms = clean(atoms, hydrogens=hydrogens, waters=waters, ions=ions, hetero=hetero)
     if len(atoms) == 0:
         raise InputError(f"no atoms left in {path} after cleaning (try keeping hetero groups)")
     if selection:
         atoms = select(atoms, selection)
-    return atoms
+    return sanity.drop_far_atoms(atoms)
 
 
 def atoms_field_names() -> tuple[str, ...]:

@@ -128,7 +128,8 @@ class ProcessPoolBackend(BackendMultiprocessing):
     def apply(self, func: Callable, computations: list) -> list:
         from multiprocessing import Pool
 
-        with Pool(processes=self.n_workers) as pool:
+        # workers ignore Ctrl-C: the parent stops them (Pool.__exit__ terminates the pool)
+        with Pool(processes=self.n_workers, initializer=_ignore_sigint) as pool:
             return list(
                 progress(
                     pool.imap(func, computations),
@@ -137,6 +138,13 @@ class ProcessPoolBackend(BackendMultiprocessing):
                     quiet=self.quiet,
                 )
             )
+
+
+def _ignore_sigint() -> None:
+    """Worker start-up: leave SIGINT (a terminal's Ctrl-C) to the parent process."""
+    import signal
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
 def _count_workers(client) -> int:
@@ -199,13 +207,16 @@ def open_backend(
     with _quiet_logger("distributed"):
         if scheduler is None:
             with (
-                LocalCluster(
+                _local_cluster_quietly(
+                    LocalCluster,
                     n_workers=n_workers or 1,
                     threads_per_worker=1,
                     processes=True,
                     dashboard_address=None,
                     scheduler_kwargs={"dashboard": False},
-                    silence_logs=logging.ERROR,
+                    # workers' own log lines (heartbeats failing while a run is
+                    # stopped) stay off the terminal; task errors reach us as exceptions
+                    silence_logs=logging.CRITICAL,
                 ) as cluster,
                 Client(cluster) as client,
             ):
@@ -223,6 +234,47 @@ def open_backend(
             yield DaskClientBackend(client, n_workers, quiet=quiet, desc=desc)
         finally:
             client.close()
+
+
+def _local_cluster_quietly(factory, **kwargs):
+    """Start a local dask cluster whose worker processes ignore Ctrl-C.
+
+    The workers inherit SIGINT ignored (set while they are spawned), so a Ctrl-C
+    on the terminal reaches only the parent, which closes the cluster; a busy
+    default port is not worth a warning (the cluster has no dashboard).
+    """
+    import signal
+    import threading
+    import warnings
+
+    _quiet_resource_tracker()
+    main = threading.current_thread() is threading.main_thread()
+    old = signal.signal(signal.SIGINT, signal.SIG_IGN) if main else None
+    try:
+        with warnings.catch_warnings():
+            warnings.filterwarnings("ignore", message="Port .* is already in use")
+            return factory(**kwargs)
+    finally:
+        if main:
+            signal.signal(signal.SIGINT, old)
+
+
+def _quiet_resource_tracker() -> None:
+    """Start multiprocessing's resource tracker without its 'leaked semaphore' notice.
+
+    After a stopped run the tracker unlinks what the workers left, and says so on the
+    terminal; it still cleans up, but the notice is not ours to print. The tracker
+    takes its warning filters from ``sys.warnoptions`` when it starts.
+    """
+    import sys
+    from multiprocessing import resource_tracker
+
+    saved = list(sys.warnoptions)
+    sys.warnoptions.append("ignore:resource_tracker:UserWarning")
+    try:
+        resource_tracker.ensure_running()
+    finally:
+        sys.warnoptions[:] = saved
 
 
 @contextlib.contextmanager

@@ -317,7 +317,14 @@ class PoreProfileAnalysis(AnalysisBase):
         fit_rmsd_A : float
             RMSD of the alignment atoms after the fit (NaN in per-frame mode).
         """
-        atoms = self._template.with_coords(self.atomgroup.positions)
+        positions = np.asarray(self.atomgroup.positions, dtype=np.float64)
+        if not np.isfinite(positions).all():  # one line naming the atom and the frame
+            from poreprobe.io.sanity import check_coordinates
+
+            frame = self.atomgroup.universe.trajectory.ts.frame
+            where = f"{self._template.source or 'trajectory'}, frame {frame}"
+            check_coordinates(replace(self._template, coords_A=positions), where)
+        atoms = self._template.with_coords(positions)
         if self.axis_mode == "per-frame":
             axis = find_pore_axis(atoms, radii_A=self._radii_A, **self._axis_options)
             if axis.direction @ self.reference_axis.direction < 0:
@@ -646,7 +653,9 @@ def profile_trajectory(
         context = open_backend(
             backend, n_workers=n_workers, scheduler=scheduler, quiet=quiet, desc="frame blocks"
         )
-    with context as executor:
+    from poreprobe.io.sanity import frame_read_errors
+
+    with frame_read_errors(trajectory or topology), context as executor:
         if isinstance(executor, BackendSerial):  # a bar that advances frame by frame
             from poreprobe._progress import progress
 
