@@ -11,6 +11,7 @@ from poreprobe.checks.quality import (
     check_model,
 )
 from poreprobe.cli import chemistry_options as chem_opts
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli import map_options as map_opts
 from poreprobe.cli.common import (
     add_axis_args,
@@ -98,6 +99,7 @@ def register(sub) -> None:
     add_figure_args(p, ion_bands=False)
     chem_opts.add_chemistry_args(p)
     map_opts.add_map_args(p, with_file=True)
+    ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
 
@@ -156,6 +158,7 @@ def lining_csv(report, path=None) -> str:
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
+    ens_opts.check_ensemble_args(args)
     if args.density_map:
         from poreprobe.io.density_map import _check_map_path
 
@@ -202,6 +205,7 @@ def run(args) -> int:
         warn=False,
     )
     chem = chem_opts.chemistry_from_args(args, wall_atoms, report.profile, report.lining)
+    ensemble = ens_opts.ensemble_from_args(args, wall_atoms, axis, ion=args.ion)
     density = None
     if args.density_map:
         from dataclasses import replace
@@ -215,13 +219,23 @@ def run(args) -> int:
     result = chem_opts.with_chemistry(report, chem)
     if density is not None:
         result["density_map"] = density.to_dict()
+    result = ens_opts.with_ensemble(result, ensemble)
     if args.json:
         to_json(result, args.json)
     if args.csv:
         lining_csv(report, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    lines = report.report_lines() + ([""] + chem.report_lines() if chem else [])
+    lines = report.report_lines()
+    if ensemble is not None:
+        lines = [
+            line + ens_opts.narrowest_line_suffix(ensemble)
+            if line.startswith("narrowest:")
+            else line
+            for line in lines
+        ]
+        lines += [""] + ensemble.report_lines()
+    lines += ([""] + chem.report_lines()) if chem else []
     for line in lines + ([""] + density.report_lines() if density else []):
         say(args, line)
     if args.figure:

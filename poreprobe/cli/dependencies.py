@@ -78,7 +78,18 @@ RULES: tuple[Needs, ...] = (
     Needs("lining_distance_A", "--centerline", lambda a: bool(getattr(a, "centerline", True))),
     Needs("chemistry_csv", "the chemistry (drop --no-chemistry)", lambda a: not a.no_chemistry),
     Needs("ion", "--check", lambda a: getattr(a, "check", True) is not False),
+    Needs("error_source", "--ensemble", lambda a: bool(a.ensemble)),
+    Needs(
+        "coordinate_error_A",
+        "--error-source uniform",
+        lambda a: bool(a.ensemble) and a.error_source == "uniform",
+    ),
 )
+
+
+def _resolution_source(args) -> bool:
+    return bool(getattr(args, "ensemble", 0)) and args.error_source == "resolution"
+
 
 #: Rules of one command only: (command, rule).
 COMMAND_RULES: tuple[tuple[str, Needs], ...] = (
@@ -93,8 +104,25 @@ COMMAND_RULES: tuple[tuple[str, Needs], ...] = (
     ("export", Needs("probe_radius_A", "--mesh", lambda a: bool(a.mesh))),
     *(
         ("check", Needs(dest, "--density-map", lambda a: bool(a.density_map)))
-        for dest in ("contour", "resolution_A", "lumen_margin_A", "min_support")
+        for dest in ("contour", "lumen_margin_A", "min_support")
     ),
+    (
+        "check",
+        Needs(
+            "resolution_A",
+            "--density-map or --error-source resolution",
+            lambda a: bool(a.density_map) or _resolution_source(a),
+        ),
+    ),
+    *(
+        (command, Needs("resolution_A", "--error-source resolution", _resolution_source))
+        for command in ("profile", "scan", "match", "report")
+    ),
+    *(
+        (command, Needs("seed", "--ensemble", lambda a: bool(a.ensemble)))
+        for command in ("profile", "scan", "check", "report")
+    ),
+    ("report", Needs("current_sd_pA", "--current-pA", lambda a: a.current_pA is not None)),
     ("export", Needs("entry_end", "--map with --map-field reach", lambda a: bool(a.map))),
     *(
         ("traj", Needs(dest, "--probe-radius-A", lambda a: a.probe_radius_A is not None))

@@ -61,6 +61,11 @@ COMMANDS = {
         "radius profiles over trajectory frames or models, with statistics",
     ),
     "batch": ("poreprobe.cli.batch", "narrowest radius of many models, one summary table"),
+    "report": (
+        "poreprobe.cli.report",
+        "one self-contained HTML report (and PDF) to share: provenance, checks, "
+        "profile, scan, bench match, resistance, bands",
+    ),
 }
 
 
@@ -136,6 +141,7 @@ def _main(argv: list[str]) -> int:
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
+    args.argv = argv  # the words as given (a report records its command line)
     from poreprobe.cli.dependencies import given_options
 
     command_parser = _subparsers(parser).choices[args.command]

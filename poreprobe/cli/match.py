@@ -21,6 +21,7 @@ from poreprobe.bench.ions import get_ion
 from poreprobe.bench.match import match_scan
 from poreprobe.bench.match_intervals import MatchInterval
 from poreprobe.bench.viscosity import VISCOGENS, diffusion_coefficient
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -183,10 +184,11 @@ def register(sub) -> None:
         type=int,
         default=DEFAULT_SEED,
         metavar="N",
-        help=f"Monte Carlo seed, integer (default {DEFAULT_SEED})",
+        help=f"Monte Carlo seed, integer (default {DEFAULT_SEED}); also seeds --ensemble",
     )
     add_output_args(p, csv=False)
     add_figure_args(p)
+    ens_opts.add_ensemble_args(p, seed=False)
     p.set_defaults(func=run)
 
 
@@ -259,6 +261,23 @@ def compute(args) -> dict:
             "enters": scan.enters.tolist(),
             "notes": [*atoms.notes, *scan.notes],
         }
+        ensemble = ens_opts.ensemble_from_args(
+            args,
+            atoms,
+            scan.axis,
+            probe_radii_A=scan.probe_radius_A,
+            scan_options={
+                "spacing_A": args.spacing_A,
+                "from_end": args.entry_end,
+                "pore_radius_A": args.search_radius_A,
+            },
+            ion=args.ion,
+            match_capture_radius_A=est.capture_radius_A,
+            match_sd_A=est.capture_radius_sd_A,
+        )
+        out = ens_opts.with_ensemble(out, ensemble)
+        if ensemble is not None:
+            out["ensemble_lines"] = ensemble.report_lines()
     return out
 
 
@@ -342,12 +361,23 @@ def run(args) -> int:
             "--figure draws the match against a structure's capture curve: give a STRUCTURE"
         )
     check_figure_path(args)
+    if args.ensemble and not args.structure:
+        raise InputError("--ensemble perturbs a structure's atoms: give a STRUCTURE")
+    ens_opts.check_ensemble_args(args)
     out = compute(args)
+    extra = out.pop("ensemble_lines", [])
     if args.json:
         to_json(out, args.json)
-    for line in summary_lines(out):
+    for line in summary_lines(out) + extra:
         say(args, line)
-    save_figure(args, "capture", out)
+    if args.figure:
+        # the structure's own curve with its pass / stop / no-entry flags, so the markers
+        # are those of the demo's capture figure (the match alone carries a bare curve)
+        curve = {
+            key: out["structure"][key]
+            for key in ("probe_radius_A", "capture_radius_A", "passes", "enters")
+        }
+        save_figure(args, "capture", {"capture": curve}, out)
     return 0
 
 

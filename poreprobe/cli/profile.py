@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from poreprobe.cli import chemistry_options as chem_opts
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -34,6 +35,7 @@ def register(sub) -> None:
     add_output_args(p)
     add_figure_args(p, ion_bands=True)
     chem_opts.add_chemistry_args(p)
+    ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
 
@@ -58,7 +60,7 @@ def _with_set_name(prof, name):
     return replace(prof, radius_set=name)
 
 
-def summary_lines(atoms, prof) -> list[str]:
+def summary_lines(atoms, prof, ensemble=None) -> list[str]:
     ax = prof.axis
     finite = prof.radius_A[~(prof.radius_A != prof.radius_A)]
     lines = [
@@ -70,8 +72,12 @@ def summary_lines(atoms, prof) -> list[str]:
         f"oriented by {ax.oriented_by}",
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
-        f"narrowest: {prof.narrowest_text()}, lined by {', '.join(prof.min_residues[:8]) or 'n/a'}",
+        f"narrowest: {prof.narrowest_text()}, "
+        f"lined by {', '.join(prof.min_residues[:8]) or 'n/a'}"
+        + ens_opts.narrowest_line_suffix(ensemble),
     ]
+    if ensemble is not None:
+        lines += ensemble.report_lines()
     lines += [f"note: {n}" for n in atoms.notes]
     return lines
 
@@ -83,17 +89,22 @@ def _fmt(vec, digits=2):
 def run(args) -> int:
     check_figure_path(args)
     chem_opts.check_chemistry_args(args)
-    atoms, _, prof = compute(args)
+    ens_opts.check_ensemble_args(args)
+    atoms, axis, prof = compute(args)
     chem = chem_opts.chemistry_from_args(args, atoms, prof, radii=radius_set_from_args(args))
+    ensemble = ens_opts.ensemble_from_args(args, atoms, axis)
     if args.json:
-        to_json(chem_opts.with_chemistry(prof, chem), args.json)
+        to_json(ens_opts.with_ensemble(chem_opts.with_chemistry(prof, chem), ensemble), args.json)
     if args.csv:
         profile_csv(prof, args.csv)
     if chem is not None and args.chemistry_csv:
         chem_opts.chemistry_csv(chem, args.chemistry_csv)
-    for line in summary_lines(atoms, prof) + ([] if chem is None else chem.report_lines()):
+    lines = summary_lines(atoms, prof, ensemble)
+    for line in lines + ([] if chem is None else chem.report_lines()):
         say(args, line)
-    if chem is None:
+    if ensemble is not None and args.figure:
+        ens_opts.save_band_figure(args, ensemble)
+    elif chem is None:
         save_figure(args, "profile", prof)
     elif args.figure:
         chem_opts.save_chemistry_figure(args, chem_opts.with_chemistry(prof, chem))

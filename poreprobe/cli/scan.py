@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 
+from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
     add_axis_args,
     add_figure_args,
@@ -40,10 +41,11 @@ def register(sub) -> None:
         help="write the accessible-radius profiles as CSV (probe, s, radii in Å)",
     )
     add_figure_args(p, ion_bands=True, kinds=("probes", "capture"))
+    ens_opts.add_ensemble_args(p)
     p.set_defaults(func=run)
 
 
-def summary_lines(atoms, scan) -> list[str]:
+def summary_lines(atoms, scan, ensemble=None) -> list[str]:
     ax = scan.axis
     lines = [
         f"poreprobe {scan.version}: probe-size scan of {atoms.source} ({len(atoms)} atoms) "
@@ -69,6 +71,12 @@ def summary_lines(atoms, scan) -> list[str]:
     lines.append(
         "largest probe that passes: "
         + (f"{passing:.2f} Å" if math.isfinite(passing) else "none of those scanned")
+        + (
+            ens_opts.interval(ensemble.largest_passing)
+            + f", {ensemble.largest_passing.n} of {ensemble.n_members} members pass"
+            if ensemble is not None
+            else ""
+        )
     )
     if math.isfinite(scan.bottleneck_clearance_A):
         lines.append(
@@ -86,6 +94,8 @@ def summary_lines(atoms, scan) -> list[str]:
                 else ""
             )
         )
+    if ensemble is not None:
+        lines += ens_opts.scan_band_lines(ensemble) + ensemble.report_lines()
     lines += [f"note: {n}" for n in (*atoms.notes, *scan.notes)]
     return lines
 
@@ -112,18 +122,51 @@ def compute(args):
     return atoms, scan
 
 
+def scan_ensemble(args, atoms, scan):
+    """The --ensemble of a scan: every member scanned with the same probes and options."""
+    return ens_opts.ensemble_from_args(
+        args,
+        atoms,
+        scan.axis,
+        probe_radii_A=scan.probe_radius_A,
+        scan_options={
+            "spacing_A": args.spacing_A,
+            "from_end": args.entry_end,
+            "pore_radius_A": args.search_radius_A,
+        },
+    )
+
+
 def run(args) -> int:
     parse_probe_radii(args.probe_radii_A)
+    ens_opts.check_ensemble_args(args)
     check_figure_path(args)
     atoms, scan = compute(args)
+    ensemble = scan_ensemble(args, atoms, scan)
     # the command's output plan writes these together, after the figure (all or nothing)
     if args.json:
-        to_json(scan, args.json)
+        to_json(ens_opts.with_ensemble(scan.to_dict(), ensemble), args.json)
     if args.csv:
         scan_csv(scan, args.csv)
     if args.profiles_csv:
         profiles_csv(scan, args.profiles_csv)
-    for line in summary_lines(atoms, scan):
+    for line in summary_lines(atoms, scan, ensemble):
         say(args, line)
-    save_figure(args, args.figure_kind, scan)
+    if args.figure and args.figure_kind == "probes":
+        _save_probe_panels(args, scan)
+    else:
+        save_figure(args, args.figure_kind, scan)
     return 0
+
+
+def _save_probe_panels(args, scan) -> None:
+    """--figure-kind probes: small multiples of chosen probes (figures/probe_profiles.py)."""
+    from poreprobe.cli.common import figure_ion_radii
+    from poreprobe.figures import style
+    from poreprobe.figures.probe_profiles import plot_probe_profiles
+
+    fig = plot_probe_profiles(
+        scan, ion_radii=figure_ion_radii(args), width_mm=args.width_mm, height_mm=args.height_mm
+    )
+    style.save_figure(fig, args.figure, dpi=args.dpi)
+    say(args, f"figure: {args.figure}")

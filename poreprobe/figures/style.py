@@ -100,7 +100,7 @@ def _font_family() -> list[str]:
 def house_rc() -> dict:
     """The rcParams of the house style (fonts, line widths, vector text)."""
     return {
-        "font.family": "sans-serif",
+        "font.family": [*_font_family(), "sans-serif"],  # per-glyph fallback
         "font.sans-serif": _font_family(),
         "font.size": FONT_PT,
         "axes.titlesize": FONT_PT,

@@ -43,10 +43,10 @@ import numpy as np
 from MDAnalysis.analysis.base import AnalysisBase
 from MDAnalysis.analysis.results import ResultsGroup
 
-from poreprobe._validate import check_choice, check_int, check_positive, check_range
+from poreprobe._validate import check_choice, check_int, check_positive
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.axis import PoreAxis, find_pore_axis
-from poreprobe.geometry.profile import plane_positions_A, radius_profile
+from poreprobe.geometry.profile import radius_profile
 from poreprobe.io.cleaning import cleaned_indices, select_in_universe
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms, atoms_from_atomgroup
@@ -55,6 +55,9 @@ from poreprobe.scale.defaults import (
     DEFAULT_PERCENTILES,
     default_closing_threshold,
 )
+from poreprobe.scale.frame_grid import check_percentiles as _check_percentiles
+from poreprobe.scale.frame_grid import check_s_range as _check_range
+from poreprobe.scale.frame_grid import grid_range_A as _grid_range_A
 from poreprobe.scale.trajectory_profiles import TrajectoryProfiles, nan_percentiles, nan_sd
 
 #: Per-frame results keys and how the parts of a parallel run are merged.
@@ -350,10 +353,25 @@ class PoreProfileAnalysis(AnalysisBase):
         return atoms.with_coords(moved), ref, frame_axis, float(rmsd)
 
     def _compute(self, indexed_frames, verbose=None, *, progressbar_kwargs=None):
+        """One block of frames; returns its frames, times and results (a ``BlockResult``).
+
+        Not the analysis object itself: a worker would otherwise send the whole
+        object, ``Universe`` included, back with every block; and one analysis
+        object shipped once to a worker serves all of that worker's blocks.
+        """
+        from MDAnalysis.analysis.results import Results
+
+        from poreprobe.scale.parallel import BlockResult
+
         # the missing-time-step warning was given once in __init__; not again per block
         with warnings.catch_warnings():
             warnings.filterwarnings("ignore", message=_NO_DT_MESSAGE)
-            return super()._compute(indexed_frames, verbose, progressbar_kwargs=progressbar_kwargs)
+            super()._compute(indexed_frames, verbose, progressbar_kwargs=progressbar_kwargs)
+        return BlockResult(
+            frames=np.array(self.frames),
+            times=np.array(self.times),
+            results=Results(**self.results),
+        )
 
     def _prepare(self):
         n, p = self.n_frames, len(self.s_A)
@@ -397,6 +415,7 @@ class PoreProfileAnalysis(AnalysisBase):
                     probe_radii_A=[self.capture_probe_radius_A],
                     radii_A=self._radii_A,
                     **self._capture_options,
+                    error_estimate=False,  # one capture radius per model: no second grid
                 )
             except PoreNotFoundError:
                 return float("nan")
@@ -484,39 +503,6 @@ class PoreProfileAnalysis(AnalysisBase):
             source=_source_name(self.atomgroup),
             trajectory=os.path.basename(str(getattr(traj, "filename", "") or "")),
         )
-
-
-def _check_percentiles(percentiles) -> tuple[float, ...]:
-    try:
-        values = tuple(float(q) for q in percentiles)
-    except TypeError as exc:
-        raise InputError(f"percentiles must be a sequence of numbers, got {percentiles!r}") from exc
-    if not values:
-        raise InputError("percentiles must hold at least one level")
-    return tuple(check_range(q, "percentiles", 0.0, 100.0) for q in values)
-
-
-def _grid_range_A(s_atoms_A: np.ndarray, step_A: float, margin_A: float) -> tuple[float, float]:
-    """The (low, high) range that makes the profile rebuild the reference grid exactly.
-
-    The reference planes are multiples of the step covering the atoms plus the
-    margin; the range passed on lies a quarter step inside the end planes, so the
-    profile's floor/ceil of range/step lands on the same multiples every frame.
-    """
-    planes = plane_positions_A(s_atoms_A, step_A, margin_A)
-    return float(planes[0]) + 0.25 * step_A, max(
-        float(planes[-1]) - 0.25 * step_A, float(planes[0]) + 0.5 * step_A
-    )
-
-
-def _check_range(s_range_A) -> tuple[float, float]:
-    try:
-        lo, hi = (float(v) for v in s_range_A)
-    except (TypeError, ValueError) as exc:
-        raise InputError(f"s_range_A must be (low, high) in Å, got {s_range_A!r}") from exc
-    if not (np.isfinite(lo) and np.isfinite(hi) and hi > lo):
-        raise InputError(f"s_range_A must be (low, high) with high > low, got {s_range_A!r}")
-    return lo, hi
 
 
 _NO_DT_MESSAGE = "Reader has no dt information"
