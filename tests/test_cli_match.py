@@ -201,6 +201,10 @@ def test_structure_match_cylinder(c4_cylinder_pdb, tmp_path):
     # Slope of c(p) is -1, so the band r_c ± SD maps to p ± SD.
     assert hi - lo == pytest.approx(2 * d["capture_radius_sd_A"], rel=0.1)
     assert all(d["structure"]["passes"]) and d["structure"]["radius_set"] == "bondi"
+    (iv,) = d["match"]["intervals"]  # one interval, with its probes' decision and level
+    assert iv["rank"] == 1 and iv["passes"] == "all"
+    assert iv["probe_radius_low_A"] == pytest.approx(lo)
+    assert all(s is not None for s in iv["stop_s_A"])
     kinds = {c["kind"]: c for c in d["match"]["ion_radii"]}
     assert not kinds["hydrated"]["in_scan_range"]  # 3.31 Å > 3 Å scanned
     assert kinds["crystal"]["capture_radius_A"] == pytest.approx(4.3 - 1.38, abs=0.15)

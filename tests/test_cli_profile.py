@@ -28,7 +28,7 @@ def test_profile_writes_json_and_csv(c4_cylinder_pdb, tmp_path, capsys):
     assert data["min_radius_A"] == pytest.approx(6.0 - 1.7, abs=0.01)  # ring 6 Å, Bondi C
     assert "min_s_A" in data and data["version"]
     lines = [ln for ln in cs.read_text().splitlines() if not ln.startswith("#")]
-    assert lines[0] == "s_A,radius_A,center_x_A,center_y_A,center_z_A"
+    assert lines[0] == ("s_A,radius_A,center_x_A,center_y_A,center_z_A,occluded,signed_clearance_A")
     assert len(lines) == len(data["profile"]["s_A"]) + 1
     assert "narrowest: radius 4.30 Å" in out
     assert "model-based estimate" in out

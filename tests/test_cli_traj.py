@@ -135,3 +135,39 @@ def test_traj_takes_the_shared_structure_options(breathing, tmp_path):
     assert main([*argv, "--json", str(out), "--quiet"]) == 0
     data = json.loads(out.read_text())
     assert data["n_atoms"] == expected and data["n_frames"] == 2
+
+
+def test_summary_says_occluded_instead_of_a_negative_radius():
+    from types import SimpleNamespace
+
+    from poreprobe.cli.traj import summary_lines
+    from poreprobe.geometry.axis import PoreAxis
+
+    result = SimpleNamespace(
+        reference_axis=PoreAxis([0, 0, 0], [0, 0, 1], "user"),
+        min_radius_A=np.array([1.2, 0.0, 0.9]),
+        min_s_A=np.array([1.0, 2.0, 3.0]),
+        frames=np.array([0, 1, 2]),
+        version="x",
+        source="m.pdb",
+        trajectory="t.xtc",
+        n_atoms=10,
+        n_frames=3,
+        axis_mode="fixed",
+        reference_frame=0,
+        radius_set="bondi",
+        s_A=np.arange(5.0),
+        step_A=1.0,
+        percentiles=(50,),
+        min_radius_percentiles_A=np.array([0.9]),
+        min_radius_mean_A=0.7,
+        min_radius_sd_A=0.5,
+        capture_radius_A=None,
+        closed_frames=np.array([1]),
+        borderline_frames=np.array([2]),
+        closed_below_A=1.33,
+    )
+    text = "\n".join(summary_lines(result, "serial"))
+    assert "narrowest of all: occluded (radius 0) at s = 2.0 Å in frame 1" in text
+    assert "occluded in 1 of 3 frames" in text
+    assert "-0." not in text

@@ -48,8 +48,12 @@ def test_demo_writes_its_outputs(demo_out):
 def test_demo_results_are_consistent(demo_out):
     summary = json.loads((demo_out / "summary.json").read_text())
     cap = summary["capture_radius_at_middle_probe_A"]
-    # the widened-entrance mutant lets a middle-sized probe in wider
-    assert cap["widened"] > cap["channel"] + 0.2
+    stop = summary["stop_s_at_middle_probe_A"]
+    # the widened-entrance mutant lets a middle-sized probe in much deeper (s grows from
+    # the entry); in the channel it is caught in the mouth. (Its capture radius there is
+    # not a monotonic signal: at the mouth the swept section is wide.)
+    assert stop["widened"] > stop["channel"] + 10.0
+    assert cap["widened"] > 0.5
     # the closed state is narrower than a bare K+ ion anywhere along its pore
     assert summary["closed_min_radius_A"] < K_CRYSTAL_RADIUS_A
     assert summary["closed_verdict"] == "closed"

@@ -148,7 +148,13 @@ def test_intervals_equal_brute_force(values, r, sd):
     assert np.interp(m.best_probe_radius_A, p, c) == pytest.approx(
         m.best_capture_radius_A, abs=1e-9
     )
-    if not m.best_exact:
+    if m.ranked_intervals:
+        # the representative p lies in the top-ranked interval, which is the widest
+        top = m.ranked_intervals[0]
+        assert top.low_A - 1e-9 <= m.best_probe_radius_A <= top.high_A + 1e-9
+        assert top.width_A >= max(iv.width_A for iv in m.ranked_intervals) - 1e-9
+        assert [iv.rank for iv in m.ranked_intervals] == list(range(1, len(m.intervals_A) + 1))
+    elif not m.best_exact:
         assert np.abs(y - r).min() >= abs(m.best_capture_radius_A - r) - 1e-9
 
 
@@ -196,3 +202,71 @@ def test_to_dict_keys_and_read_only():
     assert len(d["ion_radii"]) == 3
     with pytest.raises(ValueError):
         m.capture_radius_A[0] = 1.0
+
+
+def test_non_monotonic_curve_lists_every_interval_ranked():
+    # A curve that touches the band in one spike point (p = 1) and crosses it over a wide
+    # stretch later (p 2.5-3.5): the spike must not be "the best".
+    p = np.array([0.0, 0.9, 1.0, 1.1, 2.0, 3.0, 4.0, 4.5, 5.0])
+    c = np.array([0.0, 0.0, 1.0, 0.2, 0.2, 1.0, 1.8, 1.0, 0.2])
+    stop = np.array([9.0, 8.5, 8.0, 7.5, 7.0, 6.0, 5.0, 4.0, 3.0])
+    passes = p <= 2.5
+    with pytest.warns(QualityWarning, match="ranked widest first"):
+        m = match_capture_radius(p, c, 1.0, 0.2, stop_s_A=stop, passes=passes, bottleneck_A=2.5)
+    # intervals where 0.8 <= c <= 1.2: around the spike [0.98, 1.025], on the rise
+    # [2.75, 3.25], on the fall [4.375, 4.625]
+    np.testing.assert_allclose(
+        m.intervals_A, [[0.98, 1.025], [2.75, 3.25], [4.375, 4.625]], rtol=0, atol=1e-12
+    )
+    ranks = [(iv.rank, iv.low_A) for iv in m.ranked_intervals]
+    assert ranks == [(1, pytest.approx(2.75)), (2, pytest.approx(4.375)), (3, pytest.approx(0.98))]
+    top = m.ranked_intervals[0]
+    assert m.best_probe_radius_A == pytest.approx(3.0) and m.best_exact
+    assert top.crossing_A == pytest.approx(3.0)
+    assert top.passes == "none"  # 2.75-3.25 Å probes are all wider than B = 2.5 Å
+    assert m.ranked_intervals[2].passes == "all"  # the spike's probes are below B
+    np.testing.assert_allclose(top.stop_s_A, [6.25, 5.75])
+    d = m.to_dict()
+    assert [iv["rank"] for iv in d["intervals"]] == [1, 2, 3]
+    assert "widest interval first" in d["ranking"]
+    assert d["intervals"][0]["passes"] == "none"
+
+
+def test_equal_widths_rank_by_the_centre_capture_radius():
+    p = np.array([0.0, 1.0, 2.0, 3.0, 4.0])
+    c = np.array([0.0, 2.0, 0.0, 2.2, 0.0])  # two humps; the band 1.0 +- 0.2
+    m = quiet_match(p, c, 1.0, 0.2)
+    widths = np.array([iv.width_A for iv in m.ranked_intervals])
+    assert len(widths) == 4 and (np.diff(widths) <= 1e-9).all()
+    first, second = m.ranked_intervals[0], m.ranked_intervals[1]
+    if abs(first.width_A - second.width_A) < 1e-9:
+        assert abs(first.centre_capture_radius_A - 1.0) <= abs(second.centre_capture_radius_A - 1.0)
+
+
+def test_match_figure_shades_every_interval():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from poreprobe.figures import capture_plot as plots
+
+    p = np.array([0.0, 1.0, 1.5, 2.0, 3.0, 4.0, 4.5, 5.0])
+    c = np.array([0.0, 1.0, 0.2, 0.2, 1.0, 1.8, 1.0, 0.2])
+    m = quiet_match(p, c, 1.0, 0.2)
+    result = {
+        "capture_radius_A": 1.0,
+        "capture_radius_sd_A": 0.2,
+        "probe_radius_A_best": m.best_probe_radius_A,
+        "probe_radius_A_intervals": [list(iv) for iv in m.intervals_A],
+        "match": m.to_dict(),
+    }
+    scan = {"capture": {"probe_radius_A": p.tolist(), "capture_radius_A": c.tolist()}}
+    ax = plots.plot_capture(scan, match=result)
+    spans = [
+        pt.get_path().get_extents(pt.get_transform()).transformed(ax.transData.inverted())
+        for pt in ax.patches
+    ]
+    labels = [pt.get_label() for pt in ax.patches]
+    assert "matching probe radii (3 intervals)" in labels
+    xs = sorted((round(b.x0, 6), round(b.x1, 6)) for b in spans if b.y1 - b.y0 > 0.5)
+    for lo, hi in m.intervals_A:
+        assert any(abs(a - lo) < 1e-6 and abs(b - hi) < 1e-6 for a, b in xs), (lo, hi, xs)

@@ -404,7 +404,7 @@ def test_capture_axes_carry_curve_band_and_interval(scan, match):
     assert (band.y0, band.y1) == pytest.approx((1.0, 1.4))
     interval = extents["matching probe radii"]
     assert (interval.x0, interval.x1) == pytest.approx((1.1, 1.5))
-    best = next(ln for ln in ax.lines if ln.get_label() == "best p = 1.30 Å")
+    best = next(ln for ln in ax.lines if ln.get_label() == "top-ranked match p = 1.30 Å")
     assert best.get_xdata()[0] == pytest.approx(1.3)
 
 

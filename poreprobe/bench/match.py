@@ -7,10 +7,14 @@ sizes, read as effective ion radii, make the structure agree with the bench:
 
 * the curve is taken as piecewise linear between the scanned probe radii, and
   only over the scanned range (never extrapolated);
-* **intervals**: every p where ``r_c - sd <= c(p) <= r_c + sd``;
-* **best p**: where c(p) = r_c; if the curve crosses r_c more than once, the
-  smallest such p (all crossings are listed and a warning is issued); if it
-  never does, the scanned p whose c(p) is closest to r_c (flagged as not exact);
+* **intervals**: every p where ``r_c - sd <= c(p) <= r_c + sd``, each with its
+  stop level and whether its probes pass, **ranked** by a fixed rule (widest first,
+  then the centre's capture radius closest to r_c, then the smaller p; see
+  :mod:`poreprobe.bench.match_intervals`);
+* **representative p**: the crossing c(p) = r_c inside the top-ranked interval
+  (else its centre) - never a single spike point picked over a wider match; when the
+  curve crosses r_c several times a warning says so; with no interval at all, the
+  scanned p whose c(p) is closest to r_c (flagged as not exact);
 * **ion radii**: the ion table's crystal (Shannon 1976), Stokes (from D) and
   hydrated (Nightingale 1959) radii are placed on the curve, so the user sees
   which picture of the ion fits the measured band.
@@ -29,6 +33,7 @@ import numpy as np
 from poreprobe._validate import check_positive
 from poreprobe._version import __version__
 from poreprobe.bench.ions import Ion, get_ion
+from poreprobe.bench.match_intervals import MatchInterval, rank_intervals
 from poreprobe.errors import InputError, QualityWarning
 
 _TOL_A = 1e-9
@@ -99,6 +104,9 @@ class CaptureMatch:
         c(best p).
     crossings_A : tuple of float
         Every p where c(p) = r_c.
+    ranked_intervals : tuple of MatchInterval
+        Every matching interval with its stop level and pass decision, ranked (rank 1
+        first).
     ion : str or None
         Ion symbol whose radii were compared.
     ion_radii : tuple of IonRadiusComparison
@@ -119,6 +127,7 @@ class CaptureMatch:
     crossings_A: tuple[float, ...]
     ion: str | None
     ion_radii: tuple[IonRadiusComparison, ...]
+    ranked_intervals: tuple[MatchInterval, ...] = ()
     source: str = ""
     version: str = field(default=__version__)
 
@@ -150,6 +159,9 @@ class CaptureMatch:
             "probe_radius_A_intervals": [list(iv) for iv in self.intervals_A],
             "intervals_at_scan_end": [list(e) for e in self.intervals_at_scan_end],
             "crossings_A": list(self.crossings_A),
+            "intervals": [iv.to_dict() for iv in self.ranked_intervals],
+            "ranking": "widest interval first; ties: centre's capture radius closest to the "
+            "measured one; then the smaller probe radius",
             "within_band": self.within_band,
             "ion": self.ion,
             "ion_radii": [c.to_dict() for c in self.ion_radii],
@@ -235,6 +247,9 @@ def match_capture_radius(
     *,
     ion: str | Ion | None = None,
     source: str = "",
+    stop_s_A=None,
+    passes=None,
+    bottleneck_A: float | None = None,
 ) -> CaptureMatch:
     """Probe radii at which a capture curve agrees with a measured capture radius.
 
@@ -254,6 +269,10 @@ def match_capture_radius(
         Ion whose crystal, Stokes and hydrated radii are placed on the curve.
     source : str
         Description of the curve's origin, recorded in the result.
+    stop_s_A, passes : array_like of shape (n_p,), optional
+        The scan's stop levels (Å) and pass decisions, reported per interval.
+    bottleneck_A : float, optional
+        The scan's off-grid bottleneck clearance: probes pass exactly when p <= it.
 
     Returns
     -------
@@ -274,17 +293,36 @@ def match_capture_radius(
     intervals = tuple((float(a), float(b)) for a, b in merged)
     at_end = tuple((abs(a - p[0]) <= _TOL_A, abs(b - p[-1]) <= _TOL_A) for a, b in intervals)
     crossings = _crossings(p, c, r)
-    if crossings:
+    for name, arr in (("stop_s_A", stop_s_A), ("passes", passes)):
+        if arr is not None and np.shape(arr) != p.shape:
+            raise InputError(f"{name} must have {p.size} values, got shape {np.shape(arr)}")
+    ranked = rank_intervals(
+        intervals,
+        at_end,
+        p,
+        c,
+        r,
+        crossings,
+        stop_s_A=stop_s_A,
+        passes=passes,
+        bottleneck_A=bottleneck_A,
+    )
+    if len(crossings) > 1 or len(intervals) > 1:
+        warnings.warn(
+            f"the capture curve equals r_c = {r:.3g} Å at {len(crossings)} probe "
+            f"radii ({', '.join(f'{x:.2f}' for x in crossings)} Å) and meets the band on "
+            f"{len(intervals)} intervals; all are listed, ranked widest first",
+            QualityWarning,
+            stacklevel=2,
+        )
+    if ranked:
+        top = ranked[0]
+        exact = math.isfinite(top.crossing_A)
+        best = top.crossing_A if exact else top.centre_A
+        best_c = float(np.interp(best, p, c))
+    elif crossings:
         best, exact = crossings[0], True
         best_c = float(np.interp(best, p, c))
-        if len(crossings) > 1:
-            warnings.warn(
-                f"the capture curve equals r_c = {r:.3g} Å at {len(crossings)} probe "
-                f"radii ({', '.join(f'{x:.2f}' for x in crossings)} Å); the smallest "
-                "is reported as best",
-                QualityWarning,
-                stacklevel=2,
-            )
     else:
         k = int(np.argmin(np.abs(c - r)))
         best, exact, best_c = float(p[k]), False, float(c[k])
@@ -321,6 +359,7 @@ def match_capture_radius(
         crossings_A=tuple(crossings),
         ion=ion_obj.symbol if ion_obj is not None else None,
         ion_radii=tuple(comparisons),
+        ranked_intervals=ranked,
         source=source,
     )
 
@@ -349,6 +388,9 @@ def match_scan(
             stacklevel=2,
         )
         p, c = p[~undefined], c[~undefined]
+    stop = getattr(scan, "stop_s_A", None)
+    ok_pass = getattr(scan, "passes", None)
+    keep = ~undefined if undefined.any() else slice(None)
     return match_capture_radius(
         p,
         c,
@@ -356,4 +398,7 @@ def match_scan(
         sd_A,
         ion=ion,
         source=str(getattr(scan, "source", "") or "probe-size scan"),
+        stop_s_A=None if stop is None else np.asarray(stop, dtype=float)[keep],
+        passes=None if ok_pass is None else np.asarray(ok_pass, dtype=bool)[keep],
+        bottleneck_A=getattr(scan, "bottleneck_clearance_A", None),
     )

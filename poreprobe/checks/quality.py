@@ -161,7 +161,7 @@ class QualityReport:
             "(model-based estimates, not measurements)",
             f"radius set {prof.radius_set}; {self._hydrogen_text()}; walls: "
             f"{', '.join(self.walls)}; axis {prof.axis.method}",
-            f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å",
+            f"narrowest: {prof.narrowest_text()}",
             "",
             f"permeation ({self.verdict.ion}): {self.verdict.message}",
             "",

@@ -149,8 +149,8 @@ def run(args) -> int:
     say(
         args,
         f"poreprobe {prof.version}: pore of {atoms.source} ({len(atoms)} atoms), "
-        f"radius set {prof.radius_set}, narrowest radius {prof.min_radius_A:.2f} Å at "
-        f"s = {prof.min_s_A:.1f} Å - a model-based estimate",
+        f"radius set {prof.radius_set}, narrowest: {prof.narrowest_text()} "
+        "- a model-based estimate",
     )
     grid = map_grid = surface = line = tube = None
     if args.mesh or (args.map and args.map_field == "clearance"):

@@ -8,6 +8,8 @@ measured band.
 
 from __future__ import annotations
 
+import math
+
 from poreprobe._version import __version__
 from poreprobe.bench.capture import (
     DEFAULT_MC_SAMPLES,
@@ -17,6 +19,7 @@ from poreprobe.bench.capture import (
 )
 from poreprobe.bench.ions import get_ion
 from poreprobe.bench.match import match_scan
+from poreprobe.bench.match_intervals import MatchInterval
 from poreprobe.bench.viscosity import VISCOGENS, diffusion_coefficient
 from poreprobe.cli import ensemble_options as ens_opts
 from poreprobe.cli.common import (
@@ -322,14 +325,25 @@ def summary_lines(out: dict) -> list[str]:
             f"{out['structure']['radius_set']}): probe radii with capture radius "
             f"within r_c ± SD: {ivs}"
         )
-        if m["best_exact"]:
+        if m.get("intervals"):
+            lines.append(
+                f"{len(m['intervals'])} matching interval(s), ranked widest first (ties: "
+                "centre's capture radius closest to r_c):"
+            )
+            lines += [f"  {MatchInterval(**_interval_args(iv)).text()}" for iv in m["intervals"]]
+            how = (
+                "where the capture curve crosses r_c in the top-ranked interval"
+                if m["best_exact"]
+                else "centre of the top-ranked interval"
+            )
+        elif m["best_exact"]:
             how = "where the capture curve crosses r_c"
         else:
             how = (
                 f"no crossing of r_c in the scanned range: the nearest scanned probe, "
                 f"capture radius {m['best_capture_radius_A']:.3g} Å"
             )
-        lines.append(f"best probe radius {m['probe_radius_A_best']:.3g} Å ({how})")
+        lines.append(f"representative probe radius {m['probe_radius_A_best']:.3g} Å ({how})")
         for c in m["ion_radii"]:
             where = (
                 "outside the scanned probe radii"
@@ -366,3 +380,23 @@ def run(args) -> int:
         }
         save_figure(args, "capture", {"capture": curve}, out)
     return 0
+
+
+def _interval_args(d: dict) -> dict:
+    """MatchInterval fields from its JSON form (None back to NaN)."""
+
+    def num(x):
+        return math.nan if x is None else float(x)
+
+    return {
+        "rank": int(d["rank"]),
+        "low_A": float(d["probe_radius_low_A"]),
+        "high_A": float(d["probe_radius_high_A"]),
+        "width_A": float(d["width_A"]),
+        "centre_A": float(d["centre_A"]),
+        "centre_capture_radius_A": float(d["centre_capture_radius_A"]),
+        "crossing_A": num(d["crossing_A"]),
+        "at_scan_end": tuple(d["at_scan_end"]),
+        "stop_s_A": tuple(num(x) for x in d["stop_s_A"]),
+        "passes": str(d["passes"]),
+    }

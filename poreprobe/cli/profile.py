@@ -79,7 +79,7 @@ def summary_lines(atoms, prof, ensemble=None) -> list[str]:
         f"oriented by {ax.oriented_by}",
         f"radius set: {prof.radius_set}; {len(prof.s_A)} planes every {prof.step_A:g} Å "
         f"from s = {prof.s_A[0]:.1f} to {prof.s_A[-1]:.1f} Å; {len(finite)} enclosed",
-        f"narrowest: radius {prof.min_radius_A:.2f} Å at s = {prof.min_s_A:.1f} Å, "
+        f"narrowest: {prof.narrowest_text()}, "
         f"lined by {_lined_by(prof.min_residues)}" + ens_opts.narrowest_line_suffix(ensemble),
     ]
     if ensemble is not None:

@@ -80,6 +80,22 @@ def summary_lines(atoms, scan, ensemble=None) -> list[str]:
             else ""
         )
     )
+    if math.isfinite(scan.bottleneck_clearance_A):
+        lines.append(
+            f"off-grid bottleneck: probes up to {scan.bottleneck_clearance_A:.3f} Å pass "
+            f"(at s = {scan.bottleneck_s_A:.2f} Å, from the atoms)"
+        )
+    if math.isfinite(scan.discretisation_error_A):
+        lines.append(
+            f"discretisation estimate: capture radii change by up to "
+            f"{scan.discretisation_error_A:.3f} Å between grids of {scan.spacing_A:g} and "
+            f"{scan.error_spacing_A:g} Å"
+            + (
+                f"; {scan.pass_changes_with_spacing} pass/enter decision(s) differ"
+                if scan.pass_changes_with_spacing
+                else ""
+            )
+        )
     if ensemble is not None:
         lines += ens_opts.scan_band_lines(ensemble) + ensemble.report_lines()
     lines += [f"note: {n}" for n in (*atoms.notes, *scan.notes)]

@@ -211,9 +211,16 @@ def summary_lines(result, backend: str) -> list[str]:
         lines += [
             f"narrowest radius per frame: mean {result.min_radius_mean_A:.2f} Å, "
             f"SD {result.min_radius_sd_A:.2f} Å; {pct} Å",
-            f"narrowest of all: {mins[k]:.2f} Å at s = {result.min_s_A[k]:.1f} Å in frame "
-            f"{int(result.frames[k])}",
+            "narrowest of all: "
+            + ("occluded (radius 0)" if mins[k] <= 0 else f"{mins[k]:.2f} Å")
+            + f" at s = {result.min_s_A[k]:.1f} Å in frame {int(result.frames[k])}",
         ]
+        n_occ = int(np.count_nonzero(mins <= 0))
+        if n_occ:
+            lines.append(
+                f"occluded in {n_occ} of {len(mins)} frames: no free point at their narrowest "
+                "plane (radius 0, counted in the statistics above)"
+            )
     if result.capture_radius_A is not None:
         lines.append(
             f"capture radius for a {result.capture_probe_radius_A:g} Å probe: mean "

@@ -72,6 +72,8 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
     dict
         Headline numbers (all model-based estimates) and the files written.
     """
+    import numpy as np
+
     from poreprobe.bench.capture import estimate_capture_radius
     from poreprobe.bench.conductance import series_resistance
     from poreprobe.bench.match import match_scan
@@ -139,6 +141,12 @@ def run_demo(out_dir, *, quiet: bool = True, trajectory: bool = True) -> dict:
         for name, scan in scans.items()
     }
     summary["middle_probe_radius_A"] = MIDDLE_PROBE_A
+    k_mid = {
+        name: int(np.argmin(np.abs(s.probe_radius_A - MIDDLE_PROBE_A))) for name, s in scans.items()
+    }
+    summary["stop_s_at_middle_probe_A"] = {
+        name.removeprefix("demo_"): float(scans[name].stop_s_A[k]) for name, k in k_mid.items()
+    }
 
     diffusion = diffusion_coefficient("K")
     bench = estimate_capture_radius(

@@ -133,7 +133,9 @@ def plot_capture(
                 alpha=0.3,
                 linewidth=0,
                 zorder=0.6,
-                label="matching probe radii" if k == 0 else None,
+                label=f"matching probe radii ({len(m['intervals'])} intervals)"
+                if k == 0 and len(m["intervals"]) > 1
+                else ("matching probe radii" if k == 0 else None),
             )
         if np.isfinite(m["probe_radius_A_best"]):
             ax.axvline(
@@ -141,7 +143,7 @@ def plot_capture(
                 color=OKABE_ITO["vermillion"],
                 linewidth=0.8,
                 zorder=2,
-                label=f"best p = {m['probe_radius_A_best']:.2f} Å",
+                label=f"top-ranked match p = {m['probe_radius_A_best']:.2f} Å",
             )
         top = max(top, mc + (msd if np.isfinite(msd) else 0))
         if not refs:

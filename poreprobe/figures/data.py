@@ -74,7 +74,17 @@ def profile_arrays(profile) -> dict:
         "radius_set": d.get("radius_set") or "",
         "source": d.get("source") or "",
         "max_radius_A": float_or_nan(d.get("max_radius_A")),
+        "occluded": occluded_flags(d, len(s)),
+        "min_occluded": bool(d.get("min_occluded") or False),
     }
+
+
+def occluded_flags(d, n: int) -> np.ndarray:
+    """Per-plane occluded flags of a profile's JSON (all False when absent)."""
+    flags = (d.get("profile") or {}).get("occluded")
+    if flags is None or len(flags) != n:
+        return np.zeros(n, dtype=bool)
+    return np.asarray(flags, dtype=bool)
 
 
 def float_or_nan(value) -> float:

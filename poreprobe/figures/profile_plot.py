@@ -11,6 +11,7 @@ from poreprobe.figures.data import profile_arrays, residue_summary, runs
 from poreprobe.figures.references import checked_references, draw_reference_bands
 from poreprobe.figures.style import (
     LINE_COLORS,
+    OCCLUDED_COLOR,
     OKABE_ITO,
     OPEN_HATCH_COLOR,
     RADIUS_LABEL,
@@ -77,6 +78,16 @@ def plot_profile(
             linewidth=0,
             zorder=0.7,
         )
+    for n_run, (i, j) in enumerate(runs(data["occluded"])):
+        half = (s[1] - s[0]) / 2 if len(s) > 1 else 0.0
+        ax.axvspan(
+            s[i] - half,
+            s[j] + half,
+            facecolor=OCCLUDED_COLOR,
+            linewidth=0,
+            zorder=0.8,
+            label="occluded (no free point)" if n_run == 0 else None,
+        )
     line_label = label or (
         f"pore radius ({data['radius_set']} radii)" if data["radius_set"] else "pore radius"
     )
@@ -90,7 +101,7 @@ def plot_profile(
                     "residues": data["min_residues"],
                 }
             ]
-            if np.isfinite(data["min_radius_A"])
+            if np.isfinite(data["min_radius_A"]) and not data["min_occluded"]
             else []
         )
     top = np.nanmax(np.concatenate([r, [v for _, v in refs]]))

@@ -79,6 +79,8 @@ RADIUS_CMAP = "cividis"
 OPEN_COLOR = "#d9d9d9"
 #: Open planes on the profile figure are hatched, so they never read as a radius band.
 OPEN_HATCH_COLOR = "#a6a6a6"
+#: Fill behind occluded profile planes (no free point: radius 0).
+OCCLUDED_COLOR = "#e0c8c8"
 GRID_COLOR = "#e6e6e6"
 
 

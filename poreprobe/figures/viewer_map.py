@@ -297,7 +297,7 @@ def reach_grid(field, *, spacing_A: float | None = None, quiet: bool = True) -> 
     for rows, pts in progress(
         _point_blocks(start, shape, h), desc="reach map", quiet=quiet, total=_n_blocks(shape)
     ):
-        index = (field.axis.to_frame(pts) - field.origin_A) / field.spacing_A
+        index = (field.to_grid_frame(pts) - field.origin_A) / field.spacing_A
         values[rows] = map_coordinates(voxels, index.T, order=1, mode="constant", cval=low).reshape(
             -1, shape[1], shape[2]
         )

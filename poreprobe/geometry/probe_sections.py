@@ -1,10 +1,9 @@
-"""Inside the probe-size scan: per-probe cross-sections, stop levels and their refinement.
+"""Swept cross-sections of each probe of a scan, and its off-grid pass / stop decisions.
 
-For one probe radius p, :func:`scan_one` takes the probe-centre region of the reach
-field, measures the cross-section of the swept region on every grid layer (area-
-equivalent and inscribed radius of the part nearest the axis), finds the stop level
-or the bottleneck, and refines it off the grid against the atoms (see
-:mod:`poreprobe.geometry.probes` for the definitions). Estimates from a model.
+Internals of :func:`poreprobe.geometry.probes.probe_scan` (see that module for the
+definitions): the grid sections of the swept region, the fine raster at the stop level,
+the refined tip and bottleneck, and the continuous decisions of
+:mod:`poreprobe.geometry.scanrefine`.
 """
 
 from __future__ import annotations
@@ -18,6 +17,12 @@ from scipy.spatial import cKDTree
 
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.geometry.reach import ReachField
+from poreprobe.geometry.scanrefine import (
+    Bottleneck,
+    PlaneMaxima,
+    continuous_bottleneck,
+    stop_level,
+)
 
 _BIG = np.float32(1e30)
 _PLANAR = np.zeros((3, 3, 3), dtype=bool)
@@ -48,6 +53,7 @@ class ScanContext:
         lo, hi = field_.protein_s_A
         inner = np.flatnonzero((s >= lo) & (s <= hi))
         self.k_protein = (int(inner[0]), int(inner[-1])) if inner.size else (0, len(s) - 1)
+        self.plane_max = PlaneMaxima(self.spheres, field_, field_.pore_radius_A)
 
     def clip(self, p: float) -> float:
         return p + self.margin
@@ -70,7 +76,7 @@ class ScanContext:
 
 
 @dataclass
-class OneProbe:
+class _OneProbe:
     passes: bool
     enters: bool
     stop_s: float
@@ -91,7 +97,32 @@ class _Sections:
     covered: np.ndarray  # (L,) bool: any swept pixel at all
 
 
-def scan_one(ctx: ScanContext, p: float) -> OneProbe:
+def path_bottleneck(ctx: ScanContext, probes: np.ndarray, grid_pass: np.ndarray) -> Bottleneck:
+    """Continuous bottleneck ``B = min_s m(s)`` along the probes' path (see scanrefine)."""
+    f = ctx.field
+    passing = probes[grid_pass]
+    failing = probes[~grid_pass]
+    p_pass = float(passing.max()) if passing.size else math.nan
+    p_fail = float(failing.min()) if failing.size else math.inf
+    ref = f.region(p_pass if passing.size else float(probes[0]))
+    layers = ref.any(axis=(0, 1))
+    k = np.arange(ctx.k_protein[0], ctx.k_protein[1] + 1)
+    k = k[layers[k]]
+    if k.size == 0:
+        return Bottleneck(math.nan, math.nan, np.full(3, np.nan), False)
+    if not passing.size:
+        # nothing passes on the grid: the bottleneck lies just beyond the smallest probe's tip
+        deepest = int(k[-1]) if f.entry == "low" else int(k[0])
+        k = np.arange(deepest - 4, deepest + 5)
+        k = k[(k >= ctx.k_protein[0]) & (k <= ctx.k_protein[1])]
+    return continuous_bottleneck(ctx.plane_max, ref, f.s_A[k], p_pass, p_fail, (0.0, 0.0))
+
+
+def scan_one(ctx: ScanContext, p: float, passes: bool | None = None, bneck=None) -> _OneProbe:
+    """One probe: grid sections, then the off-grid pass / stop decision and capture radius.
+
+    ``passes`` is the off-grid decision (``p <= B``); ``bneck`` the continuous bottleneck.
+    """
     f = ctx.field
     n_s = f.shape[2]
     region = f.region(p)
@@ -99,7 +130,7 @@ def scan_one(ctx: ScanContext, p: float) -> OneProbe:
     profile = np.full(n_s, np.nan)
     profile_in = np.full(n_s, np.nan)
     if not layers.any():
-        return OneProbe(
+        return _OneProbe(
             False,
             False,
             math.nan,
@@ -111,7 +142,15 @@ def scan_one(ctx: ScanContext, p: float) -> OneProbe:
             profile_in,
             "cannot sit in the entry bulk",
         )
-    passes = bool(layers[f.exit_layer])
+    grid_passes = bool(layers[f.exit_layer])
+    passes = grid_passes if passes is None else passes
+    sign = f.depth_sign
+    if grid_passes and not passes:
+        # the grid lets it through, the atoms do not: cut the region at the off-grid stop
+        s_star, uv, _ = _stop_before_bottleneck(ctx, p, bneck)
+        region = region & (sign * (f.s_A - s_star) <= 0.5 * ctx.h)[None, None, :]
+        layers = region.any(axis=(0, 1))
+        tip = np.array([uv[0], uv[1], s_star])
     ks = np.flatnonzero(layers)
     # levels beyond the protein hold no atom, so their sections are open bulk: measure only
     # levels within the protein, with centres from up to one ball radius beyond it
@@ -123,9 +162,9 @@ def scan_one(ctx: ScanContext, p: float) -> OneProbe:
     inscribed = np.minimum(sec.inscribed, radius)
     profile[k0 : k1 + 1] = np.where(sec.enclosed, radius, np.nan)
     profile_in[k0 : k1 + 1] = np.where(sec.enclosed, inscribed, np.nan)
-    if passes:
+    if passes and grid_passes:
         if not sec.enclosed.any():
-            return OneProbe(
+            return _OneProbe(
                 True,
                 True,
                 math.nan,
@@ -142,20 +181,86 @@ def scan_one(ctx: ScanContext, p: float) -> OneProbe:
         )
         # a probe centre sits in every level it passes, so its disk bounds both radii below
         r_b, ri_b = max(r_b, p), min(max(ri_b, p), max(r_b, p))
-        return OneProbe(True, True, s_b, r_b, ri_b, r_b - p, ri_b - p, profile, profile_in)
-    deepest = k1 if f.entry == "low" else k0
-    tip = _refine_tip(ctx, region, p, deepest)
+        return _OneProbe(True, True, s_b, r_b, ri_b, r_b - p, ri_b - p, profile, profile_in)
+    if passes:
+        # the grid stops it, the atoms let it through: its level is the continuous bottleneck
+        tip = np.asarray(bneck.centre_uvs_A, dtype=np.float64)
+        balls = _path_balls(ctx, p, tip, both_sides=True)
+        fine = _fine_section(ctx, region, p, float(tip[2]), tip=tip, balls=balls)
+        if fine is None or not fine[2]:
+            return _OneProbe(True, True, float(tip[2]), *([math.nan] * 4), profile, profile_in)
+        r_b = max(math.sqrt(fine[0] / math.pi), p)
+        ri_b = min(max(fine[1], p), r_b)
+        return _OneProbe(
+            True, True, float(tip[2]), r_b, ri_b, r_b - p, ri_b - p, profile, profile_in
+        )
+    if not grid_passes:
+        deepest = k1 if f.entry == "low" else k0
+        tip = _refine_tip(ctx, region, p, deepest)
+        tip = _deepen_tip(ctx, p, tip)
     stop_s = float(tip[2])
-    fine = _fine_section(ctx, region, p, stop_s, tip=tip)
+    fine = _fine_section(
+        ctx, region, p, stop_s, tip=tip, balls=_path_balls(ctx, p, tip), dense_tip=True
+    )
     if fine is None or not fine[2]:
         # the section where the probe stops is open bulk: it never got into the pore
-        return OneProbe(False, False, stop_s, 0.0, 0.0, 0.0, 0.0, profile, profile_in)
+        return _OneProbe(False, False, stop_s, 0.0, 0.0, 0.0, 0.0, profile, profile_in)
     # the probe's own equatorial disk lies in the section, so neither radius is below p
     r_open = max(math.sqrt(fine[0] / math.pi), p)
     ri_open = min(max(fine[1], p), r_open)
-    return OneProbe(
+    return _OneProbe(
         False, True, stop_s, r_open, ri_open, r_open - p, ri_open - p, profile, profile_in
     )
+
+
+def _path_balls(ctx: ScanContext, p: float, tip, both_sides: bool = False):
+    """Probe centres on the continuous path near ``tip``: plane maxima behind it.
+
+    From the tip's level back towards the entry (and, with ``both_sides``, on towards the
+    exit) every 0.2 Å within reach of the tip's plane, the local in-plane maximum of the
+    clearance climbed from the tip's (u, v); those with clearance >= p are centres a probe
+    can hold, and their balls (radius = clearance) are part of its swept region.
+    """
+    from poreprobe.geometry.planemax import maximise_in_planes
+
+    f = ctx.field
+    reach = ctx.clip(p)
+    steps = np.arange(0.2, reach + 1e-9, 0.2)
+    offs = -f.depth_sign * steps
+    if both_sides:
+        offs = np.concatenate([offs, -offs])
+    s = float(tip[2]) + offs
+    start = np.broadcast_to(np.asarray(tip[:2], dtype=float), (len(s), 2))
+    c, v = maximise_in_planes(ctx.spheres, s, start, reach, delta_A=0.25)
+    ok = (v >= p) & (v <= reach + 1.0)
+    return [(c[i, 0], c[i, 1], s[i], v[i]) for i in np.flatnonzero(ok)]
+
+
+def _deepen_tip(ctx: ScanContext, p: float, tip: np.ndarray) -> np.ndarray:
+    """Follow ``m(s) >= p`` beyond the refined tip (up to two spacings), by bisection."""
+    f = ctx.field
+    s_to = float(tip[2]) + f.depth_sign * 2 * ctx.h
+    s_star, uv, found = stop_level(ctx.plane_max, p, float(tip[2]), s_to, tip[:2], region=False)
+    if not found or f.depth_sign * (s_star - tip[2]) <= 0:
+        return tip
+    centre = np.array([uv[0], uv[1], s_star])
+    if ctx.spheres.clearance_A(centre[None])[0] < p - 1e-6:
+        return tip
+    return centre
+
+
+def _stop_before_bottleneck(ctx: ScanContext, p: float, bneck):
+    """Off-grid stop level of a probe wider than the bottleneck, walking up to it."""
+    f = ctx.field
+    s_b = float(bneck.s_A)
+    uv_b = np.asarray(bneck.centre_uvs_A[:2])
+    for back in (0.5, 1.0, 2.0, 4.0, 8.0):
+        s_from = s_b - f.depth_sign * back
+        c, v = ctx.plane_max(s_from, uv_b)
+        if v[0] >= p:
+            s_star, uv, _ = stop_level(ctx.plane_max, p, s_from, s_b, c[0])
+            return s_star, uv, True
+    return s_b - f.depth_sign * 8.0, uv_b, False
 
 
 def _power_cover(f: np.ndarray, window: int, h: float) -> np.ndarray:
@@ -268,7 +373,15 @@ def _label_single(covered: np.ndarray):
 
 
 def _fine_section(
-    ctx: ScanContext, region: np.ndarray, p: float, s_star: float, *, tip=None, near_uv=None
+    ctx: ScanContext,
+    region: np.ndarray,
+    p: float,
+    s_star: float,
+    *,
+    tip=None,
+    near_uv=None,
+    balls=None,
+    dense_tip: bool = False,
 ):
     """Swept cross-section of probe p in the plane at ``s_star`` on a fine raster.
 
@@ -287,7 +400,7 @@ def _fine_section(
     for k in ks:
         c = np.minimum(np.asarray(f.clearance_A[:, :, k]), clip)
         np.minimum(g, np.where(region[:, :, k], (s_star - s[k]) ** 2 - c * c, np.inf), out=g)
-    lattices.append((ctx.u, g))
+    lattices.append((ctx.u, ctx.u, g))
     g2 = np.full((f.shape[0] - 1, f.shape[1] - 1), np.inf)
     for k in range(
         max(int(ks.min()) - 1, 0) if ks.size else 0,
@@ -304,18 +417,18 @@ def _fine_section(
         member = near & (c2 >= p)
         c2 = np.minimum(c2, clip)
         np.minimum(g2, np.where(member, (s_star - s_half) ** 2 - c2 * c2, np.inf), out=g2)
-    lattices.append((ctx.u[:-1] + 0.5 * h, g2))
+    lattices.append((ctx.u[:-1] + 0.5 * h, ctx.u[:-1] + 0.5 * h, g2))
     if tip is not None:
         near_uv = (float(tip[0]), float(tip[1]))
-    cols = [np.nonzero(np.isfinite(gl)) for _, gl in lattices]
+        if dense_tip:
+            lattices.append(_dense_tip_lattice(ctx, region, p, s_star, tip))
+    cols = [np.nonzero(np.isfinite(gl)) for _, _, gl in lattices]
     if not any(c[0].size for c in cols) and tip is None:
         return None
     reach_A = clip + 2 * h
     lo, hi = -f.pore_radius_A - h, f.pore_radius_A + h
     found = [
-        (coords[c[0]], coords[c[1]])
-        for (coords, _), c in zip(lattices, cols, strict=True)
-        if c[0].size
+        (cu[c[0]], cv[c[1]]) for (cu, cv, _), c in zip(lattices, cols, strict=True) if c[0].size
     ]
     if found:
         u_lo = max(min(x[0].min() for x in found) - reach_A, lo)
@@ -328,15 +441,16 @@ def _fine_section(
     uf = np.arange(np.floor(u_lo / hf), np.ceil(u_hi / hf) + 1) * hf
     vf = np.arange(np.floor(v_lo / hf), np.ceil(v_hi / hf) + 1) * hf
     gfine = np.full((len(uf), len(vf)), np.inf)
-    for coords, gl in lattices:
-        np.minimum(gfine, _to_raster(coords, gl, uf, vf, reach_A), out=gfine)
+    for cu, cv, gl in lattices:
+        np.minimum(gfine, _to_raster(cu, cv, gl, uf, vf), out=gfine)
+    extra = [] if balls is None else list(balls)
     if tip is not None:
-        ball = (
-            (uf[:, None] - tip[0]) ** 2
-            + (vf[None, :] - tip[1]) ** 2
-            + (s_star - tip[2]) ** 2
-            - p * p
-        )
+        r_tip = float(ctx.spheres.clearance_A(np.asarray(tip, dtype=float)[None])[0])
+        extra.append((tip[0], tip[1], tip[2], max(r_tip, p)))
+    for bu, bv, bs, br in extra:
+        # off-grid probe centres (on the continuous path): balls of their own clearance
+        br = min(br, clip)
+        ball = (uf[:, None] - bu) ** 2 + (vf[None, :] - bv) ** 2 + (s_star - bs) ** 2 - br * br
         np.minimum(gfine, ball, out=gfine)
     disk = (uf[:, None] ** 2 + vf[None, :] ** 2) <= f.pore_radius_A**2 + 1e-9
     rim = disk & ~ndimage.binary_erosion(disk, _CROSS2, border_value=0)
@@ -347,15 +461,90 @@ def _fine_section(
     return float(sec.area[0]), float(sec.inscribed[0]), bool(sec.enclosed[0])
 
 
-def _to_raster(coords, g, uf, vf, reach_A) -> np.ndarray:
+def _dense_tip_lattice(ctx: ScanContext, region: np.ndarray, p: float, s_star: float, tip):
+    """Probe centres on a raster three times finer than the grid behind a stop level.
+
+    Near the tip the grid holds few centres of the probe, so its swept section there
+    comes out small. Points of a raster three times finer than the grid, next to the
+    probe's grid region (within one voxel) or within two spacings of the tip, from
+    ``s_star`` back towards the entry by ``p + 2 h``, with exact clearance >= p and
+    6-connected (on that raster) to the tip or to a point of the grid region, are centres
+    the probe can hold. Returns the lattice
+    ``(u, v, min_k ((s_star - s_k)^2 - c^2))`` for :func:`_to_raster`.
+    """
+    f = ctx.field
+    h = ctx.h
+    hc = h / 3.0
+    clip = ctx.clip(p)
+    depth = np.arange(0.0, clip + 1e-9, hc)
+    sc = s_star - f.depth_sign * depth
+    # candidates: next to the grid region (dilated by one voxel) or within 2 h of the tip
+    kk = np.flatnonzero((np.abs(f.s_A - s_star) <= clip + h) & region.any(axis=(0, 1)))
+    sub = region[:, :, kk] if kk.size else np.zeros(f.shape[:2] + (1,), dtype=bool)
+    iu, iv = np.nonzero(sub.any(axis=2))
+    u_lo, u_hi = float(tip[0]) - 2 * h, float(tip[0]) + 2 * h
+    v_lo, v_hi = float(tip[1]) - 2 * h, float(tip[1]) + 2 * h
+    if iu.size:
+        u_lo, u_hi = min(u_lo, f.u_A[iu.min()] - h), max(u_hi, f.u_A[iu.max()] + h)
+        v_lo, v_hi = min(v_lo, f.v_A[iv.min()] - h), max(v_hi, f.v_A[iv.max()] + h)
+    uc = np.arange(np.floor(u_lo / hc), np.ceil(u_hi / hc) + 1) * hc
+    vc = np.arange(np.floor(v_lo / hc), np.ceil(v_hi / hc) + 1) * hc
+
+    def index(coords, origin, n):
+        k = np.rint((coords - origin) / h).astype(np.int64)
+        return np.clip(k, 0, n - 1), (k >= 0) & (k < n)
+
+    gu, ou = index(uc, f.origin_A[0], f.shape[0])
+    gv, ov = index(vc, f.origin_A[1], f.shape[1])
+    gs, os_ = index(sc, f.origin_A[2], f.shape[2])
+    # the region dilated by one voxel, on the layers this box touches only
+    k_lo, k_hi = max(int(gs.min()) - 1, 0), min(int(gs.max()) + 2, f.shape[2])
+    dil = np.zeros(region.shape, dtype=bool)
+    dil[:, :, k_lo:k_hi] = ndimage.binary_dilation(
+        region[:, :, k_lo:k_hi], np.ones((3, 3, 3), dtype=bool)
+    )
+    inside = ou[:, None, None] & ov[None, :, None] & os_[None, None, :]
+    # 1-Lipschitz bound from the nearest voxel (at most sqrt(3)/2 h away)
+    near_c = np.asarray(f.clearance_A)[np.ix_(gu, gv, gs)]
+    with np.errstate(invalid="ignore"):
+        may = ~(near_c + 0.87 * h < p)
+        # surely wider than the clip (lower bound c(X) - |x - X|): inside the region's
+        # interior, its ball is the clipped one whatever the exact value, so no query
+        sure = near_c - 0.87 * h > clip + 1e-9
+    near_region = dil[np.ix_(gu, gv, gs)] & inside
+    cand = near_region & may & ~sure
+    uu, vv, ss = np.meshgrid(uc, vc, sc, indexing="ij")
+    cand |= (uu - tip[0]) ** 2 + (vv - tip[1]) ** 2 + (ss - tip[2]) ** 2 <= (2 * h) ** 2
+    c = np.full(uu.shape, -np.inf)
+    c[near_region & sure & ~cand] = clip
+    if cand.any():
+        pts = np.column_stack([uu[cand], vv[cand], ss[cand]])
+        c[cand] = ctx.spheres.clearance_A(pts, max_clearance_A=clip + 1.0)
+    mask = c >= p
+    lab, _ = ndimage.label(mask, structure=ndimage.generate_binary_structure(3, 1))
+    seeds = np.zeros(lab.max() + 1, dtype=bool)
+    it = np.clip(np.rint((tip[0] - uc[0]) / hc).astype(int), 0, len(uc) - 1)
+    jt = np.clip(np.rint((tip[1] - vc[0]) / hc).astype(int), 0, len(vc) - 1)
+    seeds[lab[it, jt, 0]] = True
+    # raster points whose nearest grid voxel belongs to the probe's region
+    on_region = region[np.ix_(gu, gv, gs)] & cand & mask
+    seeds[np.unique(lab[on_region])] = True
+    seeds[0] = False
+    keep = seeds[lab]
+    cc = np.minimum(c, clip)
+    g = np.where(keep, (s_star - ss) ** 2 - cc * cc, np.inf).min(axis=2)
+    return uc, vc, g
+
+
+def _to_raster(u_coords, v_coords, g, uf, vf) -> np.ndarray:
     """``min over lattice columns (|x - y|^2 + g(y))`` at raster points, two separable passes."""
     rows = np.flatnonzero(np.isfinite(g).any(axis=1))
     colv = np.flatnonzero(np.isfinite(g).any(axis=0))
     out = np.full((len(uf), len(vf)), np.inf)
     if rows.size == 0:
         return out
-    uc = coords[rows[0] : rows[-1] + 1]
-    vc = coords[colv[0] : colv[-1] + 1]
+    uc = u_coords[rows[0] : rows[-1] + 1]
+    vc = v_coords[colv[0] : colv[-1] + 1]
     gsub = g[rows[0] : rows[-1] + 1, colv[0] : colv[-1] + 1]
     dv2 = (vf[None, :] - vc[:, None]) ** 2  # (n_vc, n_vf)
     a_pass = np.empty((len(uc), len(vf)))

@@ -54,7 +54,7 @@ from poreprobe._validate import check_int, check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError, QualityWarning
 from poreprobe.geometry.axis import PoreAxis
-from poreprobe.geometry.probe_sections import ScanContext, scan_one
+from poreprobe.geometry.probe_sections import ScanContext, path_bottleneck, scan_one
 from poreprobe.geometry.reach import check_levels, reach_field, resolve_radii
 from poreprobe.io.export import to_csv
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet
@@ -114,6 +114,22 @@ class ProbeScan:
         Which variant ``capture_radius_A`` holds.
     notes : tuple of str
         Per-probe caveats.
+    bottleneck_clearance_A : float
+        Off-grid bottleneck ``B`` (Å): the largest probe radius that passes, from the
+        atoms (see :mod:`poreprobe.geometry.scanrefine`); probes pass exactly when
+        ``p <= B``. NaN if not found.
+    bottleneck_s_A : float
+        Its level along the axis (Å).
+    discretisation_error_A : float
+        Estimate of the grid's remaining effect: the largest change of a capture radius
+        (probes that enter on both grids) between this scan and one at
+        ``error_spacing_A`` (Å); NaN if not estimated.
+    error_spacing_A : float
+        The coarser spacing of that comparison (1.5 x ``spacing_A``); NaN if not estimated.
+    pass_changes_with_spacing : int
+        Number of probes whose pass / enter decision differs between the two spacings.
+    grid_angle_rad : float
+        Rotation of the grid's in-plane axes from the axis frame, fixed by the structure.
     source, version : str
     """
 
@@ -135,6 +151,12 @@ class ProbeScan:
     entry: str
     capture_definition: str = "area-equivalent"
     notes: tuple[str, ...] = ()
+    bottleneck_clearance_A: float = math.nan
+    bottleneck_s_A: float = math.nan
+    discretisation_error_A: float = math.nan
+    error_spacing_A: float = math.nan
+    pass_changes_with_spacing: int = 0
+    grid_angle_rad: float = 0.0
     source: str = ""
     version: str = field(default=__version__)
 
@@ -163,6 +185,17 @@ class ProbeScan:
             "entry": self.entry,
             "capture_definition": self.capture_definition,
             "largest_passing_probe_A": self.largest_passing_probe_A,
+            "bottleneck_clearance_A": _none_if_nan(self.bottleneck_clearance_A),
+            "bottleneck_s_A": _none_if_nan(self.bottleneck_s_A),
+            "discretisation": {
+                "spacing_A": self.spacing_A,
+                "compared_spacing_A": _none_if_nan(self.error_spacing_A),
+                "max_capture_change_A": _none_if_nan(self.discretisation_error_A),
+                "pass_changes": self.pass_changes_with_spacing,
+                "meaning": "largest |change| of a capture radius between the two spacings: "
+                "an estimate of the grid's remaining effect",
+            },
+            "grid_angle_rad": self.grid_angle_rad,
             "capture": {
                 "probe_radius_A": self.probe_radius_A.tolist(),
                 "capture_radius_A": self.capture_radius_A.tolist(),
@@ -198,6 +231,7 @@ def probe_scan(
     pore_radius_A: float = 15.0,
     refine_factor: int = 4,
     quiet: bool = True,
+    error_estimate: bool = True,
 ) -> ProbeScan:
     """Scan probe sizes: stop level, accessible-radius profile and capture radius of each.
 
@@ -226,6 +260,9 @@ def probe_scan(
         the grid (>= 1).
     quiet : bool
         No progress bar.
+    error_estimate : bool
+        Also scan at 1.5 x ``spacing_A`` and report the largest change of a capture
+        radius (``discretisation_error_A``), an estimate of the grid's remaining effect.
 
     Returns
     -------
@@ -271,7 +308,7 @@ def probe_scan(
         levels_A=probes,
         method="label",
     )
-    frame = axis.to_frame(atoms.coords_A)
+    frame = field_.to_grid_frame(atoms.coords_A)
     ctx = ScanContext(field_, frame, radii_arr, refine_factor)
     n_p, n_s = len(probes), field_.shape[2]
     out = {
@@ -282,8 +319,13 @@ def probe_scan(
     prof = np.full((n_p, n_s), np.nan)
     prof_in = np.full((n_p, n_s), np.nan)
     notes: list[str] = []
+    grid_pass = np.array([bool(field_.region(p)[:, :, field_.exit_layer].any()) for p in probes])
+    bneck = path_bottleneck(ctx, probes, grid_pass)
+    final_pass = (probes <= bneck.clearance_A) if bneck.accepted else grid_pass
+    if bneck.note:
+        notes.append(bneck.note)
     for i in progress(range(n_p), total=n_p, desc="probe scan", quiet=quiet):
-        res = scan_one(ctx, float(probes[i]))
+        res = scan_one(ctx, float(probes[i]), bool(final_pass[i]), bneck)
         passes[i], enters[i] = res.passes, res.enters
         prof[i], prof_in[i] = res.profile, res.profile_inscribed
         out["stop"][i] = res.stop_s
@@ -297,6 +339,31 @@ def probe_scan(
             f"{pore_radius_A:g} Å of the axis; check the axis or "
             "enlarge pore_radius_A"
         )
+    err, err_h, n_changed = math.nan, math.nan, 0
+    if error_estimate:
+        err_h = 1.5 * spacing_A
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", QualityWarning)
+            try:
+                coarse = probe_scan(
+                    atoms,
+                    axis,
+                    probe_radii_A=probes,
+                    radii_A=radii_arr,
+                    spacing_A=err_h,
+                    from_end=from_end,
+                    pore_radius_A=pore_radius_A,
+                    refine_factor=refine_factor,
+                    error_estimate=False,
+                )
+            except PoreNotFoundError:
+                coarse = None
+        if coarse is not None:
+            both = enters & coarse.enters
+            diff = np.abs(out["capture"] - coarse.capture_radius_A)[both]
+            diff = diff[np.isfinite(diff)]
+            err = float(diff.max()) if diff.size else 0.0
+            n_changed = int(np.count_nonzero((passes != coarse.passes) | (enters != coarse.enters)))
     for note in notes:
         warnings.warn(note, QualityWarning, stacklevel=2)
     return ProbeScan(
@@ -317,8 +384,18 @@ def probe_scan(
         pore_radius_A=float(pore_radius_A),
         entry=field_.entry,
         notes=tuple(notes),
+        bottleneck_clearance_A=float(bneck.clearance_A) if bneck.accepted else math.nan,
+        bottleneck_s_A=float(bneck.s_A) if bneck.accepted else math.nan,
+        discretisation_error_A=err,
+        error_spacing_A=err_h,
+        pass_changes_with_spacing=n_changed,
+        grid_angle_rad=float(field_.grid_angle_rad),
         source=atoms.source,
     )
+
+
+def _none_if_nan(value: float):
+    return None if not math.isfinite(value) else float(value)
 
 
 def capture_radius_at(scan: ProbeScan, probe_radius_A, *, inscribed: bool = False):
@@ -416,3 +493,10 @@ def profiles_csv(scan: ProbeScan, path=None) -> str:
         path,
         comments,
     )
+
+
+# ----------------------------------------------------------------------------------------
+# internals
+# ----------------------------------------------------------------------------------------
+class _Context:
+    """Grid, atoms and fixed 2-D masks shared by every probe of one scan."""

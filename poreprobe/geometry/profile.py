@@ -15,8 +15,17 @@ sphere, i.e. the maximum over the plane of the clearance
   pocket), or escapes to the bulk while the previous plane is enclosed, the
   climb is repeated from the previous centre, so the centre follows the pore.
   Planes are visited outwards from the plane at s = 0.
+* **The pore's own region.** From that local maximum, the largest sphere of the
+  plane's pore region is taken: the region holds every point a sphere of at least
+  ``neck_fraction`` (default 0.75) times the current radius can slide to within the
+  plane (:mod:`poreprobe.geometry.planeregion`). Larger maxima joined by wide necks are
+  found; side pockets behind narrow necks are not the pore and are left out.
 * **Open planes.** Where the sphere grows beyond ``max_radius_A`` the plane is
   open to the bulk: its radius and centre are NaN.
+* **Occluded planes.** Where no point of the plane is free (the largest clearance is
+  negative: atoms overlap every point), the plane is occluded: radius 0,
+  ``occluded`` True, and the (negative) clearance, how deep the atoms overlap at the
+  least covered point, in ``signed_clearance_A``.
 
 The climb runs on all planes at once: a trust-region sequence of small linear
 programs on the clearance of the nearest atoms (:mod:`poreprobe.geometry.planemax`),
@@ -34,10 +43,15 @@ from poreprobe._validate import check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError
 from poreprobe.geometry.axis import PoreAxis
+from poreprobe.geometry.inplane import inplane_angle_rad, rotate_uv, unrotate_uv
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.geometry.planemax import maximise_in_planes
+from poreprobe.geometry.planeregion import NECK_FRACTION, check_neck_fraction, region_maximum
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms
+
+#: Atoms within this lateral distance of the axis orient the in-plane rasters (Å).
+INPLANE_RADIUS_A = 15.0
 
 
 @dataclass(frozen=True)
@@ -49,7 +63,8 @@ class RadiusProfile:
     s_A : ndarray of shape (n_planes,)
         Plane positions along the axis (Å).
     radius_A : ndarray of shape (n_planes,)
-        Largest empty sphere radius per plane (Å); NaN where the plane is open.
+        Largest empty sphere radius per plane (Å); NaN where the plane is open, 0 where
+        it is occluded.
     center_A : ndarray of shape (n_planes, 3)
         Sphere centres in the input's Cartesian frame (Å); NaN where open.
     axis : PoreAxis
@@ -66,6 +81,14 @@ class RadiusProfile:
     contact_tol_A : float
     nearest_atom : ndarray of int, shape (n_planes,)
         Index (into the atoms profiled) of the atom touching each sphere; -1 where open.
+    occluded : ndarray of bool, shape (n_planes,)
+        No point of the plane is free (radius 0).
+    signed_clearance_A : ndarray of shape (n_planes,)
+        Clearance at each centre (Å): the radius where the plane is free, negative
+        (the overlap depth of the atoms at the least covered point) where occluded,
+        NaN where open.
+    neck_fraction : float
+        The fraction f of the region's neck criterion.
     source : str
     version : str
     """
@@ -83,12 +106,51 @@ class RadiusProfile:
     min_residues: tuple[str, ...]
     contact_tol_A: float
     nearest_atom: np.ndarray
+    occluded: np.ndarray = None
+    signed_clearance_A: np.ndarray = None
+    neck_fraction: float = 0.75
     source: str = ""
     version: str = field(default=__version__)
 
     def __post_init__(self):
-        for name in ("s_A", "radius_A", "center_A", "min_center_A", "nearest_atom"):
+        if self.occluded is None:
+            object.__setattr__(self, "occluded", np.zeros(len(self.s_A), dtype=bool))
+        if self.signed_clearance_A is None:
+            object.__setattr__(self, "signed_clearance_A", np.array(self.radius_A, dtype=float))
+        for name in (
+            "s_A",
+            "radius_A",
+            "center_A",
+            "min_center_A",
+            "nearest_atom",
+            "occluded",
+            "signed_clearance_A",
+        ):
             getattr(self, name).setflags(write=False)
+
+    @property
+    def min_occluded(self) -> bool:
+        """True when the narrowest plane is occluded (no free point: radius 0)."""
+        k = np.flatnonzero(self.s_A == self.min_s_A)
+        return bool(k.size and self.occluded[k[0]])
+
+    def narrowest_text(self) -> str:
+        """``"radius 1.34 Å at s = 2.0 Å"``, or the occluded wording (never a negative radius)."""
+        if not np.isfinite(self.min_radius_A):
+            return "n/a (every plane open)"
+        if self.min_occluded:
+            k = int(np.flatnonzero(self.s_A == self.min_s_A)[0])
+            return (
+                f"occluded at s = {self.min_s_A:.1f} Å (no free point in the plane; atoms "
+                f"overlap by {-float(self.signed_clearance_A[k]):.2f} Å there; "
+                f"{self.n_occluded} occluded plane{'s' if self.n_occluded != 1 else ''})"
+            )
+        return f"radius {self.min_radius_A:.2f} Å at s = {self.min_s_A:.1f} Å"
+
+    @property
+    def n_occluded(self) -> int:
+        """Number of occluded planes."""
+        return int(np.count_nonzero(self.occluded))
 
     def to_dict(self) -> dict:
         """JSON-ready dictionary (NaN becomes None)."""
@@ -109,10 +171,15 @@ class RadiusProfile:
             "min_center_A": clean(self.min_center_A),
             "min_residues": list(self.min_residues),
             "contact_tol_A": self.contact_tol_A,
+            "neck_fraction": self.neck_fraction,
+            "min_occluded": self.min_occluded,
+            "n_occluded": self.n_occluded,
             "profile": {
                 "s_A": clean(self.s_A),
                 "radius_A": clean(self.radius_A),
                 "center_A": clean(self.center_A),
+                "occluded": self.occluded.tolist(),
+                "signed_clearance_A": clean(self.signed_clearance_A),
             },
         }
 
@@ -172,6 +239,7 @@ def radius_profile(
     max_radius_A: float = 20.0,
     s_range_A: tuple[float, float] | None = None,
     contact_tol_A: float = 0.3,
+    neck_fraction: float = NECK_FRACTION,
 ) -> RadiusProfile:
     """Compute the pore radius profile along an axis.
 
@@ -196,6 +264,10 @@ def radius_profile(
     contact_tol_A : float
         Atoms whose surface lies within this distance of the narrowest sphere
         are reported in ``min_residues``.
+    neck_fraction : float
+        Fraction f in (0, 1] of the region's neck criterion: the plane's maximum is taken
+        over the points a sphere of at least ``f`` times the local radius can reach
+        within the plane (see :mod:`poreprobe.geometry.planeregion`).
 
     Returns
     -------
@@ -228,6 +300,7 @@ def radius_profile(
     margin_A = check_positive(margin_A, "margin_A", allow_zero=True)
     max_radius_A = check_positive(max_radius_A, "max_radius_A")
     contact_tol_A = check_positive(contact_tol_A, "contact_tol_A", allow_zero=True)
+    neck_fraction = check_neck_fraction(neck_fraction)
     if len(atoms) < 2:
         raise InputError(f"need at least 2 atoms for a radius profile, got {len(atoms)}")
     rset = get_radius_set(radii) if radii_A is None else None
@@ -238,7 +311,11 @@ def radius_profile(
         radii_A = np.asarray(radii_A, dtype=np.float64)
         if radii_A.shape != (len(atoms),):
             raise InputError(f"radii_A must have {len(atoms)} values, got {radii_A.shape}")
+    # in-plane axes turned by an angle fixed by the atoms (geometry.inplane), so the
+    # region rasters move with the structure, not with the lab frame
     frame = axis.to_frame(atoms.coords_A)
+    theta = inplane_angle_rad(frame, INPLANE_RADIUS_A)
+    frame = rotate_uv(frame, theta)
     if s_range_A is None:
         s_planes = plane_positions_A(frame[:, 2], step_A, margin_A)
     else:
@@ -254,21 +331,27 @@ def radius_profile(
     centres, values = _enforce_continuity(
         s_planes, centres, values, climber, max_radius_A, jump_A=1.0 + step_A
     )
+    centres, values = region_maximum(
+        spheres_frame, s_planes, centres, values, max_radius_A, neck_fraction=neck_fraction
+    )
     open_plane = values > max_radius_A
-    radius = np.where(open_plane, np.nan, values)
+    occluded = ~open_plane & (values < 0)
+    signed = np.where(open_plane, np.nan, values)
+    radius = np.where(open_plane, np.nan, np.maximum(values, 0.0))
     uvs = np.column_stack([centres, s_planes])
     nearest = spheres_frame.clearance_A(uvs, return_index=True)[1]
     nearest = np.where(open_plane, -1, nearest)
-    centre_xyz = axis.from_frame(uvs)
+    centre_xyz = axis.from_frame(unrotate_uv(uvs, theta))
     centre_xyz[open_plane] = np.nan
     if np.all(open_plane):
         raise PoreNotFoundError(
             "every plane along the axis is open: no enclosed pore "
             f"(max_radius_A = {max_radius_A}); check the axis"
         )
-    k = int(np.nanargmin(radius))
+    # narrowest: the smallest signed clearance (the deepest overlap among occluded planes)
+    k = int(np.nanargmin(signed))
     dist = np.linalg.norm(frame - uvs[k], axis=1) - radii_A
-    touching = np.flatnonzero(dist <= radius[k] + contact_tol_A)
+    touching = np.flatnonzero(dist <= signed[k] + contact_tol_A)
     labels = atoms.residue_labels()[touching]
     residues = tuple(dict.fromkeys(labels[np.argsort(dist[touching], kind="stable")].tolist()))
     return RadiusProfile(
@@ -285,6 +368,9 @@ def radius_profile(
         min_residues=residues,
         contact_tol_A=contact_tol_A,
         nearest_atom=nearest.astype(np.int64),
+        occluded=occluded,
+        signed_clearance_A=signed,
+        neck_fraction=neck_fraction,
         source=atoms.source,
     )
 

@@ -15,8 +15,11 @@ smallest clearance along the path``. The probe-centre region of probe p is
 
 The grid
 --------
-Voxels sit in the axis frame (u, v, s) of a :class:`~poreprobe.geometry.axis.PoreAxis`:
-u and v across the axis (the axis itself is a grid line), s along it, all at
+Voxels sit in the grid frame: the axis frame (u, v, s) of a
+:class:`~poreprobe.geometry.axis.PoreAxis` turned about the axis by ``grid_angle_rad``, an
+angle fixed by the atoms near the pore (:mod:`poreprobe.geometry.inplane`), so the grid
+moves with the structure under rigid motions instead of following the lab frame. Grid u
+and v run across the axis (the axis itself is a grid line), s along it, all at
 spacing ``spacing_A``; s positions are multiples of the spacing, so grids of
 different structures and spacings share planes. Only voxels inside a cylinder
 of radius ``pore_radius_A`` around the axis belong to the pore region, less the
@@ -60,6 +63,7 @@ from poreprobe._validate import as_coords_A, check_choice, check_positive
 from poreprobe._version import __version__
 from poreprobe.errors import InputError, PoreNotFoundError
 from poreprobe.geometry.axis import PoreAxis
+from poreprobe.geometry.inplane import inplane_angle_rad, rotate_uv, unrotate_uv
 from poreprobe.geometry.kernel import AtomSpheres
 from poreprobe.io.radii import DEFAULT_RADIUS_SET, RadiusSet, atom_radii_A, get_radius_set
 from poreprobe.io.structure import Atoms
@@ -113,6 +117,8 @@ class ReachField:
     method : str
         Reach algorithm used.
     radius_set : str
+    grid_angle_rad : float
+        Rotation of the grid's (u, v) about the axis relative to the axis frame (radians).
     source : str
     version : str
     """
@@ -131,6 +137,7 @@ class ReachField:
     levels_A: np.ndarray | None
     method: str
     radius_set: str
+    grid_angle_rad: float = 0.0
     source: str = ""
     version: str = field(default=__version__)
 
@@ -156,19 +163,24 @@ class ReachField:
         """Axial positions of the grid layers (Å), ascending."""
         return self.origin_A[2] + self.spacing_A * np.arange(self.shape[2])
 
+    def to_grid_frame(self, xyz_A) -> np.ndarray:
+        """Cartesian points (..., 3) in the grid frame (u, v turned by ``grid_angle_rad``)."""
+        return rotate_uv(self.axis.to_frame(xyz_A), self.grid_angle_rad)
+
     def index_to_frame(self, index) -> np.ndarray:
         """Axis-frame (u, v, s) coordinates (Å) of voxel indices (..., 3)."""
         idx = np.asarray(index, dtype=np.float64)
         if idx.shape[-1:] != (3,):
             raise InputError(f"index must have shape (..., 3), got {idx.shape}")
-        return self.origin_A + idx * self.spacing_A
+        return unrotate_uv(self.origin_A + idx * self.spacing_A, self.grid_angle_rad)
 
     def frame_to_index(self, uvs_A) -> np.ndarray:
         """Nearest voxel indices (..., 3) of axis-frame points; may fall outside the grid."""
         uvs = np.asarray(uvs_A, dtype=np.float64)
         if uvs.shape[-1:] != (3,):
             raise InputError(f"uvs_A must have shape (..., 3), got {uvs.shape}")
-        return np.rint((uvs - self.origin_A) / self.spacing_A).astype(np.int64)
+        grid = rotate_uv(uvs, self.grid_angle_rad)
+        return np.rint((grid - self.origin_A) / self.spacing_A).astype(np.int64)
 
     def index_to_xyz(self, index) -> np.ndarray:
         """Cartesian coordinates (Å) of voxel indices (..., 3)."""
@@ -228,6 +240,7 @@ class ReachField:
             "pore_radius_A": self.pore_radius_A,
             "protein_s_A": list(self.protein_s_A),
             "method": self.method,
+            "grid_angle_rad": self.grid_angle_rad,
             "levels_A": None if self.levels_A is None else self.levels_A.tolist(),
             "n_inside": int(self.inside.sum()),
         }
@@ -348,6 +361,8 @@ def reach_field(
     radii_arr, radius_label = resolve_radii(atoms, radii, radii_A)
     coords = as_coords_A(atoms.coords_A)
     frame = axis.to_frame(coords)
+    theta = inplane_angle_rad(frame, pore_radius_A)
+    frame = rotate_uv(frame, theta)
     lateral = np.hypot(frame[:, 0], frame[:, 1]) - radii_arr
     touching = lateral <= pore_radius_A
     if not touching.any():
@@ -402,6 +417,7 @@ def reach_field(
         levels_A=levels,
         method=method,
         radius_set=radius_label,
+        grid_angle_rad=theta,
         source=atoms.source,
     )
 

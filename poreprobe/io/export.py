@@ -98,18 +98,42 @@ def to_csv(
 
 
 def profile_csv(profile, path=None) -> str:
-    """CSV of a :class:`~poreprobe.geometry.profile.RadiusProfile`: s, radius, centre (Å)."""
+    """CSV of a :class:`~poreprobe.geometry.profile.RadiusProfile`.
+
+    Columns: s, radius, centre (Å), ``occluded`` (1 where no point of the plane is free;
+    its radius is then 0) and the signed clearance (negative: overlap depth, Å).
+    """
     rows = (
-        (float(s), float(r), *map(float, c))
-        for s, r, c in zip(profile.s_A, profile.radius_A, profile.center_A, strict=True)
+        (float(s), float(r), *map(float, c), int(o), float(sc))
+        for s, r, c, o, sc in zip(
+            profile.s_A,
+            profile.radius_A,
+            profile.center_A,
+            profile.occluded,
+            profile.signed_clearance_A,
+            strict=True,
+        )
     )
     comments = (
         f"poreprobe {profile.version} radius profile of {profile.source}",
         f"radius set: {profile.radius_set}; model-based estimate; lengths in Å",
         f"axis method: {profile.axis.method}",
+        "occluded planes (no free point) have radius 0; signed_clearance_A < 0 is the "
+        "depth of the atoms' overlap there",
     )
     return to_csv(
-        ("s_A", "radius_A", "center_x_A", "center_y_A", "center_z_A"), rows, path, comments
+        (
+            "s_A",
+            "radius_A",
+            "center_x_A",
+            "center_y_A",
+            "center_z_A",
+            "occluded",
+            "signed_clearance_A",
+        ),
+        rows,
+        path,
+        comments,
     )
 
 

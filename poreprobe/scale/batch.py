@@ -272,6 +272,7 @@ def _capture_radii_A(atoms, axis, radii_A, options: _FileOptions) -> tuple[float
             probe_radii_A=options.capture_probe_radii_A,
             radii_A=radii_A,
             **options.scan,
+            error_estimate=False,  # one capture radius per model: no second grid
         )
     except PoreNotFoundError as exc:
         warnings.warn(f"capture radius: {exc}", QualityWarning, stacklevel=2)

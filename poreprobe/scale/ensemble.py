@@ -134,6 +134,7 @@ def _scan_member(job: _Job, atoms: Atoms, out: dict, row: int) -> None:
                 probe_radii_A=job.probe_radii_A,
                 radii_A=job.radii_A,
                 **job.scan_options,
+                error_estimate=False,  # one capture radius per model: no second grid
             )
         except PoreNotFoundError:
             return

@@ -418,6 +418,7 @@ class PoreProfileAnalysis(AnalysisBase):
                     probe_radii_A=[self.capture_probe_radius_A],
                     radii_A=self._radii_A,
                     **self._capture_options,
+                    error_estimate=False,  # one capture radius per model: no second grid
                 )
             except PoreNotFoundError:
                 return float("nan")
