@@ -103,7 +103,7 @@ def _real(name):
     return channel(name)[0]
 
 
-@pytest.mark.parametrize("name", ["2r9r-1b", "3pjs", "6f7a"])
+@pytest.mark.parametrize("name", ["2r9r-1b", "3pjs", "6f7a", "5klg"])
 def test_profile_matches_brute_force_on_real_pores(name):
     # K+ channel fragment (MDAnalysisTests 2r9r-1b.psf + .xyz); KcsA full length, PDB 3PJS
     # (Uysal et al. 2011, PNAS 108:11896); GLIC, PDB 6F7A (Zabara et al. 2018, Nat. Commun.
