@@ -22,6 +22,7 @@ from poreprobe.cli.common import (
     add_profile_args,
     add_structure_args,
     check_figure_path,
+    load_all_atoms,
     load_axis,
     radius_set_from_args,
     save_figure,
@@ -33,7 +34,6 @@ from poreprobe.geometry.clashes import CLASH_FRACTION
 from poreprobe.geometry.lining import CONSTRICTION_RADIUS_A
 from poreprobe.io.export import to_csv, to_json
 from poreprobe.io.radii import atom_radii_A
-from poreprobe.io.structure import read_structure
 
 
 def add_lining_profile_args(parser) -> None:
@@ -169,19 +169,7 @@ def run(args) -> int:
 
             raise InputError("--density-map needs --resolution-A (the map's resolution, Å)")
         _check_map_path(args.density_map)
-    atoms = read_structure(
-        args.structure,
-        trajectory=args.trajectory,
-        model=args.model,
-        frame=args.frame,
-        altloc=args.altloc,
-        hydrogens=True,
-        waters=True,
-        ions=True,
-        hetero=True,
-        selection=args.select,
-        assembly=args.assembly,
-    )
+    atoms = load_all_atoms(args)
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
     wall_mask = np.isin(atoms.kind, walls)

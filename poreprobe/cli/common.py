@@ -194,6 +194,24 @@ def load_atoms(args: argparse.Namespace, path: str | None = None) -> Atoms:
     )
 
 
+def load_all_atoms(args: argparse.Namespace) -> Atoms:
+    """Read the structure with waters, ions, hetero groups and hydrogens kept.
+
+    For commands that look at what sits in the pore (``check``, ``report``) and choose
+    the walls themselves from --keep-* and --no-hydrogens afterwards.
+    """
+    cleaning = cleaning_from_args(args)
+    cleaning.update(hydrogens=True, waters=True, ions=True, hetero=True)
+    return read_structure(
+        args.structure,
+        trajectory=args.trajectory,
+        model=args.model,
+        frame=args.frame,
+        assembly=args.assembly,
+        **cleaning,
+    )
+
+
 def with_assembly(result, atoms: Atoms, presence=None) -> dict:
     """The result as a JSON dictionary with an ``assembly`` entry (which one, how built).
 

@@ -96,12 +96,12 @@ def run(args) -> int:
     from poreprobe.cli.check import walls_from_args
     from poreprobe.cli.common import (
         backend_from_args,
+        load_all_atoms,
         load_axis,
         parse_probe_radii,
         radius_set_from_args,
     )
     from poreprobe.io.radii import atom_radii_A
-    from poreprobe.io.structure import read_structure
 
     _check_output(args.html, ".html")
     if args.pdf:
@@ -121,19 +121,7 @@ def run(args) -> int:
 
     backend, workers = backend_from_args(args)
     rset = radius_set_from_args(args)
-    atoms = read_structure(
-        args.structure,
-        trajectory=args.trajectory,
-        model=args.model,
-        frame=args.frame,
-        assembly=args.assembly,
-        altloc=args.altloc,
-        hydrogens=True,
-        waters=True,
-        ions=True,
-        hetero=True,
-        selection=args.select,
-    )
+    atoms = load_all_atoms(args)
     walls = walls_from_args(args)
     mask = np.isin(atoms.kind, walls)
     if args.no_hydrogens:
