@@ -355,6 +355,15 @@ def add_grid_args(group) -> None:
     )
 
 
+def scan_options_from_args(args: argparse.Namespace) -> dict:
+    """Keyword options of the probe scan for --spacing-A, --entry-end and --search-radius-A."""
+    return {
+        "spacing_A": args.spacing_A,
+        "from_end": args.entry_end,
+        "pore_radius_A": args.search_radius_A,
+    }
+
+
 def add_probe_radius_arg(group, *, purpose: str) -> None:
     """--probe-radius-A: one probe radius (``export``'s mesh, ``traj``'s capture radius)."""
     group.add_argument(

@@ -32,6 +32,7 @@ from poreprobe.cli.common import (
     check_figure_path,
     save_figure,
     say,
+    scan_options_from_args,
 )
 from poreprobe.cli.outputs import InputPath
 from poreprobe.cli.scan import compute as scan_compute
@@ -267,11 +268,7 @@ def compute(args) -> dict:
             atoms,
             scan.axis,
             probe_radii_A=scan.probe_radius_A,
-            scan_options={
-                "spacing_A": args.spacing_A,
-                "from_end": args.entry_end,
-                "pore_radius_A": args.search_radius_A,
-            },
+            scan_options=scan_options_from_args(args),
             ion=args.ion,
             match_capture_radius_A=est.capture_radius_A,
             match_sd_A=est.capture_radius_sd_A,

@@ -13,6 +13,7 @@ from poreprobe.cli.common import (
     add_probe_args,
     add_structure_args,
     say,
+    scan_options_from_args,
 )
 from poreprobe.cli.outputs import OutputPath
 from poreprobe.errors import InputError
@@ -161,11 +162,7 @@ def run(args) -> int:
         axis=axis,
         walls=walls,
         hydrogens=not args.no_hydrogens,
-        scan_options={
-            "spacing_A": args.spacing_A,
-            "from_end": args.entry_end,
-            "pore_radius_A": args.search_radius_A,
-        },
+        scan_options=scan_options_from_args(args),
     )
     html = write_html(data, args.html)  # written with the PDF when the command ends
     if args.pdf:

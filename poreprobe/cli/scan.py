@@ -16,6 +16,7 @@ from poreprobe.cli.common import (
     parse_probe_radii,
     save_figure,
     say,
+    scan_options_from_args,
     with_assembly,
 )
 from poreprobe.cli.outputs import OutputPath
@@ -117,10 +118,8 @@ def compute(args):
         probe_radii_A=probes,
         radii=rset,
         radii_A=radii_A,
-        spacing_A=args.spacing_A,
-        from_end=args.entry_end,
-        pore_radius_A=args.search_radius_A,
         quiet=args.quiet,
+        **scan_options_from_args(args),
     )
     return atoms, scan
 
@@ -132,11 +131,7 @@ def scan_ensemble(args, atoms, scan):
         atoms,
         scan.axis,
         probe_radii_A=scan.probe_radius_A,
-        scan_options={
-            "spacing_A": args.spacing_A,
-            "from_end": args.entry_end,
-            "pore_radius_A": args.search_radius_A,
-        },
+        scan_options=scan_options_from_args(args),
     )
 
 
