@@ -118,6 +118,15 @@ def walls_from_args(args) -> tuple[str, ...]:
     )
 
 
+def wall_atoms_from_args(args, atoms):
+    """The atoms that make the pore walls (``walls_from_args``, less hydrogens with
+    --no-hydrogens) out of a structure read with everything kept (``load_all_atoms``)."""
+    mask = np.isin(atoms.kind, walls_from_args(args))
+    if args.no_hydrogens:
+        mask &= ~atoms.is_hydrogen
+    return atoms.subset(mask)
+
+
 def lining_csv(report, path=None) -> str:
     """CSV of the per-residue lining table (lengths in Å)."""
     rows = (
@@ -172,10 +181,7 @@ def run(args) -> int:
     atoms = load_all_atoms(args)
     rset = radius_set_from_args(args)
     walls = walls_from_args(args)
-    wall_mask = np.isin(atoms.kind, walls)
-    if args.no_hydrogens:
-        wall_mask &= ~atoms.is_hydrogen
-    wall_atoms = atoms.subset(wall_mask)
+    wall_atoms = wall_atoms_from_args(args, atoms)
     axis = load_axis(args, wall_atoms, atom_radii_A(wall_atoms, rset))
     report = check_model(
         atoms,

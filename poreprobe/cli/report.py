@@ -92,9 +92,8 @@ def _check_output(path: str, suffix: str) -> None:
 
 
 def run(args) -> int:
-    import numpy as np
 
-    from poreprobe.cli.check import walls_from_args
+    from poreprobe.cli.check import wall_atoms_from_args, walls_from_args
     from poreprobe.cli.common import (
         backend_from_args,
         load_all_atoms,
@@ -124,10 +123,7 @@ def run(args) -> int:
     rset = radius_set_from_args(args)
     atoms = load_all_atoms(args)
     walls = walls_from_args(args)
-    mask = np.isin(atoms.kind, walls)
-    if args.no_hydrogens:
-        mask &= ~atoms.is_hydrogen
-    wall_atoms = atoms.subset(mask)
+    wall_atoms = wall_atoms_from_args(args, atoms)
     axis = load_axis(args, wall_atoms, atom_radii_A(wall_atoms, rset))
     bench = None
     if args.current_pA is not None:
